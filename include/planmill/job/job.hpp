@@ -1,0 +1,69 @@
+#pragma once
+// The job file (TOML, docs/jobs.md): everything a run needs, read once and checked strictly.
+// Unknown keys, wrong types and out-of-range values are InputErrors naming the key and its line.
+#include <cstdint>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "planmill/graph/map_spec.hpp"
+
+namespace planmill {
+
+struct GroupShareSpec {
+  std::string group;       // a name listed in map.groups
+  double threshold = 0.5;  // share of district population
+  double weight = 0.0;     // energy falls by weight for each district at or above threshold
+};
+
+struct RulesSpec {
+  double population_deviation = 0.05;
+  std::int64_t county_splits_max = -1;  // -1 = no limit
+  double cut_edges_weight = 0.0;
+  double county_splits_weight = 0.0;
+  std::vector<GroupShareSpec> group_share;
+};
+
+enum class KernelKind { recombination, merge_split, flip };
+
+struct SamplerSpec {
+  KernelKind kernel = KernelKind::recombination;
+  std::size_t chains = 4;
+  std::uint64_t steps = 1000;
+  std::uint64_t burn_in = 0;
+  std::uint64_t record_every = 1;
+  std::uint64_t seed = 1;
+  double gamma = 0.0;  // merge-split target exponent on spanning-tree counts
+  double beta = 1.0;   // inverse temperature on the energy
+};
+
+struct OutputSpec {
+  std::string dir;  // resolved relative to the job file
+  double checkpoint_seconds = 300.0;
+};
+
+struct VerdictSpec {
+  double rhat_max = 1.01;
+  double ess_min = 400.0;
+};
+
+struct JobSpec {
+  std::string path;  // the job file as given
+  std::string text;  // its full text, stored with every run
+  MapSpec map;
+  std::size_t districts = 0;
+  std::string start = "random";  // or a resolved plan CSV path
+  RulesSpec rules;
+  SamplerSpec sampler;
+  OutputSpec output;
+  VerdictSpec verdict;
+};
+
+// Parses job text; relative paths are resolved against the folder of `source`.
+[[nodiscard]] JobSpec parse_job_text(std::string_view text, const std::string& source);
+// Reads and parses a job file.
+[[nodiscard]] JobSpec load_job(const std::string& path);
+
+[[nodiscard]] const char* kernel_name(KernelKind kind) noexcept;
+
+}  // namespace planmill

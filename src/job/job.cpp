@@ -1,0 +1,297 @@
+#include "planmill/job/job.hpp"
+
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <set>
+#include <sstream>
+#include <toml++/toml.h>
+
+#include "planmill/base/error.hpp"
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+
+// A TOML table read strictly: every key must be asked for, and what is left over is an error.
+class Section {
+ public:
+  Section(const toml::table& table, std::string name, const std::string& file)
+      : table_(table), name_(std::move(name)), file_(file) {}
+
+  [[nodiscard]] std::string key_name(std::string_view key) const {
+    return name_.empty() ? std::string(key) : name_ + "." + std::string(key);
+  }
+  [[nodiscard]] std::size_t line_of(const toml::node& node) const {
+    return static_cast<std::size_t>(node.source().begin.line);
+  }
+  [[noreturn]] void fail(std::string_view key, const std::string& problem, const std::string& remedy) const {
+    const toml::node* node = table_.get(key);
+    throw InputError({file_, node ? line_of(*node) : line_of(table_), key_name(key)}, problem, remedy);
+  }
+
+  const toml::node* get(std::string_view key) {
+    used_.insert(std::string(key));
+    return table_.get(key);
+  }
+  bool has(std::string_view key) const { return table_.contains(key); }
+
+  std::string string(std::string_view key, std::string fallback, bool required = false) {
+    const toml::node* node = get(key);
+    if (!node) {
+      if (required) missing(key);
+      return fallback;
+    }
+    if (!node->is_string()) fail(key, "must be a string", "write it in double quotes");
+    std::string value = **node->as_string();
+    if (value.empty()) fail(key, "must not be empty", "give a value or remove the key");
+    return value;
+  }
+
+  std::int64_t integer(std::string_view key, std::int64_t fallback, std::int64_t lo, std::int64_t hi,
+                       bool required = false) {
+    const toml::node* node = get(key);
+    if (!node) {
+      if (required) missing(key);
+      return fallback;
+    }
+    if (!node->is_integer()) fail(key, "must be a whole number", "write it without quotes or a decimal point");
+    const std::int64_t value = **node->as_integer();
+    if (value < lo || value > hi)
+      fail(key, "is " + std::to_string(value) + ", outside " + std::to_string(lo) + ".." + std::to_string(hi),
+           "choose a value in that range");
+    return value;
+  }
+
+  double number(std::string_view key, double fallback, double lo, double hi, bool required = false) {
+    const toml::node* node = get(key);
+    if (!node) {
+      if (required) missing(key);
+      return fallback;
+    }
+    double value = 0;
+    if (node->is_floating_point()) value = **node->as_floating_point();
+    else if (node->is_integer()) value = static_cast<double>(**node->as_integer());
+    else fail(key, "must be a number", "write it without quotes");
+    if (!std::isfinite(value) || value < lo || value > hi) {
+      std::ostringstream range;
+      range << "is " << value << ", outside [" << lo << ", " << hi << "]";
+      fail(key, range.str(), "choose a value in that range");
+    }
+    return value;
+  }
+
+  std::vector<std::string> strings(std::string_view key) {
+    std::vector<std::string> values;
+    const toml::node* node = get(key);
+    if (!node) return values;
+    const toml::array* array = node->as_array();
+    if (!array) fail(key, "must be a list of strings", "write it as [\"a\", \"b\"]");
+    for (const toml::node& item : *array) {
+      if (!item.is_string() || item.as_string()->get().empty())
+        fail(key, "must be a list of non-empty strings", "write it as [\"a\", \"b\"]");
+      values.push_back(**item.as_string());
+    }
+    return values;
+  }
+
+  const toml::table* table(std::string_view key) {
+    const toml::node* node = get(key);
+    if (!node) return nullptr;
+    if (!node->is_table()) fail(key, "must be a table", "write it as a [" + key_name(key) + "] section");
+    return node->as_table();
+  }
+
+  // Keys present in the file that nobody asked for.
+  void reject_unknown() const {
+    for (const auto& [key, node] : table_) {
+      if (used_.count(std::string(key.str()))) continue;
+      throw InputError({file_, line_of(node), key_name(key.str())}, "unknown key",
+                       "check its spelling against docs/jobs.md or remove it");
+    }
+  }
+
+ private:
+  [[noreturn]] void missing(std::string_view key) const {
+    throw InputError({file_, line_of(table_), key_name(key)}, "required key is missing",
+                     "add it (see docs/jobs.md)");
+  }
+
+  const toml::table& table_;
+  std::string name_;
+  const std::string& file_;
+  std::set<std::string> used_;
+};
+
+std::string resolve(const std::string& base_dir, const std::string& path) {
+  if (path.empty()) return path;
+  fs::path p(path);
+  if (p.is_absolute() || base_dir.empty()) return p.lexically_normal().string();
+  return (fs::path(base_dir) / p).lexically_normal().string();
+}
+
+void read_map(Section& top, JobSpec& job, const std::string& base) {
+  const toml::table* table = top.table("map");
+  if (!table) top.fail("map", "section [map] is missing", "add [map] with units, adjacency, id and population");
+  Section map(*table, "map", job.path);
+  MapSpec& m = job.map;
+  m.source = job.path;
+  m.units_path = resolve(base, map.string("units", "", true));
+  m.adjacency_path = resolve(base, map.string("adjacency", "", true));
+  m.id_column = map.string("id", "", true);
+  m.population_column = map.string("population", "", true);
+  m.county_column = map.string("county", "");
+  m.municipality_column = map.string("municipality", "");
+  m.area_column = map.string("area", "");
+  m.perimeter_column = map.string("perimeter", "");
+  m.outer_boundary_column = map.string("outer_boundary", "");
+  m.group_columns = map.strings("groups");
+  if (const toml::node* node = map.get("elections")) {
+    const toml::array* list = node->as_array();
+    if (!list || !list->is_array_of_tables())
+      map.fail("elections", "must be a list of tables", "write each one as a [[map.elections]] section");
+    std::set<std::string> names;
+    for (const toml::node& item : *list) {
+      Section e(*item.as_table(), "map.elections", job.path);
+      ElectionSpec spec;
+      spec.name = e.string("name", "", true);
+      spec.parties = e.strings("parties");
+      spec.columns = e.strings("columns");
+      if (spec.parties.size() < 2) e.fail("parties", "an election needs at least two parties", "list them");
+      if (spec.columns.size() != spec.parties.size())
+        e.fail("columns", "must name one vote column per party (" + std::to_string(spec.parties.size()) + ")",
+               "list the columns in the order of 'parties'");
+      if (!names.insert(spec.name).second) e.fail("name", "election '" + spec.name + "' appears twice", "rename one");
+      e.reject_unknown();
+      m.elections.push_back(std::move(spec));
+    }
+  }
+  map.reject_unknown();
+}
+
+void read_rules(Section& top, JobSpec& job) {
+  const toml::table* table = top.table("rules");
+  if (!table) return;
+  Section rules(*table, "rules", job.path);
+  RulesSpec& r = job.rules;
+  r.population_deviation = rules.number("population_deviation", r.population_deviation, 0.0, 1.0);
+  r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
+  if (const toml::table* w = rules.table("weights")) {
+    Section weights(*w, "rules.weights", job.path);
+    r.cut_edges_weight = weights.number("cut_edges", 0.0, -1e6, 1e6);
+    r.county_splits_weight = weights.number("county_splits", 0.0, -1e6, 1e6);
+    weights.reject_unknown();
+  }
+  if (const toml::node* node = rules.get("group_share")) {
+    const toml::array* list = node->as_array();
+    if (!list || !list->is_array_of_tables())
+      rules.fail("group_share", "must be a list of tables", "write each term as a [[rules.group_share]] section");
+    for (const toml::node& item : *list) {
+      Section g(*item.as_table(), "rules.group_share", job.path);
+      GroupShareSpec spec;
+      spec.group = g.string("group", "", true);
+      spec.threshold = g.number("threshold", 0.5, 0.0, 1.0);
+      spec.weight = g.number("weight", 0.0, -1e6, 1e6, true);
+      bool listed = false;
+      for (const auto& name : job.map.group_columns) listed |= name == spec.group;
+      if (!listed) g.fail("group", "'" + spec.group + "' is not listed in map.groups", "add it there or fix the name");
+      g.reject_unknown();
+      r.group_share.push_back(spec);
+    }
+  }
+  rules.reject_unknown();
+}
+
+void read_sampler(Section& top, JobSpec& job) {
+  const toml::table* table = top.table("sampler");
+  if (!table) return;
+  Section s(*table, "sampler", job.path);
+  SamplerSpec& spec = job.sampler;
+  const std::string kernel = s.string("kernel", "recombination");
+  if (kernel == "recombination") spec.kernel = KernelKind::recombination;
+  else if (kernel == "merge-split") spec.kernel = KernelKind::merge_split;
+  else if (kernel == "flip") spec.kernel = KernelKind::flip;
+  else s.fail("kernel", "unknown kernel '" + kernel + "'", "use \"recombination\", \"merge-split\" or \"flip\"");
+  constexpr std::int64_t kMax = std::int64_t{1} << 50;
+  spec.chains = static_cast<std::size_t>(s.integer("chains", 4, 1, 100'000));
+  spec.steps = static_cast<std::uint64_t>(s.integer("steps", 1000, 1, kMax));
+  spec.burn_in = static_cast<std::uint64_t>(s.integer("burn_in", 0, 0, kMax));
+  spec.record_every = static_cast<std::uint64_t>(s.integer("record_every", 1, 1, kMax));
+  spec.seed = static_cast<std::uint64_t>(s.integer("seed", 1, 0, std::numeric_limits<std::int64_t>::max()));
+  spec.gamma = s.number("gamma", 0.0, 0.0, 10.0);
+  spec.beta = s.number("beta", 1.0, 0.0, 1e6);
+  if (spec.burn_in >= spec.steps)
+    s.fail("burn_in", "burn_in (" + std::to_string(spec.burn_in) + ") must be below steps (" +
+                          std::to_string(spec.steps) + ")", "lower burn_in or raise steps");
+  s.reject_unknown();
+}
+
+}  // namespace
+
+const char* kernel_name(KernelKind kind) noexcept {
+  switch (kind) {
+    case KernelKind::recombination: return "recombination";
+    case KernelKind::merge_split: return "merge-split";
+    case KernelKind::flip: return "flip";
+  }
+  return "?";
+}
+
+JobSpec parse_job_text(std::string_view text, const std::string& source) {
+  JobSpec job;
+  job.path = source;
+  job.text = std::string(text);
+  toml::table root;
+  try {
+    root = toml::parse(text, source);
+  } catch (const toml::parse_error& e) {
+    throw InputError({source, static_cast<std::size_t>(e.source().begin.line), ""},
+                     "not valid TOML: " + std::string(e.description()), "fix the syntax at that line");
+  }
+  const std::string base = fs::path(source).parent_path().string();
+  Section top(root, "", job.path);
+  read_map(top, job, base);
+
+  const toml::table* districts = top.table("districts");
+  if (!districts) top.fail("districts", "section [districts] is missing", "add [districts] with count = K");
+  Section d(*districts, "districts", job.path);
+  job.districts = static_cast<std::size_t>(d.integer("count", 0, 1, 65'534, true));
+  const std::string start = d.string("start", "random");
+  job.start = start == "random" ? start : resolve(base, start);
+  d.reject_unknown();
+
+  read_rules(top, job);
+  read_sampler(top, job);
+
+  if (const toml::table* out = top.table("output")) {
+    Section o(*out, "output", job.path);
+    job.output.dir = resolve(base, o.string("dir", ""));
+    job.output.checkpoint_seconds = o.number("checkpoint_seconds", 300.0, 1.0, 1e7);
+    o.reject_unknown();
+  }
+  if (const toml::table* v = top.table("verdict")) {
+    Section s(*v, "verdict", job.path);
+    job.verdict.rhat_max = s.number("rhat_max", 1.01, 1.0, 10.0);
+    job.verdict.ess_min = s.number("ess_min", 400.0, 1.0, 1e12);
+    s.reject_unknown();
+  }
+  if (top.has("tempering")) {
+    top.get("tempering");
+    top.fail("tempering", "parallel tempering is not yet available in this version", "remove the [tempering] section");
+  }
+  top.reject_unknown();
+  return job;
+}
+
+JobSpec load_job(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError({path, 0, ""}, "cannot open the job file", "check the path");
+  std::ostringstream text;
+  text << in.rdbuf();
+  if (text.str().find_first_not_of(" \t\r\n") == std::string::npos)
+    throw InputError({path, 0, ""}, "the job file is empty", "see docs/jobs.md for a complete example");
+  return parse_job_text(text.str(), path);
+}
+
+}  // namespace planmill
