@@ -1,0 +1,148 @@
+// The job file parser: a complete file round-trips into JobSpec; every kind of mistake is an
+// InputError naming the file, the key and its line.
+#include <gtest/gtest.h>
+
+#include <filesystem>
+#include <fstream>
+
+#include "planmill/base/error.hpp"
+#include "planmill/job/job.hpp"
+
+namespace planmill {
+namespace {
+
+const char* kGood = R"(# a complete job
+[map]
+units = "units.csv"
+adjacency = "adj.csv"
+id = "unit"
+population = "pop"
+county = "county"
+groups = ["grp"]
+[[map.elections]]
+name = "gov"
+parties = ["A", "B"]
+columns = ["gov_a", "gov_b"]
+
+[districts]
+count = 20
+
+[rules]
+population_deviation = 0.02
+county_splits_max = 5
+[rules.weights]
+cut_edges = 0.5
+[[rules.group_share]]
+group = "grp"
+threshold = 0.5
+weight = 1.5
+
+[sampler]
+kernel = "merge-split"
+chains = 8
+steps = 5000
+burn_in = 1000
+record_every = 5
+seed = 42
+gamma = 0.0
+beta = 2.0
+
+[output]
+dir = "../runs/x"
+checkpoint_seconds = 60
+
+[verdict]
+rhat_max = 1.05
+ess_min = 200
+)";
+
+TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
+  const JobSpec job = parse_job_text(kGood, "jobs/demo/job.toml");
+  EXPECT_EQ(job.map.units_path, "jobs/demo/units.csv");
+  EXPECT_EQ(job.map.adjacency_path, "jobs/demo/adj.csv");
+  EXPECT_EQ(job.map.id_column, "unit");
+  EXPECT_EQ(job.map.county_column, "county");
+  ASSERT_EQ(job.map.elections.size(), 1u);
+  EXPECT_EQ(job.map.elections[0].columns[1], "gov_b");
+  EXPECT_EQ(job.districts, 20u);
+  EXPECT_DOUBLE_EQ(job.rules.population_deviation, 0.02);
+  EXPECT_EQ(job.rules.county_splits_max, 5);
+  EXPECT_DOUBLE_EQ(job.rules.cut_edges_weight, 0.5);
+  ASSERT_EQ(job.rules.group_share.size(), 1u);
+  EXPECT_DOUBLE_EQ(job.rules.group_share[0].weight, 1.5);
+  EXPECT_EQ(job.sampler.kernel, KernelKind::merge_split);
+  EXPECT_EQ(job.sampler.chains, 8u);
+  EXPECT_EQ(job.sampler.steps, 5000u);
+  EXPECT_EQ(job.sampler.record_every, 5u);
+  EXPECT_EQ(job.sampler.seed, 42u);
+  EXPECT_DOUBLE_EQ(job.sampler.beta, 2.0);
+  EXPECT_EQ(job.output.dir, "jobs/runs/x");
+  EXPECT_DOUBLE_EQ(job.verdict.ess_min, 200.0);
+  EXPECT_EQ(job.text, kGood);
+}
+
+struct BadJob {
+  const char* name;
+  std::string find;     // text in kGood to replace
+  std::string replace;  // replacement
+  std::string expect;   // must appear in the message (besides the file name)
+};
+
+class BadJobFile : public ::testing::TestWithParam<BadJob> {};
+
+TEST_P(BadJobFile, IsAnInputErrorNamingFileKeyAndLine) {
+  const BadJob& c = GetParam();
+  std::string text = kGood;
+  const auto at = text.find(c.find);
+  ASSERT_NE(at, std::string::npos) << c.find;
+  text.replace(at, c.find.size(), c.replace);
+  try {
+    (void)parse_job_text(text, "bad.toml");
+    FAIL() << "accepted: " << c.name;
+  } catch (const InputError& e) {
+    const std::string message = e.what();
+    EXPECT_NE(message.find("bad.toml:"), std::string::npos) << message;
+    EXPECT_GT(e.where().line, 0u) << message;
+    EXPECT_NE(message.find(c.expect), std::string::npos) << message;
+  }
+}
+
+INSTANTIATE_TEST_SUITE_P(
+    Cases, BadJobFile,
+    ::testing::Values(
+        BadJob{"unknown key", "count = 20", "count = 20\ncolour = 3", "'districts.colour': unknown key"},
+        BadJob{"unknown section", "[verdict]", "[verdikt]", "'verdikt': unknown key"},
+        BadJob{"wrong type", "count = 20", "count = \"20\"", "'districts.count': must be a whole number"},
+        BadJob{"out of range", "population_deviation = 0.02", "population_deviation = 1.5",
+               "'rules.population_deviation'"},
+        BadJob{"negative chains", "chains = 8", "chains = -1", "'sampler.chains'"},
+        BadJob{"unknown kernel", "\"merge-split\"", "\"annealing\"", "unknown kernel"},
+        BadJob{"missing id", "id = \"unit\"\n", "", "'map.id': required key is missing"},
+        BadJob{"burn-in too long", "burn_in = 1000", "burn_in = 5000", "'sampler.burn_in'"},
+        BadJob{"group not in map", "group = \"grp\"", "group = \"other\"", "not listed in map.groups"},
+        BadJob{"party/column mismatch", "columns = [\"gov_a\", \"gov_b\"]", "columns = [\"gov_a\"]",
+               "'map.elections.columns'"},
+        BadJob{"syntax", "count = 20", "count = = 20", "not valid TOML"},
+        BadJob{"tempering not yet", "[verdict]", "[tempering]\nrungs = 4\n[verdict]", "not yet available"}),
+    [](const auto& info) {
+      std::string name = info.param.name;
+      for (char& ch : name)
+        if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
+      return name;
+    });
+
+TEST(JobFile, MissingAndEmptyFilesAreNamed) {
+  EXPECT_THROW((void)load_job("does/not/exist.toml"), InputError);
+  const auto path = std::filesystem::temp_directory_path() / "planmill_empty_job.toml";
+  std::ofstream(path) << "\n  \n";
+  try {
+    (void)load_job(path.string());
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_NE(std::string(e.what()).find("empty"), std::string::npos);
+  }
+  std::filesystem::remove(path);
+}
+
+}  // namespace
+}  // namespace planmill
