@@ -221,6 +221,7 @@ void read_sampler(Section& top, JobSpec& job) {
   spec.seed = static_cast<std::uint64_t>(s.integer("seed", 1, 0, std::numeric_limits<std::int64_t>::max()));
   spec.gamma = s.number("gamma", 0.0, 0.0, 10.0);
   spec.beta = s.number("beta", 1.0, 0.0, 1e6);
+  spec.balanced_cut_bound = static_cast<std::size_t>(s.integer("balanced_cut_bound", 0, 0, 1'000'000));
   if (spec.burn_in >= spec.steps)
     s.fail("burn_in", "burn_in (" + std::to_string(spec.burn_in) + ") must be below steps (" +
                           std::to_string(spec.steps) + ")", "lower burn_in or raise steps");

@@ -35,6 +35,7 @@ struct SamplerSpec {
   std::uint64_t seed = 1;
   double gamma = 0.0;  // merge-split target exponent on spanning-tree counts
   double beta = 1.0;   // inverse temperature on the energy
+  std::size_t balanced_cut_bound = 0;  // merge-split M; 0 = |U| - 1 (always exact)
 };
 
 struct OutputSpec {
