@@ -1,0 +1,69 @@
+#pragma once
+// Region: the subgraph induced by a set of units (one or two districts, or any unit list), stored
+// as a local CSR adjacency over local indices 0..size()-1.
+// A Region is built again and again in a chain's hot loop: once its buffers have grown to the
+// largest region seen, build() allocates nothing.
+#include <cstdint>
+#include <limits>
+#include <span>
+#include <vector>
+
+#include "planmill/base/ids.hpp"
+#include "planmill/graph/unit_graph.hpp"
+#include "planmill/plan/plan.hpp"
+
+namespace planmill {
+
+class Region {
+ public:
+  static constexpr std::uint32_t kNotInRegion = std::numeric_limits<std::uint32_t>::max();
+
+  // The units of districts a and b (a == b: one district), local order = increasing unit index.
+  // Scans the plan's assignment once, O(units of the graph); the rest is O(size + edges).
+  void build(const Plan& plan, DistrictIndex a, DistrictIndex b);
+  // The given units, local index i = units[i]. Throws std::invalid_argument on a repeated or
+  // out-of-range unit.
+  void build(const UnitGraph& graph, std::span<const UnitIndex> units);
+
+  [[nodiscard]] std::uint32_t size() const noexcept {
+    return static_cast<std::uint32_t>(global_.size());
+  }
+  // Each undirected edge inside the region counted once.
+  [[nodiscard]] std::size_t edge_count() const noexcept { return adjacency_.size() / 2; }
+  [[nodiscard]] UnitIndex global(std::uint32_t local) const noexcept { return global_[local]; }
+  [[nodiscard]] std::span<const UnitIndex> units() const noexcept { return global_; }
+  // Local index of a global unit, or kNotInRegion.
+  [[nodiscard]] std::uint32_t local_of(UnitIndex unit) const noexcept { return local_[unit]; }
+
+  [[nodiscard]] std::span<const std::uint32_t> neighbors(std::uint32_t local) const noexcept {
+    return {adjacency_.data() + offsets_[local], adjacency_.data() + offsets_[local + 1]};
+  }
+  [[nodiscard]] std::uint32_t degree(std::uint32_t local) const noexcept {
+    return offsets_[local + 1] - offsets_[local];
+  }
+  [[nodiscard]] std::span<const std::uint32_t> offsets() const noexcept { return offsets_; }
+  [[nodiscard]] std::span<const std::uint32_t> adjacency() const noexcept { return adjacency_; }
+
+  [[nodiscard]] std::int64_t population(std::uint32_t local) const noexcept {
+    return population_[local];
+  }
+  [[nodiscard]] std::span<const std::int64_t> populations() const noexcept { return population_; }
+  [[nodiscard]] std::int64_t total_population() const noexcept { return total_population_; }
+
+  // Bytes reserved by the buffers (for tests that check nothing grows).
+  [[nodiscard]] std::size_t capacity_bytes() const noexcept;
+
+ private:
+  void prepare_map(const UnitGraph& graph);
+  void fill_adjacency(const UnitGraph& graph);
+
+  const UnitGraph* graph_ = nullptr;
+  std::vector<std::uint32_t> local_;  // per global unit; kNotInRegion outside the region
+  std::vector<UnitIndex> global_;
+  std::vector<std::uint32_t> offsets_;
+  std::vector<std::uint32_t> adjacency_;
+  std::vector<std::int64_t> population_;
+  std::int64_t total_population_ = 0;
+};
+
+}  // namespace planmill

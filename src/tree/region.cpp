@@ -1,0 +1,71 @@
+// Region construction: global->local map sized once per graph, only touched entries reset.
+#include "planmill/tree/region.hpp"
+
+#include <stdexcept>
+
+namespace planmill {
+
+void Region::prepare_map(const UnitGraph& graph) {
+  if (graph_ != &graph || local_.size() != graph.unit_count()) {
+    local_.assign(graph.unit_count(), kNotInRegion);
+    graph_ = &graph;
+  } else {
+    for (const UnitIndex u : global_) local_[u] = kNotInRegion;
+  }
+  global_.clear();
+}
+
+void Region::build(const Plan& plan, DistrictIndex a, DistrictIndex b) {
+  const UnitGraph& graph = plan.graph();
+  prepare_map(graph);
+  const std::span<const DistrictIndex> district = plan.assignment();
+  for (UnitIndex u = 0; u < district.size(); ++u) {
+    const DistrictIndex d = district[u];
+    if (d == a || d == b) {
+      local_[u] = static_cast<std::uint32_t>(global_.size());
+      global_.push_back(u);
+    }
+  }
+  fill_adjacency(graph);
+}
+
+void Region::build(const UnitGraph& graph, std::span<const UnitIndex> units) {
+  prepare_map(graph);
+  for (const UnitIndex u : units) {
+    if (u >= graph.unit_count() || local_[u] != kNotInRegion) {
+      for (const UnitIndex v : global_) local_[v] = kNotInRegion;
+      global_.clear();
+      throw std::invalid_argument("Region::build: unit index repeated or out of range");
+    }
+    local_[u] = static_cast<std::uint32_t>(global_.size());
+    global_.push_back(u);
+  }
+  fill_adjacency(graph);
+}
+
+void Region::fill_adjacency(const UnitGraph& graph) {
+  offsets_.clear();
+  adjacency_.clear();
+  population_.clear();
+  total_population_ = 0;
+  offsets_.push_back(0);
+  for (const UnitIndex u : global_) {
+    for (const UnitIndex w : graph.neighbors(u)) {
+      const std::uint32_t local = local_[w];
+      if (local != kNotInRegion) adjacency_.push_back(local);
+    }
+    offsets_.push_back(static_cast<std::uint32_t>(adjacency_.size()));
+    const std::int64_t pop = graph.population(u);
+    population_.push_back(pop);
+    total_population_ += pop;
+  }
+}
+
+std::size_t Region::capacity_bytes() const noexcept {
+  return local_.capacity() * sizeof(std::uint32_t) + global_.capacity() * sizeof(UnitIndex) +
+         offsets_.capacity() * sizeof(std::uint32_t) +
+         adjacency_.capacity() * sizeof(std::uint32_t) +
+         population_.capacity() * sizeof(std::int64_t);
+}
+
+}  // namespace planmill

@@ -1,0 +1,111 @@
+// Wilson's algorithm with the usual "last exit" bookkeeping: next_[u] holds the step last taken
+// from u, so retracing next_ from the start of a walk follows exactly its loop erasure.
+#include "planmill/tree/spanning_tree.hpp"
+
+#include <algorithm>
+#include <stdexcept>
+
+namespace planmill {
+
+namespace {
+
+bool connected(const Region& region, std::vector<std::uint8_t>& seen,
+               std::vector<std::uint32_t>& queue) {
+  const std::uint32_t n = region.size();
+  seen.assign(n, 0);
+  queue.clear();
+  queue.push_back(0);
+  seen[0] = 1;
+  for (std::size_t head = 0; head < queue.size(); ++head) {
+    for (const std::uint32_t w : region.neighbors(queue[head])) {
+      if (!seen[w]) {
+        seen[w] = 1;
+        queue.push_back(w);
+      }
+    }
+  }
+  return queue.size() == n;
+}
+
+}  // namespace
+
+void SpanningTreeSampler::sample(const Region& region, Rng& rng) {
+  if (region.size() == 0) throw std::invalid_argument("SpanningTreeSampler: empty region");
+  sample(region, rng, uniform_below(rng, region.size()));
+}
+
+void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t root) {
+  const std::uint32_t n = region.size();
+  if (root >= n) throw std::invalid_argument("SpanningTreeSampler: root outside the region");
+  // A walk on a disconnected region would never end; the check costs one BFS.
+  if (!connected(region, in_tree_, queue_)) {
+    throw std::invalid_argument("SpanningTreeSampler: region is not connected");
+  }
+  in_tree_.assign(n, 0);
+  next_.resize(n);
+  parent_.resize(n);
+  order_.clear();
+
+  const std::span<const std::uint32_t> offsets = region.offsets();
+  const std::span<const std::uint32_t> adjacency = region.adjacency();
+  std::uint64_t steps = 0;
+  root_ = root;
+  in_tree_[root] = 1;
+  parent_[root] = kNoParent;
+  order_.push_back(root);
+  for (std::uint32_t start = 0; start < n; ++start) {
+    std::uint32_t u = start;
+    while (!in_tree_[u]) {
+      const std::uint32_t begin = offsets[u];
+      const std::uint32_t step = adjacency[begin + uniform_below(rng, offsets[u + 1] - begin)];
+      next_[u] = step;
+      u = step;
+      ++steps;
+    }
+    // Attach the loop-erased path; store it reversed so that parents precede children.
+    const std::size_t first = order_.size();
+    for (u = start; !in_tree_[u]; u = next_[u]) {
+      in_tree_[u] = 1;
+      parent_[u] = next_[u];
+      order_.push_back(u);
+    }
+    std::reverse(order_.begin() + static_cast<std::ptrdiff_t>(first), order_.end());
+  }
+  walk_steps_ = steps;
+
+  const std::span<const std::int64_t> pop = region.populations();
+  subtree_.assign(pop.begin(), pop.end());
+  for (std::uint32_t k = n - 1; k > 0; --k) {
+    const std::uint32_t v = order_[k];
+    subtree_[parent_[v]] += subtree_[v];
+  }
+  total_ = region.total_population();
+}
+
+std::span<const std::uint32_t> SpanningTreeSampler::balanced_cuts(std::int64_t lo,
+                                                                  std::int64_t hi) {
+  cuts_.clear();
+  const std::uint32_t n = size();
+  for (std::uint32_t v = 0; v < n; ++v) {
+    if (v == root_) continue;
+    const std::int64_t below = subtree_[v], above = total_ - below;
+    if (below >= lo && below <= hi && above >= lo && above <= hi) cuts_.push_back(v);
+  }
+  return cuts_;
+}
+
+void SpanningTreeSampler::mark_side(std::uint32_t child, std::span<std::uint8_t> out) const noexcept {
+  out[root_] = child == root_ ? 1 : 0;
+  for (std::size_t k = 1; k < order_.size(); ++k) {
+    const std::uint32_t v = order_[k];
+    out[v] = v == child ? 1 : out[parent_[v]];
+  }
+}
+
+std::size_t SpanningTreeSampler::capacity_bytes() const noexcept {
+  return in_tree_.capacity() + (next_.capacity() + parent_.capacity() + order_.capacity() +
+                                cuts_.capacity() + queue_.capacity()) * sizeof(std::uint32_t) +
+         subtree_.capacity() * sizeof(std::int64_t);
+}
+
+}  // namespace planmill

@@ -1,0 +1,72 @@
+// Hot-loop promise: once warmed up, Region::build, SpanningTreeSampler::sample and the tree
+// queries allocate nothing. Counted by replacing the global operator new in this test program.
+#include <gtest/gtest.h>
+
+#include <atomic>
+#include <cstdlib>
+#include <new>
+#include <numeric>
+#include <vector>
+
+#include "planmill/base/random.hpp"
+#include "planmill/plan/plan.hpp"
+#include "planmill/tree/region.hpp"
+#include "planmill/tree/spanning_tree.hpp"
+#include "small_graphs.hpp"
+
+namespace {
+std::atomic<std::size_t> g_allocations{0};
+}  // namespace
+
+void* operator new(std::size_t size) {
+  g_allocations.fetch_add(1, std::memory_order_relaxed);
+  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
+  throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+
+namespace planmill::test {
+namespace {
+
+TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
+  // 12x12 grid in four 6x6 districts; the region is the top pair or the bottom pair (72 units).
+  const UnitGraph g = graph_from_edges(144, grid_edges(12, 12));
+  std::vector<DistrictIndex> d(144);
+  for (std::size_t u = 0; u < 144; ++u) d[u] = static_cast<DistrictIndex>(2 * (u / 72) + (u % 12) / 6);
+  const Plan plan(g, 4, d);
+  Region region;
+  SpanningTreeSampler sampler;
+  Rng rng = make_stream(81, 0);
+  std::vector<std::uint8_t> side(144);
+  region.build(plan, 0, 1);
+  sampler.sample(region, rng);  // warm-up grows the buffers
+  (void)sampler.balanced_cuts(0, 1000);
+  const std::size_t region_bytes = region.capacity_bytes();
+  const std::size_t sampler_bytes = sampler.capacity_bytes();
+
+  const std::size_t before = g_allocations.load();
+  std::size_t cuts = 0;
+  for (int i = 0; i < 200; ++i) {
+    region.build(plan, static_cast<DistrictIndex>(2 * (i % 2)), static_cast<DistrictIndex>(2 * (i % 2) + 1));
+    sampler.sample(region, rng);
+    const auto balanced = sampler.balanced_cuts(30, 42);
+    cuts += balanced.size();
+    if (!balanced.empty()) sampler.mark_side(balanced[0], side);
+  }
+  EXPECT_EQ(g_allocations.load() - before, 0U);
+  EXPECT_EQ(region.capacity_bytes(), region_bytes);
+  EXPECT_EQ(sampler.capacity_bytes(), sampler_bytes);
+  EXPECT_GT(cuts, 0U);  // the loop did reach the cut code
+}
+
+TEST(NoAllocation, CounterSeesAllocations) {
+  // The counter itself works (otherwise the test above proves nothing).
+  const std::size_t before = g_allocations.load();
+  auto* v = new std::vector<int>(100);
+  delete v;
+  EXPECT_GE(g_allocations.load() - before, 2U);
+}
+
+}  // namespace
+}  // namespace planmill::test
