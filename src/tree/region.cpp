@@ -29,6 +29,27 @@ void Region::build(const Plan& plan, DistrictIndex a, DistrictIndex b) {
   fill_adjacency(graph);
 }
 
+void Region::build_from_seeds(const Plan& plan, UnitIndex seed_a, UnitIndex seed_b) {
+  const UnitGraph& graph = plan.graph();
+  prepare_map(graph);
+  const DistrictIndex a = plan.district_of(seed_a), b = plan.district_of(seed_b);
+  auto add = [&](UnitIndex u) {
+    local_[u] = static_cast<std::uint32_t>(global_.size());
+    global_.push_back(u);
+  };
+  add(seed_a);
+  if (seed_b != seed_a) add(seed_b);
+  // Breadth-first through units labelled a or b; global_ doubles as the queue.
+  for (std::size_t head = 0; head < global_.size(); ++head) {
+    for (const UnitIndex w : graph.neighbors(global_[head])) {
+      if (local_[w] != kNotInRegion) continue;
+      const DistrictIndex d = plan.district_of(w);
+      if (d == a || d == b) add(w);
+    }
+  }
+  fill_adjacency(graph);
+}
+
 void Region::build(const UnitGraph& graph, std::span<const UnitIndex> units) {
   prepare_map(graph);
   for (const UnitIndex u : units) {

@@ -48,7 +48,12 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
   const std::size_t before = g_allocations.load();
   std::size_t cuts = 0;
   for (int i = 0; i < 200; ++i) {
-    region.build(plan, static_cast<DistrictIndex>(2 * (i % 2)), static_cast<DistrictIndex>(2 * (i % 2) + 1));
+    if (i % 3 == 0) {
+      region.build_from_seeds(plan, i % 2 == 0 ? 0 : 143, i % 2 == 0 ? 6 : 137);
+    } else {
+      region.build(plan, static_cast<DistrictIndex>(2 * (i % 2)),
+                   static_cast<DistrictIndex>(2 * (i % 2) + 1));
+    }
     sampler.sample(region, rng);
     const auto balanced = sampler.balanced_cuts(30, 42);
     cuts += balanced.size();

@@ -61,6 +61,29 @@ TEST(Region, TwoDistrictsOfAPlan) {
   expect_induced(g, region, diagonal);
 }
 
+TEST(Region, GrownFromSeedsEqualsTheScannedRegion) {
+  const UnitGraph g = graph_from_edges(36, grid_edges(6, 6));
+  // Six districts of 2 rows x 3 columns.
+  std::vector<DistrictIndex> d(36);
+  for (std::size_t u = 0; u < 36; ++u) d[u] = static_cast<DistrictIndex>(2 * ((u / 6) / 2) + (u % 6) / 3);
+  const Plan plan(g, 6, d);
+  Region scanned, grown;
+  for (UnitIndex u = 0; u < 36; ++u) {
+    for (const UnitIndex w : g.neighbors(u)) {
+      scanned.build(plan, plan.district_of(u), plan.district_of(w));
+      grown.build_from_seeds(plan, u, w);
+      std::vector<UnitIndex> a(scanned.units().begin(), scanned.units().end());
+      std::vector<UnitIndex> b(grown.units().begin(), grown.units().end());
+      std::sort(b.begin(), b.end());
+      ASSERT_EQ(a, b) << "seeds " << u << ", " << w;
+      expect_induced(g, grown, grown.units());
+      EXPECT_EQ(grown.total_population(), scanned.total_population());
+    }
+  }
+  grown.build_from_seeds(plan, 7, 7);  // one district
+  EXPECT_EQ(grown.size(), 6U);
+}
+
 TEST(Region, UnitListInGivenOrderAndBadInput) {
   const UnitGraph g = graph_from_edges(10, petersen_edges());
   Region region;

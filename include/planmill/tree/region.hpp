@@ -21,6 +21,11 @@ class Region {
   // The units of districts a and b (a == b: one district), local order = increasing unit index.
   // Scans the plan's assignment once, O(units of the graph); the rest is O(size + edges).
   void build(const Plan& plan, DistrictIndex a, DistrictIndex b);
+  // The same region grown from one unit of each district (e.g. the ends of a cut edge; the two
+  // may be equal), local order = breadth-first order. Costs O(size + edges of the region) only,
+  // but reaches just the units connected to the seeds inside the two districts: for plans with
+  // connected districts this is the whole pair.
+  void build_from_seeds(const Plan& plan, UnitIndex seed_a, UnitIndex seed_b);
   // The given units, local index i = units[i]. Throws std::invalid_argument on a repeated or
   // out-of-range unit.
   void build(const UnitGraph& graph, std::span<const UnitIndex> units);
