@@ -1,0 +1,115 @@
+#pragma once
+// Rules: hard limits a plan must meet (population bounds, an optional county-split limit) and
+// weighted soft terms whose sum is the energy J(P) the samplers weigh by exp(-beta J).
+// RuleTracker keeps every rule's state for one Plan up to date as units move, in
+// O(degree + #terms) per move and without allocating, so kernels can ask "is this plan
+// allowed, what is its energy" at every step. Contiguity is not a rule here: the kernels keep
+// it (recombination by construction, flips through Plan::is_connected).
+#include <cstddef>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "planmill/base/ids.hpp"
+#include "planmill/graph/unit_graph.hpp"
+#include "planmill/plan/plan.hpp"
+
+namespace planmill {
+
+struct RulesSpec;  // job/job.hpp
+
+// Soft reward: the energy falls by `weight` for each district whose share of group `column`
+// (count / district population) is at least `threshold`.
+struct GroupShareTerm {
+  std::size_t column;  // count column of the UnitGraph
+  double threshold;
+  double weight;
+};
+
+struct RuleSet {
+  double population_deviation = 0.05;            // hard: pop in [(1-eps) ideal, (1+eps) ideal]
+  std::optional<std::size_t> county_splits_max;  // hard: counties meeting >= 2 districts
+  double cut_edges_weight = 0.0;                  // soft
+  double county_splits_weight = 0.0;              // soft
+  std::vector<GroupShareTerm> group_share;        // soft
+};
+
+// The job file's rules resolved against a map: group names become count columns. Throws
+// InputError (keyed "rules.<key>", file `job_file`) when a rule needs data the map lacks.
+[[nodiscard]] RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph,
+                                    const std::string& job_file = {});
+
+// Integer population bounds of a district: [ceil((1-eps) ideal), floor((1+eps) ideal)] with
+// ideal = total / k. Products within 1e-9 (relative) of an integer count as that integer, so
+// eps = 0.05 and ideal 100,000 give exactly [95,000, 105,000] despite binary rounding of 0.95.
+struct PopulationBounds {
+  std::int64_t min;
+  std::int64_t max;
+};
+[[nodiscard]] PopulationBounds population_bounds(std::int64_t total_population,
+                                                 std::size_t district_count, double deviation);
+
+class RuleTracker {
+ public:
+  // Throws std::invalid_argument if the rules do not fit the plan's graph (a county rule on a map
+  // without counties, a group column out of range, a deviation outside [0, 1)).
+  RuleTracker(const Plan& plan, const RuleSet& rules);
+
+  // plan.move(u, to) and the matching update of every rule. No allocation.
+  void move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept;
+  // Recomputes everything from the plan (after Plan::assign or any change made behind our back).
+  void reset(const Plan& plan);
+
+  // J(P) = w_cut * cut edges + w_county * split counties - sum_t w_t * (districts meeting t).
+  [[nodiscard]] double energy(const Plan& plan) const noexcept;
+
+  // Per-term values, for observables.
+  [[nodiscard]] static std::size_t cut_edges(const Plan& plan) noexcept {
+    return plan.cut_edge_count();
+  }
+  // Counties meeting two or more districts.
+  [[nodiscard]] std::size_t county_splits() const noexcept { return splits_; }
+  [[nodiscard]] std::size_t group_term_count() const noexcept { return rules_.group_share.size(); }
+  // Districts meeting group term t's threshold.
+  [[nodiscard]] std::size_t group_districts(std::size_t term) const noexcept {
+    return group_met_count_[term];
+  }
+  [[nodiscard]] bool group_term_met(std::size_t term, DistrictIndex d) const noexcept {
+    return group_met_[term * k_ + d] != 0;
+  }
+
+  [[nodiscard]] std::int64_t population_min() const noexcept { return bounds_.min; }
+  [[nodiscard]] std::int64_t population_max() const noexcept { return bounds_.max; }
+  [[nodiscard]] bool population_ok(const Plan& plan, DistrictIndex d) const noexcept {
+    const std::int64_t p = plan.population(d);
+    return p >= bounds_.min && p <= bounds_.max;
+  }
+  // Population of every district and the county-split limit (contiguity is the kernels' job).
+  [[nodiscard]] bool hard_rules_ok(const Plan& plan) const noexcept;
+  // Human-readable list of broken hard rules ("" if none), districts numbered 1..k.
+  [[nodiscard]] std::string describe_violations(const Plan& plan) const;
+
+  [[nodiscard]] const RuleSet& rules() const noexcept { return rules_; }
+
+ private:
+  void update_group_terms(const Plan& plan, DistrictIndex d) noexcept;
+  [[nodiscard]] static bool meets(const Plan& plan, const GroupShareTerm& term,
+                                  DistrictIndex d) noexcept;
+
+  RuleSet rules_;
+  std::size_t k_;
+  PopulationBounds bounds_;
+  // Counties: units of county c in district d at [c * k + d], districts present per county.
+  bool track_counties_ = false;
+  const std::uint32_t* county_of_ = nullptr;
+  std::size_t county_count_ = 0;
+  std::vector<std::uint32_t> county_district_units_;
+  std::vector<std::uint32_t> county_district_count_;
+  std::size_t splits_ = 0;
+  // Group terms: term t met in district d at [t * k + d]; districts meeting each term.
+  std::vector<std::uint8_t> group_met_;
+  std::vector<std::size_t> group_met_count_;
+};
+
+}  // namespace planmill

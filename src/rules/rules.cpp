@@ -1,0 +1,186 @@
+#include "planmill/rules/rules.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+
+#include "planmill/base/error.hpp"
+#include "planmill/job/job.hpp"
+
+namespace planmill {
+namespace {
+
+// 1234567 -> "1,234,567".
+std::string with_commas(std::int64_t value) {
+  std::string digits = std::to_string(value < 0 ? -value : value);
+  std::string out;
+  for (std::size_t i = 0; i < digits.size(); ++i) {
+    if (i > 0 && (digits.size() - i) % 3 == 0) out += ',';
+    out += digits[i];
+  }
+  return value < 0 ? "-" + out : out;
+}
+
+std::string percent(double fraction) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%+.2f%%", 100.0 * fraction);
+  return buf;
+}
+
+// x, or the integer next to it when x is that integer up to rounding of the inputs.
+long double snap(long double x) {
+  const long double r = std::round(x);
+  return std::fabs(x - r) <= 1e-9L * std::max(1.0L, std::fabs(x)) ? r : x;
+}
+
+}  // namespace
+
+PopulationBounds population_bounds(std::int64_t total_population, std::size_t district_count,
+                                   double deviation) {
+  const long double ideal =
+      static_cast<long double>(total_population) / static_cast<long double>(district_count);
+  const long double eps = deviation;
+  const long double low = snap((1.0L - eps) * ideal), high = snap((1.0L + eps) * ideal);
+  return {static_cast<std::int64_t>(std::ceil(low)), static_cast<std::int64_t>(std::floor(high))};
+}
+
+RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::string& job_file) {
+  RuleSet rules;
+  rules.population_deviation = spec.population_deviation;
+  if (spec.county_splits_max >= 0)
+    rules.county_splits_max = static_cast<std::size_t>(spec.county_splits_max);
+  rules.cut_edges_weight = spec.cut_edges_weight;
+  rules.county_splits_weight = spec.county_splits_weight;
+  const char* remedy = "name the county column as map.county, or drop the county rules";
+  if (rules.county_splits_max && !graph.has_counties())
+    throw InputError({job_file, 0, "rules.county_splits_max"},
+                     "a county-split limit needs county codes, but the map has none", remedy);
+  if (rules.county_splits_weight != 0.0 && !graph.has_counties())
+    throw InputError({job_file, 0, "rules.weights.county_splits"},
+                     "a county-split weight needs county codes, but the map has none", remedy);
+  for (const GroupShareSpec& g : spec.group_share) {
+    const std::optional<std::size_t> column = graph.find_count_column(g.group);
+    if (!column)
+      throw InputError({job_file, 0, "rules.group_share"},
+                       "group '" + g.group + "' is not a count column of the map",
+                       "list it in map.groups and check the unit table's header");
+    if (!(g.threshold >= 0.0 && g.threshold <= 1.0))
+      throw InputError({job_file, 0, "rules.group_share"},
+                       "threshold of group '" + g.group + "' is outside [0, 1]",
+                       "give the share as a fraction, e.g. 0.5");
+    rules.group_share.push_back({*column, g.threshold, g.weight});
+  }
+  return rules;
+}
+
+RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
+    : rules_(rules), k_(plan.district_count()) {
+  const UnitGraph& g = plan.graph();
+  if (!(rules_.population_deviation >= 0.0 && rules_.population_deviation < 1.0))
+    throw std::invalid_argument("population deviation must lie in [0, 1)");
+  for (const GroupShareTerm& t : rules_.group_share)
+    if (t.column >= g.count_column_count())
+      throw std::invalid_argument("group-share term names count column " + std::to_string(t.column) +
+                                  ", the map has " + std::to_string(g.count_column_count()));
+  track_counties_ = rules_.county_splits_max.has_value() || rules_.county_splits_weight != 0.0;
+  if (track_counties_ && !g.has_counties())
+    throw std::invalid_argument("county rules need county codes, the map has none");
+  // Split counts are cheap and an observable, so track them whenever the map has counties.
+  track_counties_ = g.has_counties();
+  if (track_counties_) {
+    county_of_ = g.counties().code.data();
+    county_count_ = g.counties().names.size();
+    for (std::uint32_t c : g.counties().code) county_count_ = std::max<std::size_t>(county_count_, c + 1);
+  }
+  bounds_ = population_bounds(g.total_population(), k_, rules_.population_deviation);
+  reset(plan);
+}
+
+void RuleTracker::reset(const Plan& plan) {
+  if (track_counties_) {
+    county_district_units_.assign(county_count_ * k_, 0);
+    county_district_count_.assign(county_count_, 0);
+    splits_ = 0;
+    for (UnitIndex u = 0; u < plan.unit_count(); ++u) {
+      const std::size_t c = county_of_[u];
+      if (county_district_units_[c * k_ + plan.district_of(u)]++ == 0)
+        ++county_district_count_[c];
+    }
+    for (std::uint32_t n : county_district_count_) splits_ += n >= 2 ? 1 : 0;
+  }
+  group_met_.assign(rules_.group_share.size() * k_, 0);
+  group_met_count_.assign(rules_.group_share.size(), 0);
+  for (DistrictIndex d = 0; d < k_; ++d) update_group_terms(plan, d);
+}
+
+bool RuleTracker::meets(const Plan& plan, const GroupShareTerm& term, DistrictIndex d) noexcept {
+  const std::int64_t pop = plan.population(d);
+  if (pop <= 0) return false;
+  return plan.count(d, term.column) / static_cast<double>(pop) >= term.threshold;
+}
+
+void RuleTracker::update_group_terms(const Plan& plan, DistrictIndex d) noexcept {
+  for (std::size_t t = 0; t < rules_.group_share.size(); ++t) {
+    const std::uint8_t now = meets(plan, rules_.group_share[t], d) ? 1 : 0;
+    std::uint8_t& was = group_met_[t * k_ + d];
+    if (now != was) {
+      group_met_count_[t] = now ? group_met_count_[t] + 1 : group_met_count_[t] - 1;
+      was = now;
+    }
+  }
+}
+
+void RuleTracker::move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept {
+  const DistrictIndex from = plan.district_of(u);
+  if (from == to) return;
+  plan.move(u, to);
+  if (track_counties_) {
+    const std::size_t c = county_of_[u];
+    std::uint32_t& districts = county_district_count_[c];
+    if (--county_district_units_[c * k_ + from] == 0 && --districts == 1) --splits_;
+    if (county_district_units_[c * k_ + to]++ == 0 && ++districts == 2) ++splits_;
+  }
+  update_group_terms(plan, from);
+  update_group_terms(plan, to);
+}
+
+double RuleTracker::energy(const Plan& plan) const noexcept {
+  // Terms are integer counts times weights, so the sum is the same however we got here.
+  double j = rules_.cut_edges_weight * static_cast<double>(plan.cut_edge_count()) +
+             rules_.county_splits_weight * static_cast<double>(splits_);
+  for (std::size_t t = 0; t < rules_.group_share.size(); ++t)
+    j -= rules_.group_share[t].weight * static_cast<double>(group_met_count_[t]);
+  return j;
+}
+
+bool RuleTracker::hard_rules_ok(const Plan& plan) const noexcept {
+  for (DistrictIndex d = 0; d < k_; ++d)
+    if (!population_ok(plan, d)) return false;
+  return !rules_.county_splits_max || splits_ <= *rules_.county_splits_max;
+}
+
+std::string RuleTracker::describe_violations(const Plan& plan) const {
+  std::string text;
+  auto add = [&text](const std::string& item) { text += (text.empty() ? "" : "; ") + item; };
+  const double ideal = plan.ideal_population();
+  if (bounds_.min > bounds_.max)
+    add("no district population can meet the bounds: ideal " + with_commas(std::llround(ideal)) +
+        " with deviation " + percent(rules_.population_deviation).substr(1) +
+        " leaves no whole number between them; allow a larger deviation");
+  for (DistrictIndex d = 0; d < k_; ++d) {
+    const std::int64_t p = plan.population(d);
+    const std::string head = "district " + std::to_string(d + 1) + " has population " +
+                             with_commas(p) + " (" + percent((static_cast<double>(p) - ideal) / ideal) +
+                             " from ideal " + with_commas(std::llround(ideal)) + "), ";
+    if (p < bounds_.min)
+      add(head + with_commas(bounds_.min - p) + " below the lower bound " + with_commas(bounds_.min));
+    else if (p > bounds_.max)
+      add(head + with_commas(p - bounds_.max) + " above the upper bound " + with_commas(bounds_.max));
+  }
+  if (rules_.county_splits_max && splits_ > *rules_.county_splits_max)
+    add(std::to_string(splits_) + " counties are split, the limit is " +
+        std::to_string(*rules_.county_splits_max));
+  return text;
+}
+
+}  // namespace planmill
