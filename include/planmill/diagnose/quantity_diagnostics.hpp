@@ -1,0 +1,22 @@
+#pragma once
+// All diagnostics of one quantity in one pass (one sort of the draws shared by every rank-based
+// step), and the table row that `planmill diagnose` prints. Values agree with the single-purpose
+// functions (rhat.hpp, ess_bulk.hpp, ...); NaN entries carry the first reason in `note`.
+#include <string>
+
+#include "planmill/diagnose/draw_matrix.hpp"
+
+namespace planmill::diagnose {
+
+struct QuantityDiagnostics {
+  std::string name;
+  double rhat, rhat_bulk, rhat_folded;  // max(bulk, folded), and its two parts
+  double ess_bulk, ess_tail;
+  double mcse_mean, mcse_q05, mcse_q95;
+  double mean, sd;                      // over all draws of all chains
+  std::string note;                     // why some entry is NaN; empty when all are numbers
+};
+
+[[nodiscard]] QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x);
+
+}  // namespace planmill::diagnose

@@ -1,0 +1,170 @@
+// Effective sample size of a (split) matrix, eqs. (5)-(11) of Vehtari et al. (2021) in the exact
+// arrangement of posterior 1.4.0's .ess(), so that the truncation and the cap agree with it.
+#include <algorithm>
+#include <cfloat>
+#include <cmath>
+
+#include "diagnose/fft.hpp"
+#include "diagnose/steps.hpp"
+
+namespace planmill::diagnose::detail {
+namespace {
+
+// Mean over chains of the autocovariance at lag t, on demand. Geyer's sequence usually stops
+// after a few lags, so the first lags are direct sums (cost n per lag and chain); a longer
+// sequence switches to the FFT, which gives all lags at once. Both compute the same numbers:
+// acov_m(t) = (1/n) sum_{i < n-t} y_i y_{i+t}, y the chain minus its mean.
+class MeanAutocovariance {
+ public:
+  explicit MeanAutocovariance(const Matrix& x)
+      : n_(x.draws), m_(x.chains), centred_(x.values), mean_(n_, 0.0), known_(0) {
+    for (std::size_t c = 0; c < m_; ++c) {
+      double* y = centred_.data() + c * n_;
+      const bool constant = std::all_of(y, y + n_, [&](double v) { return v == y[0]; });
+      long double sum = 0.0L;
+      for (std::size_t i = 0; i < n_; ++i) sum += y[i];
+      const auto mu = static_cast<double>(sum / static_cast<long double>(n_));
+      // posterior gives a constant chain an autocovariance of exactly zero.
+      for (std::size_t i = 0; i < n_; ++i) y[i] = constant ? 0.0 : y[i] - mu;
+    }
+  }
+
+  double at(std::size_t t) {
+    while (known_ <= t) {
+      if (known_ >= kDirectLags) {
+        all_by_fft();
+        break;
+      }
+      mean_[known_] = direct(known_);
+      ++known_;
+    }
+    return mean_[t];
+  }
+
+ private:
+  static constexpr std::size_t kDirectLags = 48;
+
+  double direct(std::size_t t) const {
+    double total = 0.0;
+    for (std::size_t c = 0; c < m_; ++c) {
+      const double* y = centred_.data() + c * n_;
+      double sum = 0.0;
+      for (std::size_t i = 0; i + t < n_; ++i) sum += y[i] * y[i + t];
+      total += sum / static_cast<double>(n_);
+    }
+    return total / static_cast<double>(m_);
+  }
+
+  // Two real chains a, b per complex transform: z = a + i b, then A_k = (Z_k + conj Z_{-k})/2 and
+  // B_k = (Z_k - conj Z_{-k})/2i; the inverse of |A|^2 + i|B|^2 gives both autocovariances.
+  void all_by_fft() {
+    const std::size_t p = next_power_of_two(2 * n_);
+    const Fft fft(p);
+    std::vector<double> re(p), im(p), total(n_, 0.0);
+    for (std::size_t c = 0; c < m_; c += 2) {
+      std::fill(re.begin(), re.end(), 0.0);
+      std::fill(im.begin(), im.end(), 0.0);
+      std::copy_n(centred_.data() + c * n_, n_, re.begin());
+      if (c + 1 < m_) std::copy_n(centred_.data() + (c + 1) * n_, n_, im.begin());
+      fft.forward(re, im);
+      for (std::size_t k = 0; k <= p / 2; ++k) {
+        const std::size_t j = (p - k) % p;
+        const double ar = 0.5 * (re[k] + re[j]), ai = 0.5 * (im[k] - im[j]);
+        const double br = 0.5 * (im[k] + im[j]), bi = 0.5 * (re[j] - re[k]);
+        const double power_a = ar * ar + ai * ai, power_b = br * br + bi * bi;
+        re[k] = re[j] = power_a;
+        im[k] = im[j] = power_b;
+      }
+      fft.inverse(re, im);
+      // Scale lag t by acov(0) / raw(0), as posterior does, with acov(0) a direct sum of squares.
+      add_scaled(re, c, total);
+      if (c + 1 < m_) add_scaled(im, c + 1, total);
+    }
+    for (std::size_t t = 0; t < n_; ++t) mean_[t] = total[t] / static_cast<double>(m_);
+    known_ = n_;
+  }
+
+  void add_scaled(const std::vector<double>& raw, std::size_t c, std::vector<double>& total) const {
+    const double* y = centred_.data() + c * n_;
+    double squares = 0.0;
+    for (std::size_t i = 0; i < n_; ++i) squares += y[i] * y[i];
+    if (squares == 0.0) return;
+    const double scale = squares / static_cast<double>(n_) / raw[0];
+    for (std::size_t t = 0; t < n_; ++t) total[t] += raw[t] * scale;
+  }
+
+  std::size_t n_, m_;
+  std::vector<double> centred_, mean_;
+  std::size_t known_;
+};
+
+}  // namespace
+
+Estimate ess_of(const Matrix& x) {
+  const std::size_t n = x.draws, m = x.chains;
+  if (n < 3) return Estimate::nan("fewer than 3 draws per split chain");
+  double lo = x.values[0], hi = x.values[0];
+  for (double v : x.values) {
+    if (!std::isfinite(v)) return Estimate::nan("a value is not finite");
+    lo = std::min(lo, v);
+    hi = std::max(hi, v);
+  }
+  if (hi - lo < DBL_EPSILON) return Estimate::nan("constant after transform");
+
+  MeanAutocovariance acov(x);
+  // W, the mean within-chain variance, and var+ = (n-1)/n W + B/n, eqs. (2)-(3).
+  const double mean_var = acov.at(0) * static_cast<double>(n) / static_cast<double>(n - 1);
+  double var_plus = mean_var * static_cast<double>(n - 1) / static_cast<double>(n);
+  if (m > 1) {
+    std::vector<double> chain_mean(m);
+    for (std::size_t c = 0; c < m; ++c) {
+      long double sum = 0.0L;
+      for (double v : x.view().chain(c)) sum += v;
+      chain_mean[c] = static_cast<double>(sum / static_cast<long double>(n));
+    }
+    long double mu = 0.0L, between = 0.0L;
+    for (double v : chain_mean) mu += v;
+    mu /= static_cast<long double>(m);
+    for (double v : chain_mean) between += (v - mu) * (v - mu);
+    var_plus += static_cast<double>(between / static_cast<long double>(m - 1));
+  }
+  // Combined autocorrelation rho_t = 1 - (W - mean_m acov_m(t)) / var+, eq. (10).
+  auto rho_at = [&](std::size_t t) { return 1.0 - (mean_var - acov.at(t)) / var_plus; };
+
+  // Geyer's initial positive sequence: sum pairs rho_{2k} + rho_{2k+1} while positive, eq. (11).
+  std::vector<double> rho(n, 0.0);
+  double rho_even = 1.0, rho_odd = rho_at(1);
+  rho[0] = rho_even;
+  rho[1] = rho_odd;
+  std::size_t t = 0;
+  while (t + 5 < n && !std::isnan(rho_even + rho_odd) && rho_even + rho_odd > 0.0) {
+    t += 2;
+    rho_even = rho_at(t);
+    rho_odd = rho_at(t + 1);
+    if (rho_even + rho_odd >= 0.0) {
+      rho[t] = rho_even;
+      rho[t + 1] = rho_odd;
+    }
+  }
+  const std::size_t max_t = t;
+  if (rho_even > 0.0) rho[max_t] = rho_even;  // posterior keeps a positive last even lag
+
+  // ... made monotone: no pair sum may exceed the one before it.
+  for (t = 2; t + 2 <= max_t; t += 2) {
+    if (rho[t] + rho[t + 1] > rho[t - 2] + rho[t - 1]) {
+      rho[t] = (rho[t - 2] + rho[t - 1]) / 2.0;
+      rho[t + 1] = rho[t];
+    }
+  }
+
+  // tau = -1 + 2 sum_{t < max_t} rho_t + rho_{max_t}; with max_t = 0 posterior's R indexing
+  // (1:0) sums rho_0 once, kept here for agreement.
+  long double sum = 0.0L;
+  for (std::size_t k = 0; k < std::max<std::size_t>(max_t, 1); ++k) sum += rho[k];
+  double tau = -1.0 + 2.0 * static_cast<double>(sum) + rho[max_t];
+  const double draws = static_cast<double>(m * n);
+  tau = std::max(tau, 1.0 / std::log10(draws));  // posterior caps ESS at S log10(S)
+  return {draws / tau, {}};
+}
+
+}  // namespace planmill::diagnose::detail

@@ -1,0 +1,29 @@
+#pragma once
+// A small in-place radix-2 complex FFT (power-of-two lengths), for autocovariances.
+// Real and imaginary parts live in separate arrays so the butterflies stay simple loops.
+#include <cstddef>
+#include <cstdint>
+#include <vector>
+
+namespace planmill::diagnose::detail {
+
+class Fft {
+ public:
+  explicit Fft(std::size_t n);  // n a power of two, n >= 1
+
+  [[nodiscard]] std::size_t size() const { return n_; }
+  // Unnormalised: inverse(forward(x)) == n * x.
+  void forward(std::vector<double>& re, std::vector<double>& im) const { run(re, im, false); }
+  void inverse(std::vector<double>& re, std::vector<double>& im) const { run(re, im, true); }
+
+ private:
+  void run(std::vector<double>& re, std::vector<double>& im, bool inverse) const;
+
+  std::size_t n_;
+  std::vector<double> cos_, sin_;  // e^{-2 pi i k / n}, k < n / 2
+  std::vector<std::uint32_t> bit_reversed_;
+};
+
+[[nodiscard]] std::size_t next_power_of_two(std::size_t n);
+
+}  // namespace planmill::diagnose::detail

@@ -1,0 +1,265 @@
+#include "diagnose/steps.hpp"
+
+#include <algorithm>
+#include <array>
+#include <bit>
+#include <boost/math/distributions/normal.hpp>
+#include <boost/math/special_functions/beta.hpp>
+#include <cfloat>
+#include <cmath>
+#include <cstring>
+#include <numeric>
+#include <utility>
+
+namespace planmill::diagnose::detail {
+namespace {
+
+using NoPromotion = boost::math::policies::policy<boost::math::policies::promote_double<false>>;
+
+double normal_quantile(double p) {
+  static const boost::math::normal_distribution<double, NoPromotion> standard;
+  return boost::math::quantile(standard, p);
+}
+
+// posterior's should_return_NA on an intermediate matrix: non-finite, or range below DBL_EPSILON.
+bool nearly_constant_or_nonfinite(std::span<const double> v) {
+  double lo = v[0], hi = v[0];
+  for (double x : v) {
+    if (!std::isfinite(x)) return true;
+    lo = std::min(lo, x);
+    hi = std::max(hi, x);
+  }
+  return std::abs(hi - lo) < DBL_EPSILON;
+}
+
+// Sortable unsigned key of a finite double (-0 and +0 map to the same key: R ranks them as ties).
+std::uint64_t sort_key(double x) {
+  if (x == 0.0) x = 0.0;
+  const auto bits = std::bit_cast<std::uint64_t>(x);
+  return (bits >> 63) != 0U ? ~bits : bits | (std::uint64_t{1} << 63);
+}
+
+// Ascending order of v by LSD radix sort on 11-bit digits, skipping digits all keys share.
+std::vector<std::uint32_t> ascending_order(std::span<const double> v) {
+  const std::size_t n = v.size();
+  std::vector<std::uint64_t> key(n), key2(n);
+  std::vector<std::uint32_t> idx(n), idx2(n);
+  for (std::size_t i = 0; i < n; ++i) {
+    key[i] = sort_key(v[i]);
+    idx[i] = static_cast<std::uint32_t>(i);
+  }
+  constexpr unsigned kBits = 11;
+  constexpr std::size_t kBuckets = std::size_t{1} << kBits;
+  std::vector<std::size_t> count(kBuckets);
+  for (unsigned shift = 0; shift < 64; shift += kBits) {
+    std::fill(count.begin(), count.end(), 0);
+    for (std::size_t i = 0; i < n; ++i) ++count[(key[i] >> shift) & (kBuckets - 1)];
+    if (n == 0 || count[(key[0] >> shift) & (kBuckets - 1)] == n) continue;
+    std::size_t offset = 0;
+    for (auto& c : count) offset += std::exchange(c, offset);
+    for (std::size_t i = 0; i < n; ++i) {
+      const std::size_t slot = count[(key[i] >> shift) & (kBuckets - 1)]++;
+      key2[slot] = key[i];
+      idx2[slot] = idx[i];
+    }
+    key.swap(key2);
+    idx.swap(idx2);
+  }
+  return idx;
+}
+
+// Normal scores of values given in ascending order; ties share their average rank.
+Matrix scores_of_ascending(std::span<const double> ascending, std::span<const std::uint32_t> pos,
+                           std::size_t draws, std::size_t chains) {
+  Matrix z{std::vector<double>(draws * chains), draws, chains};
+  const std::size_t s = ascending.size();
+  const double denominator = static_cast<double>(s) - 2.0 * 0.375 + 1.0;  // S + 1/4
+  for (std::size_t i = 0; i < s;) {
+    std::size_t j = i;
+    while (j + 1 < s && ascending[j + 1] == ascending[i]) ++j;
+    const double rank = 0.5 * static_cast<double>(i + j) + 1.0;  // average of ranks i+1..j+1
+    const double score = normal_quantile((rank - 0.375) / denominator);
+    for (std::size_t k = i; k <= j; ++k) z.values[pos[k]] = score;
+    i = j + 1;
+  }
+  return z;
+}
+
+// R's mean(): long double sum, then one refinement pass.
+long double r_mean(std::span<const double> v) {
+  long double s = 0.0L;
+  for (double x : v) s += x;
+  s /= static_cast<long double>(v.size());
+  long double t = 0.0L;
+  for (double x : v) t += x - s;
+  return s + t / static_cast<long double>(v.size());
+}
+
+}  // namespace
+
+std::string_view unusable_reason(DrawMatrix x) {
+  if (!x.shape_matches()) return "draw matrix shape does not match its values";
+  if (x.chains == 0) return "no chains";
+  if (x.draws < 4) return "fewer than 4 draws per chain";
+  if (x.values.size() >= SortedDraws::kMaxDraws) return "too many draws";
+  bool all_equal = true;
+  for (double v : x.values) {
+    if (!std::isfinite(v)) return "a draw is not finite";
+    all_equal = all_equal && v == x.values[0];
+  }
+  if (all_equal) return "all draws are equal";
+  return {};
+}
+
+std::size_t split_position(std::size_t d, std::size_t c, std::size_t draws) {
+  const std::size_t half = draws / 2;
+  if (d < half) return (2 * c) * half + d;
+  if (d >= draws - half) return (2 * c + 1) * half + (d - (draws - half));
+  return kDropped;
+}
+
+Matrix split_chains(DrawMatrix x) {
+  const std::size_t half = x.draws / 2;
+  Matrix out{std::vector<double>(2 * half * x.chains), half, 2 * x.chains};
+  for (std::size_t c = 0; c < x.chains; ++c) {
+    for (std::size_t d = 0; d < x.draws; ++d) {
+      const std::size_t p = split_position(d, c, x.draws);
+      if (p != kDropped) out.values[p] = x.at(d, c);
+    }
+  }
+  return out;
+}
+
+SortedDraws sort_draws(DrawMatrix x) {
+  SortedDraws s;
+  s.split_draws = x.draws / 2;
+  s.split_chains = 2 * x.chains;
+  const auto order = ascending_order(x.values);
+  s.values.resize(order.size());
+  s.split_values.reserve(s.split_draws * s.split_chains);
+  s.split_pos.reserve(s.split_draws * s.split_chains);
+  for (std::size_t i = 0; i < order.size(); ++i) {
+    const double v = x.values[order[i]];
+    s.values[i] = v;
+    const std::size_t p = split_position(order[i] % x.draws, order[i] / x.draws, x.draws);
+    if (p == kDropped) continue;
+    s.split_values.push_back(v);
+    s.split_pos.push_back(static_cast<std::uint32_t>(p));
+  }
+  return s;
+}
+
+Matrix bulk_scores(const SortedDraws& sorted) {
+  return scores_of_ascending(sorted.split_values, sorted.split_pos, sorted.split_draws,
+                             sorted.split_chains);
+}
+
+Matrix folded_scores(const SortedDraws& sorted) {
+  // |x - m| falls to the left of the median and rises to its right, so merging the two sides
+  // outward from m sorts the folded draws without a second sort.
+  const double m = median(sorted.values);
+  const auto& v = sorted.split_values;
+  const std::size_t s = v.size();
+  std::vector<double> folded(s);
+  std::vector<std::uint32_t> pos(s);
+  std::size_t right = static_cast<std::size_t>(std::lower_bound(v.begin(), v.end(), m) - v.begin());
+  std::size_t left = right;  // next on the left is left - 1
+  for (std::size_t k = 0; k < s; ++k) {
+    const bool take_left =
+        right == s || (left > 0 && std::abs(v[left - 1] - m) <= std::abs(v[right] - m));
+    const std::size_t i = take_left ? --left : right++;
+    folded[k] = std::abs(v[i] - m);
+    pos[k] = sorted.split_pos[i];
+  }
+  return scores_of_ascending(folded, pos, sorted.split_draws, sorted.split_chains);
+}
+
+Matrix indicator_at_quantile(DrawMatrix x, const SortedDraws& sorted, double prob) {
+  const std::size_t n = sorted.values.size();
+  if (prob == 1.0) prob = (static_cast<double>(n) - 0.5) / static_cast<double>(n);  // posterior
+  const double q = quantile_type7(sorted.values, prob);
+  Matrix out{std::vector<double>(sorted.split_draws * sorted.split_chains), sorted.split_draws,
+             sorted.split_chains};
+  for (std::size_t c = 0; c < x.chains; ++c) {
+    for (std::size_t d = 0; d < x.draws; ++d) {
+      const std::size_t p = split_position(d, c, x.draws);
+      if (p != kDropped) out.values[p] = x.at(d, c) <= q ? 1.0 : 0.0;
+    }
+  }
+  return out;
+}
+
+double quantile_type7(std::span<const double> ascending, double prob) {
+  // R's quantile(type = 7): interpolate only between order statistics that differ.
+  const std::size_t n = ascending.size();
+  const double index = 1.0 + static_cast<double>(n - 1) * prob;
+  const auto lo = static_cast<std::size_t>(std::floor(index));
+  const auto hi = static_cast<std::size_t>(std::ceil(index));
+  double q = ascending[lo - 1];
+  if (index > static_cast<double>(lo) && ascending[hi - 1] != q) {
+    const double h = index - static_cast<double>(lo);
+    q = (1.0 - h) * q + h * ascending[hi - 1];
+  }
+  return q;
+}
+
+double median(std::span<const double> ascending) {
+  const std::size_t n = ascending.size();
+  if (n % 2 == 1) return ascending[n / 2];
+  const std::array<double, 2> middle{ascending[n / 2 - 1], ascending[n / 2]};
+  return static_cast<double>(r_mean(middle));
+}
+
+Estimate rhat_of(const Matrix& x) {
+  if (nearly_constant_or_nonfinite(x.values)) return Estimate::nan("constant after transform");
+  const std::size_t n = x.draws, m = x.chains;
+  std::vector<double> chain_mean(m), chain_var(m);
+  for (std::size_t c = 0; c < m; ++c) {
+    const auto chain = x.view().chain(c);
+    long double sum = 0.0L;
+    for (double v : chain) sum += v;
+    chain_mean[c] = static_cast<double>(sum / static_cast<long double>(n));
+    long double squares = 0.0L;
+    for (double v : chain) squares += (v - chain_mean[c]) * (v - chain_mean[c]);
+    chain_var[c] = static_cast<double>(squares / static_cast<long double>(n - 1));  // s_m^2, eq. (2)
+  }
+  const double grand = static_cast<double>(r_mean(chain_mean));
+  long double between = 0.0L;
+  for (double mu : chain_mean) between += (mu - grand) * (mu - grand);
+  // B = n/(M-1) sum_m (mean_m - mean)^2, eq. (1); W = mean_m s_m^2, eq. (2).
+  const double var_between = static_cast<double>(n) * static_cast<double>(between / (m - 1));
+  const double var_within = static_cast<double>(r_mean(chain_var));
+  // R-hat = sqrt(var+ / W), var+ = (n-1)/n W + B/n, eqs. (3)-(4), in posterior's arrangement.
+  const double r = std::sqrt((var_between / var_within + static_cast<double>(n) - 1.0) /
+                             static_cast<double>(n));
+  if (std::isnan(r)) return Estimate::nan("no variation within chains");
+  return {r, {}};
+}
+
+Estimate mcse_quantile_from(const SortedDraws& sorted, Estimate ess, double prob) {
+  if (!ess.ok()) return ess;
+  // Beta(ess*p + 1, ess*(1-p) + 1) quantiles at Phi(-1), Phi(1), as posterior rounds them.
+  const double alpha = ess.value * prob + 1.0, beta = ess.value * (1.0 - prob) + 1.0;
+  double a1 = 0.0, a2 = 0.0;
+  try {
+    a1 = boost::math::ibeta_inv(alpha, beta, 0.1586553);
+    a2 = boost::math::ibeta_inv(alpha, beta, 0.8413447);
+  } catch (const std::exception&) {
+    return Estimate::nan("beta quantile failed");
+  }
+  const std::size_t s = sorted.values.size();
+  const auto i1 = std::max<std::size_t>(static_cast<std::size_t>(std::floor(a1 * double(s))), 1);
+  const auto i2 = std::min<std::size_t>(static_cast<std::size_t>(std::ceil(a2 * double(s))), s);
+  return {(sorted.values[i2 - 1] - sorted.values[i1 - 1]) / 2.0, {}};
+}
+
+double pooled_mean(std::span<const double> v) { return static_cast<double>(r_mean(v)); }
+
+double pooled_sd(std::span<const double> v) {
+  const long double mu = r_mean(v);
+  long double squares = 0.0L;
+  for (double x : v) squares += (x - mu) * (x - mu);
+  return std::sqrt(static_cast<double>(squares / static_cast<long double>(v.size() - 1)));
+}
+
+}  // namespace planmill::diagnose::detail

@@ -1,0 +1,66 @@
+#include "planmill/diagnose/verdict.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <limits>
+
+namespace planmill::diagnose {
+namespace {
+
+std::string number(double v, const char* format) {
+  if (std::isnan(v)) return "NaN";
+  char buffer[64];
+  std::snprintf(buffer, sizeof buffer, format, v);
+  return buffer;
+}
+
+}  // namespace
+
+double severity(const QuantityDiagnostics& q, const VerdictRule& rule) {
+  if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(q.ess_tail)) {
+    return std::numeric_limits<double>::infinity();
+  }
+  // Each ratio is 1 exactly at its threshold; a quantity is as bad as its worst ratio.
+  const double by_rhat = (q.rhat - 1.0) / (rule.rhat_max - 1.0);
+  const double by_ess = rule.ess_min / std::max(std::min(q.ess_bulk, q.ess_tail), 1e-300);
+  return std::max(by_rhat, by_ess);
+}
+
+Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
+  std::stable_sort(table.begin(), table.end(), [&](const auto& a, const auto& b) {
+    return severity(a, rule) > severity(b, rule);
+  });
+  Verdict verdict;
+  for (const auto& q : table) {
+    const bool rhat_bad = !(q.rhat < rule.rhat_max);
+    const bool bulk_bad = !(q.ess_bulk > rule.ess_min);
+    const bool tail_bad = !(q.ess_tail > rule.ess_min);
+    if (!rhat_bad && !bulk_bad && !tail_bad) continue;
+    Failure f{q.name, {}, {}};
+    auto add = [&f](const std::string& part) { f.problem += (f.problem.empty() ? "" : "; ") + part; };
+    if (rhat_bad) add("R-hat " + number(q.rhat, "%.4f") + " >= " + number(rule.rhat_max, "%g"));
+    if (bulk_bad) add("bulk ESS " + number(q.ess_bulk, "%.0f") + " <= " + number(rule.ess_min, "%g"));
+    if (tail_bad) add("tail ESS " + number(q.ess_tail, "%.0f") + " <= " + number(rule.ess_min, "%g"));
+    if (!q.note.empty()) add(q.note);
+
+    if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(q.ess_tail)) {
+      f.suggestion = "check the traces of this quantity (constant, non-finite or too short); "
+                     "leave out observables that cannot vary";
+    } else if (rhat_bad) {
+      f.suggestion = "chains disagree: run more steps; if chains stay in different regions, "
+                     "use tempering or start more chains from dispersed plans";
+    } else {
+      // ESS grows about linearly in steps and in chains once the chains have mixed.
+      const double factor = rule.ess_min / std::min(q.ess_bulk, q.ess_tail);
+      f.suggestion = "run about " + number(std::ceil(factor * 10.0) / 10.0, "%.1f") +
+                     "x more steps or more chains";
+    }
+    verdict.failures.push_back(std::move(f));
+  }
+  verdict.pass = verdict.failures.empty() && !table.empty();
+  verdict.table = std::move(table);
+  return verdict;
+}
+
+}  // namespace planmill::diagnose

@@ -1,0 +1,157 @@
+// End-to-end checks of `planmill diagnose --traces`: exit status 0 pass / 3 fail / 2 bad input,
+// error messages naming file and line, and the JSON it writes (parsed back and checked against
+// the library's own numbers for the same draws).
+#include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "synthetic_draws.hpp"
+
+namespace planmill::diagnose {
+namespace {
+
+namespace fs = std::filesystem;
+
+struct Outcome {
+  int status = -1;
+  std::string out, err;
+};
+
+std::string slurp(const fs::path& p) {
+  std::ifstream in(p);
+  std::stringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+class DiagnoseCli : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    dir_ = fs::temp_directory_path() /
+           ("planmill_diagnose_cli_" + std::to_string(::getpid()) + "_" +
+            ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    fs::create_directories(dir_);
+  }
+  void TearDown() override { fs::remove_all(dir_); }
+
+  Outcome run(const std::string& args) const {
+    const auto out = dir_ / "stdout.txt", err = dir_ / "stderr.txt";
+    const std::string command = std::string("'") + PLANMILL_BINARY + "' diagnose " + args + " > '" +
+                                out.string() + "' 2> '" + err.string() + "'";
+    const int raw = std::system(command.c_str());
+    return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(out), slurp(err)};
+  }
+
+  // Long CSV of the given quantities (all with the same chains and draws), chains labelled.
+  fs::path write_traces(const std::vector<testing::Draws>& quantities) const {
+    const auto path = dir_ / "traces.csv";
+    std::ofstream csv(path);
+    csv << "chain,draw";
+    for (const auto& q : quantities) csv << ',' << q.name;
+    csv << '\n';
+    const auto& first = quantities.front();
+    char number[40];
+    for (std::size_t c = 0; c < first.chains; ++c) {
+      for (std::size_t t = 0; t < first.draws; ++t) {
+        csv << "run-" << char('a' + c) << ',' << 10 * t;
+        for (const auto& q : quantities) {
+          std::snprintf(number, sizeof number, "%.17g", q.values[c * q.draws + t]);
+          csv << ',' << number;
+        }
+        csv << '\n';
+      }
+    }
+    return path;
+  }
+
+  static std::string data(const std::string& name) {
+    return std::string(PLANMILL_TEST_DATA_DIR) + "/diagnose/" + name;
+  }
+
+  fs::path dir_;
+};
+
+TEST_F(DiagnoseCli, WellMixedTracesPassAndJsonMatchesLibrary) {
+  const auto a = testing::ar1("cut_edges", 400, 4, 0.0, 31);
+  const auto b = testing::seats("seats_a", 400, 4, 0.0, 32);
+  const auto traces = write_traces({a, b});
+  const auto json_path = dir_ / "out.json";
+  const Outcome o = run("--traces '" + traces.string() + "' --json '" + json_path.string() + "'");
+  EXPECT_EQ(o.status, 0) << o.out << o.err;
+  EXPECT_NE(o.out.find("verdict: pass"), std::string::npos) << o.out;
+
+  const auto json = nlohmann::json::parse(slurp(json_path));
+  EXPECT_EQ(json["verdict"], "pass");
+  ASSERT_EQ(json["quantities"].size(), 2U);
+  for (const auto& q : json["quantities"]) {
+    const auto& source = q["name"] == "cut_edges" ? a : b;
+    const auto expected = diagnose_quantity(source.name, source.matrix());
+    // The CSV carries 17 significant digits, so the numbers agree to rounding.
+    EXPECT_NEAR(q["rhat"].get<double>(), expected.rhat, 1e-12);
+    EXPECT_NEAR(q["ess_bulk"].get<double>(), expected.ess_bulk, 1e-9 * expected.ess_bulk);
+    EXPECT_NEAR(q["ess_tail"].get<double>(), expected.ess_tail, 1e-9 * expected.ess_tail);
+    EXPECT_NEAR(q["mcse_mean"].get<double>(), expected.mcse_mean, 1e-9 * expected.mcse_mean);
+  }
+  for (const auto& entry : fs::directory_iterator(dir_)) {
+    EXPECT_EQ(entry.path().string().find(".tmp."), std::string::npos) << "temp file left behind";
+  }
+}
+
+TEST_F(DiagnoseCli, ChainsWithDifferentMeansFailWithExitThree) {
+  const auto stuck = testing::ar1("districts_split", 400, 4, 0.5, 33, 1.0);
+  const auto fine = testing::ar1("cut_edges", 400, 4, 0.0, 34);
+  const Outcome o = run("--traces '" + write_traces({fine, stuck}).string() + "'");
+  EXPECT_EQ(o.status, 3) << o.out << o.err;
+  EXPECT_NE(o.out.find("verdict: fail"), std::string::npos) << o.out;
+  // Worst first: the stuck quantity is the first row of the table.
+  const auto table_start = o.out.find('\n', o.out.find("quantity")) + 1;
+  EXPECT_EQ(o.out.compare(table_start, 15, "districts_split"), 0) << o.out;
+  EXPECT_NE(o.out.find("tempering"), std::string::npos) << o.out;
+}
+
+TEST_F(DiagnoseCli, StricterThresholdsTurnPassIntoFail) {
+  const auto a = testing::ar1("cut_edges", 400, 4, 0.0, 35);
+  const auto traces = write_traces({a}).string();
+  EXPECT_EQ(run("--traces '" + traces + "'").status, 0);
+  EXPECT_EQ(run("--traces '" + traces + "' --ess-min 5000").status, 3);
+  // Burn-in drops draws: 300 of 400 left, the ESS falls below 1500.
+  EXPECT_EQ(run("--traces '" + traces + "' --burn-in 300 --ess-min 1000").status, 3);
+}
+
+TEST_F(DiagnoseCli, UnequalChainLengthsNameFileAndLine) {
+  const Outcome o = run("--traces '" + data("unequal_chains.csv") + "'");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("unequal_chains.csv:8:"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << "one-line error: " << o.err;
+}
+
+TEST_F(DiagnoseCli, NonNumericCellNamesLineAndColumn) {
+  const Outcome o = run("--traces '" + data("non_numeric.csv") + "'");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("non_numeric.csv:5: 'seats_a'"), std::string::npos) << o.err;
+}
+
+TEST_F(DiagnoseCli, OtherBadInputExitsTwo) {
+  EXPECT_EQ(run("--traces '" + data("draws_out_of_order.csv") + "'").status, 2);
+  EXPECT_EQ(run("--traces '" + data("bad_header.csv") + "'").status, 2);
+  const Outcome missing = run("--traces '" + (dir_ / "absent.csv").string() + "'");
+  EXPECT_EQ(missing.status, 2);
+  EXPECT_NE(missing.err.find("absent.csv"), std::string::npos) << missing.err;
+}
+
+TEST_F(DiagnoseCli, RunDirIsNotYetAvailable) {
+  const Outcome o = run("'" + dir_.string() + "'");
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("not yet available"), std::string::npos) << o.err;
+}
+
+}  // namespace
+}  // namespace planmill::diagnose
