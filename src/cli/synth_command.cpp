@@ -28,13 +28,13 @@ void add_synth_command(CLI::App& app, Action& action) {
                     "(%zu cities), area %.0f km^2\n",
                     s.units, s.edges, s.counties, s.municipalities, s.cities, s.area_km2);
       std::cout << line;
-      std::snprintf(line, sizeof line,
-                    "synth: population %lld (group %.1f%%), ideal district %.0f, largest unit "
-                    "%lld\n",
-                    static_cast<long long>(s.population),
-                    100.0 * static_cast<double>(s.group_population) /
-                        static_cast<double>(s.population),
-                    s.ideal_district_population, static_cast<long long>(s.largest_unit_population));
+      std::snprintf(
+          line, sizeof line,
+          "synth: population %lld (group %.1f%%), ideal district %.0f, largest unit "
+          "%lld\n",
+          static_cast<long long>(s.population),
+          100.0 * static_cast<double>(s.group_population) / static_cast<double>(s.population),
+          s.ideal_district_population, static_cast<long long>(s.largest_unit_population));
       std::cout << line;
       for (const auto& e : s.elections) {
         std::snprintf(line, sizeof line, "synth: election %s: party A %.1f%%\n", e.name.c_str(),

@@ -58,7 +58,8 @@ std::size_t keep_largest_piece(std::size_t w, std::size_t h, std::vector<char>& 
   };
   for (std::size_t c = 0; c < w * h; ++c) {
     if (!inside[c] || piece[c] != -1) continue;
-    const std::size_t size = visit(c, [&](std::size_t n) { return inside[n] != 0; }, pieces);
+    const std::size_t size = visit(
+        c, [&](std::size_t n) { return inside[n] != 0; }, pieces);
     if (size > best_size) best_size = size, best = pieces;
     ++pieces;
   }
@@ -70,7 +71,9 @@ std::size_t keep_largest_piece(std::size_t w, std::size_t h, std::vector<char>& 
   for (std::size_t c = 0; c < w * h; ++c) {
     const std::size_t x = c % w, y = c / w;
     const bool border = x == 0 || y == 0 || x + 1 == w || y + 1 == h;
-    if (border && !kept[c] && piece[c] == -1) visit(c, [&](std::size_t n) { return !kept[n]; }, 0);
+    if (border && !kept[c] && piece[c] == -1)
+      visit(
+          c, [&](std::size_t n) { return !kept[n]; }, 0);
   }
   std::size_t count = 0;
   for (std::size_t c = 0; c < w * h; ++c) {

@@ -11,9 +11,9 @@
 
 namespace planmill::synth {
 
-inline constexpr std::int64_t kCellSide = 1024;         // lattice steps per coarse cell side
-inline constexpr int kMaxDepth = 10;                    // a coarse cell is split at most 10 times
-inline constexpr double kKmPerStep = 1.0 / 128.0;       // so a coarse cell is 8 km wide
+inline constexpr std::int64_t kCellSide = 1024;    // lattice steps per coarse cell side
+inline constexpr int kMaxDepth = 10;               // a coarse cell is split at most 10 times
+inline constexpr double kKmPerStep = 1.0 / 128.0;  // so a coarse cell is 8 km wide
 inline constexpr double kCellKm = kCellSide * kKmPerStep;
 
 struct Rect {
@@ -21,8 +21,12 @@ struct Rect {
   int depth = 0;
   [[nodiscard]] std::int64_t area() const { return (x1 - x0) * (y1 - y0); }
   [[nodiscard]] std::int64_t perimeter() const { return 2 * ((x1 - x0) + (y1 - y0)); }
-  [[nodiscard]] double centre_x_km() const { return static_cast<double>(x0 + x1) * 0.5 * kKmPerStep; }
-  [[nodiscard]] double centre_y_km() const { return static_cast<double>(y0 + y1) * 0.5 * kKmPerStep; }
+  [[nodiscard]] double centre_x_km() const {
+    return static_cast<double>(x0 + x1) * 0.5 * kKmPerStep;
+  }
+  [[nodiscard]] double centre_y_km() const {
+    return static_cast<double>(y0 + y1) * 0.5 * kKmPerStep;
+  }
 };
 
 // Smooth random field with values in [0, 1]: random values on a square lattice, blended with

@@ -70,13 +70,13 @@ class NameMaker {
  public:
   explicit NameMaker(Rng& rng) : rng_(rng) {}
   std::string make(bool town) {
-    static const char* const kHeads[] = {"Ash", "Bel", "Cor", "Dun", "El", "Fen", "Gar", "Hal",
-                                         "Ir", "Kel", "Lor", "Mar", "Nor", "Or", "Pel", "Quin",
-                                         "Ros", "Sal", "Tor", "Ul", "Val", "Wen", "Yar", "Zel"};
+    static const char* const kHeads[] = {"Ash", "Bel", "Cor", "Dun", "El",  "Fen", "Gar", "Hal",
+                                         "Ir",  "Kel", "Lor", "Mar", "Nor", "Or",  "Pel", "Quin",
+                                         "Ros", "Sal", "Tor", "Ul",  "Val", "Wen", "Yar", "Zel"};
     static const char* const kMiddles[] = {"", "a", "e", "i", "o", "en", "ar", "is"};
-    static const char* const kCountyTails[] = {"ford", "ton", "by", "dale", "mere", "wick",
+    static const char* const kCountyTails[] = {"ford",  "ton",  "by",    "dale", "mere",  "wick",
                                                "stead", "holm", "ridge", "moor", "field", "crest"};
-    static const char* const kTownTails[] = {"haven", "burg", "port", "minster",
+    static const char* const kTownTails[] = {"haven",  "burg",  "port", "minster",
                                              "bridge", "mouth", "gate", "vale"};
     for (int attempt = 0;; ++attempt) {
       std::string name = kHeads[uniform_below(rng_, 24)];
@@ -149,15 +149,15 @@ std::vector<Place> make_places(const synth::Outline& outline, std::size_t units,
   for (std::size_t i = 0; i < town_count; ++i) {
     Place town;
     town.core_peak = 1200.0 + 800.0 * uniform01(rng);
-    town.core_radius = std::sqrt(town_people * (0.4 + 1.2 * uniform01(rng)) /
-                                 (std::numbers::pi * town.core_peak));
+    town.core_radius =
+        std::sqrt(town_people * (0.4 + 1.2 * uniform01(rng)) / (std::numbers::pi * town.core_peak));
     town.limit_radius = 1.8 * town.core_radius;
     for (int attempt = 0; attempt < 200; ++attempt) {
       std::tie(town.x, town.y) = random_inland_point(outline, rng);
       bool clear = true;
       for (const Place& other : places) {
-        const double gap = other.city ? 1.3 * other.limit_radius
-                                      : 2.5 * (other.limit_radius + town.limit_radius);
+        const double gap =
+            other.city ? 1.3 * other.limit_radius : 2.5 * (other.limit_radius + town.limit_radius);
         clear = clear && distance_squared(town.x, town.y, other.x, other.y) >= gap * gap;
       }
       if (clear) break;
@@ -310,9 +310,9 @@ std::vector<int> make_municipalities(const std::vector<Rect>& rects,
   for (std::size_t p = 0; p < places.size(); ++p) {
     const double limit2 = places[p].limit_radius * places[p].limit_radius;
     for (std::size_t u = 0; u < n; ++u) {
-      const double relative =
-          distance_squared(places[p].x, places[p].y, rects[u].centre_x_km(),
-                           rects[u].centre_y_km()) / limit2;
+      const double relative = distance_squared(places[p].x, places[p].y, rects[u].centre_x_km(),
+                                               rects[u].centre_y_km()) /
+                              limit2;
       if (relative < closeness[u]) closeness[u] = relative, claim[u] = static_cast<int>(p);
     }
   }
@@ -344,8 +344,8 @@ std::vector<int> make_municipalities(const std::vector<Rect>& rects,
 
 std::string format_double(double value) {
   char buffer[64];
-  const auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value,
-                                       std::chars_format::fixed);
+  const auto [end, ec] =
+      std::to_chars(buffer, buffer + sizeof buffer, value, std::chars_format::fixed);
   if (ec != std::errc()) throw std::logic_error("synth: number formatting failed");
   return std::string(buffer, end);
 }
@@ -394,8 +394,8 @@ Votes vote(const std::vector<std::int64_t>& voters, const std::vector<double>& u
   votes.b.resize(n);
   std::int64_t sum_a = 0, sum_all = 0;
   for (std::size_t u = 0; u < n; ++u) {
-    votes.a[u] = static_cast<std::int64_t>(std::floor(static_cast<double>(voters[u]) *
-                                                      share(low, u) + 0.5));
+    votes.a[u] =
+        static_cast<std::int64_t>(std::floor(static_cast<double>(voters[u]) * share(low, u) + 0.5));
     votes.b[u] = voters[u] - votes.a[u];
     sum_a += votes.a[u];
     sum_all += voters[u];
@@ -481,16 +481,17 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
 
   Rng outline_rng = make_stream(seed, kOutlineStream);
   const synth::Outline outline = synth::make_outline(std::max<std::size_t>(4, n / 5), outline_rng);
-  const double area_km2 =
-      static_cast<double>(outline.cell_count) * synth::kCellKm * synth::kCellKm;
+  const double area_km2 = static_cast<double>(outline.cell_count) * synth::kCellKm * synth::kCellKm;
   Rng rural_rng = make_stream(seed, kRuralStream);
-  StateModel model{make_places(outline, n, seed), {}, 0.0,
+  StateModel model{make_places(outline, n, seed),
+                   {},
+                   0.0,
                    synth::ValueNoise(rural_rng, outline.width_km(), outline.height_km(), 40.0)};
   model.rural_density = 0.18 * kPeoplePerUnit * static_cast<double>(n) / area_km2;
   model.clusters = make_clusters(model.places, seed);
 
-  const std::vector<Rect> rects = synth::subdivide(
-      outline, n, [&](double x, double y) { return model.density(x, y); });
+  const std::vector<Rect> rects =
+      synth::subdivide(outline, n, [&](double x, double y) { return model.density(x, y); });
   const std::vector<synth::SharedEdge> edges = synth::shared_edges(rects);
   const auto nbrs = neighbour_lists(n, edges);
 
@@ -499,8 +500,8 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
   double expected_sum = 0.0;
   for (std::size_t u = 0; u < n; ++u) {
     density[u] = model.density(rects[u].centre_x_km(), rects[u].centre_y_km());
-    expected[u] = density[u] * static_cast<double>(rects[u].area()) * synth::kKmPerStep *
-                  synth::kKmPerStep;
+    expected[u] =
+        density[u] * static_cast<double>(rects[u].area()) * synth::kKmPerStep * synth::kKmPerStep;
     expected_sum += expected[u];
   }
   const double scale = kPeoplePerUnit * static_cast<double>(n) / expected_sum;
@@ -581,8 +582,8 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
     geojson += "{\"type\":\"Feature\",\"properties\":{\"unit\":\"" + id + "\",\"county\":\"" +
                county_names[county[u]] + "\",\"town\":\"" + town_name +
                "\"},\"geometry\":{\"type\":\"Polygon\",\"coordinates\":[[[" + x0 + "," + y0 +
-               "],[" + x1 + "," + y0 + "],[" + x1 + "," + y1 + "],[" + x0 + "," + y1 + "],[" +
-               x0 + "," + y0 + "]]]}}" + (u + 1 < n ? ",\n" : "\n");
+               "],[" + x1 + "," + y0 + "],[" + x1 + "," + y1 + "],[" + x0 + "," + y1 + "],[" + x0 +
+               "," + y0 + "]]]}}" + (u + 1 < n ? ",\n" : "\n");
     summary.population += pop[u];
     summary.group_population += grp[u];
     summary.largest_unit_population = std::max(summary.largest_unit_population, pop[u]);
@@ -602,15 +603,14 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
       "columns = [\"gov_a\", \"gov_b\"]\n"
       "[[map.elections]]\nname = \"sen\"\nparties = [\"A\", \"B\"]\n"
       "columns = [\"sen_a\", \"sen_b\"]\n"
-      "[districts]\ncount = " + std::to_string(options.districts) +
-      "\n[rules]\npopulation_deviation = 0.05\n";
+      "[districts]\ncount = " +
+      std::to_string(options.districts) + "\n[rules]\npopulation_deviation = 0.05\n";
 
   const std::filesystem::path dir(options.out_dir);
-  const std::vector<std::pair<std::string, std::string>> files = {
-      {"units.csv", units_csv},
-      {"adjacency.csv", adjacency_csv},
-      {"units.geojson", geojson},
-      {"job.toml", job_toml}};
+  const std::vector<std::pair<std::string, std::string>> files = {{"units.csv", units_csv},
+                                                                  {"adjacency.csv", adjacency_csv},
+                                                                  {"units.geojson", geojson},
+                                                                  {"job.toml", job_toml}};
   write_files_atomically(dir, files);
 
   summary.units = n;

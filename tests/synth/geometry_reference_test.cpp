@@ -37,7 +37,8 @@ if set(polys) != set(rows):
 for uid, p in polys.items():
     r = rows[uid]
     if not p.is_valid: bad.append(uid + " invalid polygon")
-    if abs(p.area - float(r["area"])) > tol: bad.append(uid + " area %r vs %s" % (p.area, r["area"]))
+    if abs(p.area - float(r["area"])) > tol:
+        bad.append(uid + " area %r vs %s" % (p.area, r["area"]))
     if abs(p.length - float(r["perimeter"])) > tol:
         bad.append(uid + " perimeter %r vs %s" % (p.length, r["perimeter"]))
 ids = list(polys)
@@ -59,7 +60,8 @@ for pair, length in found.items():
     elif abs(listed[pair] - length) > tol:
         bad.append("pair %s,%s length %r vs %r" % (pair + (listed[pair], length)))
 for pair in listed:
-    if pair not in found: bad.append("pair %s,%s listed but shapely finds no shared boundary" % pair)
+    if pair not in found:
+        bad.append("pair %s,%s listed but shapely finds no shared boundary" % pair)
 outline = unary_union(geoms)
 if outline.geom_type != "Polygon": bad.append("outline is a " + outline.geom_type)
 total = sum(float(r["area"]) for r in rows.values())

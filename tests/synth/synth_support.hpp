@@ -14,8 +14,9 @@ namespace planmill::synth_test {
 
 inline std::filesystem::path scratch_dir(const std::string& name) {
   const auto* info = ::testing::UnitTest::GetInstance()->current_test_info();
-  const auto dir = std::filesystem::temp_directory_path() /
-                   ("planmill_synth_" + std::to_string(::getpid()) + "_" + info->name() + "_" + name);
+  const auto dir =
+      std::filesystem::temp_directory_path() /
+      ("planmill_synth_" + std::to_string(::getpid()) + "_" + info->name() + "_" + name);
   std::filesystem::remove_all(dir);
   return dir;
 }

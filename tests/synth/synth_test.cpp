@@ -1,6 +1,9 @@
 // Tests of the invented state: determinism, exact unit count, and geometry recomputed here from
 // the GeoJSON rectangles by brute force (independent of the generator's sweep).
+#include "planmill/synth/synth.hpp"
+
 #include <gtest/gtest.h>
+#include <toml++/toml.h>
 
 #include <algorithm>
 #include <cmath>
@@ -9,10 +12,8 @@
 #include <map>
 #include <nlohmann/json.hpp>
 #include <set>
-#include <toml++/toml.h>
 
 #include "planmill/base/error.hpp"
-#include "planmill/synth/synth.hpp"
 #include "synth_support.hpp"
 
 namespace planmill {
@@ -315,7 +316,8 @@ TEST(Synth, CountsAreConsistentAndVotesFollowDensityAndGroup) {
   const auto ranks = [](const std::vector<double>& v) {
     std::vector<std::size_t> order(v.size());
     for (std::size_t i = 0; i < v.size(); ++i) order[i] = i;
-    std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) { return v[a] < v[b]; });
+    std::sort(order.begin(), order.end(),
+              [&](std::size_t a, std::size_t b) { return v[a] < v[b]; });
     std::vector<double> r(v.size());
     for (std::size_t i = 0; i < v.size(); ++i) r[order[i]] = static_cast<double>(i);
     return r;
@@ -345,8 +347,8 @@ TEST(Synth, JobFileNamesTheWrittenColumns) {
   const auto job = toml::parse_file((dir / "job.toml").string());
   const Table units = read_csv(dir / "units.csv");
   const std::set<std::string> columns(units.header.begin(), units.header.end());
-  for (const char* key : {"id", "population", "county", "municipality", "area", "perimeter",
-                          "outer_boundary"}) {
+  for (const char* key :
+       {"id", "population", "county", "municipality", "area", "perimeter", "outer_boundary"}) {
     const auto value = job["map"][key].value<std::string>();
     ASSERT_TRUE(value.has_value()) << key;
     EXPECT_TRUE(columns.count(*value)) << key << " = " << *value;
@@ -395,8 +397,9 @@ TEST(Synth, CommandLineReportsBadOptionsOnOneLineWithStatus2) {
   const fs::path dir = scratch_dir("cli");
   fs::create_directories(dir);
   const std::string err = (dir / "stderr.txt").string();
-  const std::string command = std::string(PLANMILL_BINARY) + " synth --units 10 --districts 2 --out " +
-                              (dir / "state").string() + " 2> " + err;
+  const std::string command = std::string(PLANMILL_BINARY) +
+                              " synth --units 10 --districts 2 --out " + (dir / "state").string() +
+                              " 2> " + err;
   const int status = std::system(command.c_str());
   ASSERT_TRUE(WIFEXITED(status));
   EXPECT_EQ(WEXITSTATUS(status), 2);
@@ -405,7 +408,8 @@ TEST(Synth, CommandLineReportsBadOptionsOnOneLineWithStatus2) {
   EXPECT_EQ(std::count(text.begin(), text.end(), '\n'), 1) << text;
   EXPECT_FALSE(fs::exists(dir / "state"));
 
-  const std::string ok = std::string(PLANMILL_BINARY) + " synth --units 64 --districts 4 --seed 3 --out " +
+  const std::string ok = std::string(PLANMILL_BINARY) +
+                         " synth --units 64 --districts 4 --seed 3 --out " +
                          (dir / "state").string() + " > " + (dir / "out.txt").string();
   EXPECT_EQ(std::system(ok.c_str()), 0);
   for (const char* name : kFiles) EXPECT_TRUE(fs::exists(dir / "state" / name)) << name;

@@ -14,7 +14,7 @@ struct SynthOptions {
   std::size_t units = 2000;    // exactly this many units (>= 16 and >= 2 * districts)
   std::size_t districts = 20;  // written to job.toml as [districts] count
   std::uint64_t seed = 1;
-  std::string out_dir;         // created if missing
+  std::string out_dir;  // created if missing
 };
 
 struct SynthElectionSummary {
@@ -30,7 +30,7 @@ struct SynthSummary {
   std::size_t cities = 0;  // the large municipalities; the others are towns
   std::int64_t population = 0;
   std::int64_t group_population = 0;
-  double area_km2 = 0.0;         // area of the outline (sum of unit areas)
+  double area_km2 = 0.0;  // area of the outline (sum of unit areas)
   double ideal_district_population = 0.0;
   std::int64_t largest_unit_population = 0;
   std::vector<SynthElectionSummary> elections;
