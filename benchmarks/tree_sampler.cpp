@@ -1,21 +1,31 @@
-// Spanning-tree sampling on merged district pairs of the benchmark state: our Wilson sampler
-// (tree + subtree populations + balanced cuts) against Boost.Graph's random_spanning_tree on the
-// same regions. Each Boost graph is built once per region, outside the timed loop.
+// Spanning-tree sampling on merged district pairs: our Wilson sampler (tree + subtree
+// populations + balanced cuts) against Boost.Graph's random_spanning_tree on the same regions.
+// Each Boost graph is built once per region, outside the timed loop.
 //
-// Map: a 100 x 100 grid of unit-population units in 100 districts of 10 x 10; the regions are the
-// 50 pairs of horizontally adjacent districts (200 units each). Balance ±5% of the ideal 100.
+// Maps (benchmark argument): 0 = the benchmark state, `synth` with 10,000 units and 100
+// districts, cut into 100 districts within ±3% by recursive spanning-tree bisection; regions are
+// all pairs of adjacent districts. 1 = a 100 x 100 grid of 10 x 10 blocks, regions = the 50
+// horizontal pairs of 200 units. Balanced cuts use ±5% of the ideal population.
 #include <benchmark/benchmark.h>
+#include <unistd.h>
 
 #include <boost/graph/adjacency_list.hpp>
 #include <boost/graph/random_spanning_tree.hpp>
 #include <boost/property_map/property_map.hpp>
+#include <cmath>
 #include <cstdint>
+#include <filesystem>
+#include <set>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
 #include "planmill/base/random.hpp"
+#include "planmill/graph/load.hpp"
 #include "planmill/graph/unit_graph.hpp"
+#include "planmill/job/job.hpp"
 #include "planmill/plan/plan.hpp"
+#include "planmill/synth/synth.hpp"
 #include "planmill/tree/region.hpp"
 #include "planmill/tree/spanning_tree.hpp"
 
@@ -25,37 +35,111 @@ using namespace planmill;
 
 using BoostGraph = boost::adjacency_list<boost::vecS, boost::vecS, boost::undirectedS>;
 
+UnitGraph grid_graph(std::uint32_t side) {
+  UnitGraphBuilder builder;
+  for (std::uint32_t u = 0; u < side * side; ++u) (void)builder.add_unit(std::to_string(u), 1);
+  for (std::uint32_t r = 0; r < side; ++r) {
+    for (std::uint32_t c = 0; c < side; ++c) {
+      const std::uint32_t u = r * side + c;
+      if (c + 1 < side) (void)builder.add_edge(u, u + 1);
+      if (r + 1 < side) (void)builder.add_edge(u, u + side);
+    }
+  }
+  return std::move(builder).build();
+}
+
+// Splits `units` into `k` districts labelled first..first+k-1: draw trees until one has an edge
+// whose sides hold k1 = k/2 and k - k1 districts' worth of population, within a window of
+// 0.4% x min(k1, k2) districts (2% at the last split). Errors add up over about 7 levels to < 5%.
+void bisect(const UnitGraph& graph, std::vector<UnitIndex> units, std::size_t k,
+            DistrictIndex first, std::vector<DistrictIndex>& district, Rng& rng) {
+  if (k == 1) {
+    for (const UnitIndex u : units) district[u] = first;
+    return;
+  }
+  Region region;
+  region.build(graph, units);
+  SpanningTreeSampler sampler;
+  const std::size_t k1 = k / 2, k2 = k - k1;
+  const double mean = static_cast<double>(region.total_population()) / static_cast<double>(k);
+  const double window = (k <= 3 ? 0.02 : 0.004 * static_cast<double>(k1)) * mean;
+  std::vector<std::uint8_t> side(region.size());
+  for (int attempt = 0; attempt < 200000; ++attempt) {
+    sampler.sample(region, rng);
+    for (std::uint32_t v = 0; v < region.size(); ++v) {
+      if (v == sampler.root()) continue;
+      const auto below = static_cast<double>(sampler.subtree_population()[v]);
+      const bool below_is_k1 = std::abs(below - static_cast<double>(k1) * mean) <= window;
+      const bool below_is_k2 = std::abs(below - static_cast<double>(k2) * mean) <= window;
+      if (!below_is_k1 && !below_is_k2) continue;
+      sampler.mark_side(v, side);
+      std::vector<UnitIndex> part1, part2;
+      for (std::uint32_t x = 0; x < region.size(); ++x) {
+        ((side[x] == 1) == below_is_k1 ? part1 : part2).push_back(region.global(x));
+      }
+      bisect(graph, std::move(part1), k1, first, district, rng);
+      bisect(graph, std::move(part2), k2, static_cast<DistrictIndex>(first + k1), district, rng);
+      return;
+    }
+  }
+  throw std::runtime_error("bisect: no balanced split found");
+}
+
 struct BenchState {
   UnitGraph graph;
+  std::size_t k = 100;
   std::vector<DistrictIndex> district;
   std::vector<std::pair<DistrictIndex, DistrictIndex>> pairs;
+  std::vector<std::pair<UnitIndex, UnitIndex>> seeds;  // one unit of each district of a pair
   std::int64_t lo = 0, hi = 0;
+  double max_deviation = 0.0;
   std::vector<Region> regions;
   std::vector<BoostGraph> boost_graphs;
 
-  BenchState() {
-    constexpr std::uint32_t kSide = 100, kBlock = 10, kBlocks = kSide / kBlock;
-    UnitGraphBuilder builder;
-    for (std::uint32_t u = 0; u < kSide * kSide; ++u) (void)builder.add_unit(std::to_string(u), 1);
-    for (std::uint32_t r = 0; r < kSide; ++r) {
-      for (std::uint32_t c = 0; c < kSide; ++c) {
-        const std::uint32_t u = r * kSide + c;
-        if (c + 1 < kSide) (void)builder.add_edge(u, u + 1);
-        if (r + 1 < kSide) (void)builder.add_edge(u, u + kSide);
+  explicit BenchState(bool synthetic) {
+    if (synthetic) {
+      const auto dir = std::filesystem::temp_directory_path() /
+                       ("planmill_bench_tree_" + std::to_string(::getpid()));
+      SynthOptions options;
+      options.units = 10000;
+      options.districts = k;
+      options.seed = 1;
+      options.out_dir = dir.string();
+      (void)write_synthetic_state(options);
+      MapSpec map = load_job((dir / "job.toml").string()).map;
+      map.municipality_column.clear();  // not needed here (the loader rejects empty codes)
+      graph = load_unit_graph(map);
+      std::filesystem::remove_all(dir);
+      district.assign(graph.unit_count(), 0);
+      std::vector<UnitIndex> all(graph.unit_count());
+      for (UnitIndex u = 0; u < all.size(); ++u) all[u] = u;
+      Rng rng = make_stream(2, 0);
+      bisect(graph, std::move(all), k, 0, district, rng);
+    } else {
+      constexpr std::uint32_t kSide = 100, kBlock = 10, kBlocks = kSide / kBlock;
+      graph = grid_graph(kSide);
+      district.resize(kSide * kSide);
+      for (std::uint32_t u = 0; u < kSide * kSide; ++u) {
+        district[u] =
+            static_cast<DistrictIndex>((u / kSide / kBlock) * kBlocks + (u % kSide) / kBlock);
       }
     }
-    graph = std::move(builder).build();
-    district.resize(kSide * kSide);
-    for (std::uint32_t u = 0; u < kSide * kSide; ++u) {
-      district[u] = static_cast<DistrictIndex>((u / kSide / kBlock) * kBlocks + (u % kSide) / kBlock);
+    const Plan plan(graph, k, district);
+    max_deviation = plan.max_population_deviation();
+    std::set<std::pair<DistrictIndex, DistrictIndex>> adjacent;
+    for (EdgeIndex e = 0; e < graph.edge_count(); ++e) {
+      DistrictIndex a = district[graph.edge_first(e)], b = district[graph.edge_second(e)];
+      if (a == b) continue;
+      if (a > b) std::swap(a, b);
+      if (synthetic || (b == a + 1 && a % 2 == 0)) {
+        if (adjacent.emplace(a, b).second)
+          seeds.emplace_back(graph.edge_first(e), graph.edge_second(e));
+      }
     }
-    for (DistrictIndex d = 0; d < kBlocks * kBlocks; d += 2) {
-      pairs.emplace_back(d, static_cast<DistrictIndex>(d + 1));
-    }
-    const double ideal = static_cast<double>(graph.total_population()) / (kBlocks * kBlocks);
+    pairs.assign(adjacent.begin(), adjacent.end());
+    const double ideal = plan.ideal_population();
     lo = static_cast<std::int64_t>(std::ceil(0.95 * ideal));
     hi = static_cast<std::int64_t>(std::floor(1.05 * ideal));
-    const Plan plan(graph, kBlocks * kBlocks, district);
     for (const auto& [a, b] : pairs) {
       Region& region = regions.emplace_back();
       region.build(plan, a, b);
@@ -69,22 +153,24 @@ struct BenchState {
   }
 };
 
-const BenchState& bench_state() {
-  static const BenchState state;
-  return state;
+const BenchState& bench_state(const benchmark::State& state) {
+  static const BenchState synthetic(true), grid(false);
+  return state.range(0) == 0 ? synthetic : grid;
 }
 
 void set_counters(benchmark::State& state, double units, double cuts, double steps) {
   const auto trees = static_cast<double>(state.iterations());
   state.SetItemsProcessed(state.iterations());
   state.counters["units_per_region"] = units / trees;
+  state.counters["regions"] = static_cast<double>(bench_state(state).regions.size());
+  state.counters["max_deviation"] = bench_state(state).max_deviation;
   if (cuts >= 0) state.counters["balanced_cuts_per_tree"] = cuts / trees;
   if (steps >= 0) state.counters["walk_steps_per_tree"] = steps / trees;
 }
 
 // Ours: uniform tree, subtree populations and the list of balanced cuts.
 void BM_WilsonTreeAndCuts(benchmark::State& state) {
-  const BenchState& s = bench_state();
+  const BenchState& s = bench_state(state);
   SpanningTreeSampler sampler;
   Rng rng = make_stream(1, 0);
   std::size_t i = 0;
@@ -100,11 +186,11 @@ void BM_WilsonTreeAndCuts(benchmark::State& state) {
   }
   set_counters(state, units, cuts, steps);
 }
-BENCHMARK(BM_WilsonTreeAndCuts);
+BENCHMARK(BM_WilsonTreeAndCuts)->Arg(0)->Arg(1);
 
 // Ours, the tree alone (subtree populations included: sample() computes them).
 void BM_WilsonTreeOnly(benchmark::State& state) {
-  const BenchState& s = bench_state();
+  const BenchState& s = bench_state(state);
   SpanningTreeSampler sampler;
   Rng rng = make_stream(1, 0);
   std::size_t i = 0;
@@ -117,11 +203,11 @@ void BM_WilsonTreeOnly(benchmark::State& state) {
   }
   set_counters(state, units, -1, -1);
 }
-BENCHMARK(BM_WilsonTreeOnly);
+BENCHMARK(BM_WilsonTreeOnly)->Arg(0)->Arg(1);
 
 // Boost.Graph's Wilson implementation on the same regions, uniform root, reused maps.
 void BM_BoostRandomSpanningTree(benchmark::State& state) {
-  const BenchState& s = bench_state();
+  const BenchState& s = bench_state(state);
   Rng rng = make_stream(1, 0);
   std::size_t i = 0;
   double units = 0;
@@ -142,12 +228,12 @@ void BM_BoostRandomSpanningTree(benchmark::State& state) {
   }
   set_counters(state, units, -1, -1);
 }
-BENCHMARK(BM_BoostRandomSpanningTree);
+BENCHMARK(BM_BoostRandomSpanningTree)->Arg(0)->Arg(1);
 
-// Building one merged region from the plan (scans all 10,000 labels once).
+// Building one merged region from the plan (scans all the map's labels once).
 void BM_RegionBuildFromPlan(benchmark::State& state) {
-  const BenchState& s = bench_state();
-  const Plan plan(s.graph, 100, s.district);
+  const BenchState& s = bench_state(state);
+  const Plan plan(s.graph, s.k, s.district);
   Region region;
   std::size_t i = 0;
   for (auto _ : state) {
@@ -157,14 +243,13 @@ void BM_RegionBuildFromPlan(benchmark::State& state) {
   }
   state.SetItemsProcessed(state.iterations());
 }
-BENCHMARK(BM_RegionBuildFromPlan);
+BENCHMARK(BM_RegionBuildFromPlan)->Arg(0)->Arg(1);
 
 // The same regions grown breadth-first from one unit of each district: O(region), not O(map).
 void BM_RegionBuildFromSeeds(benchmark::State& state) {
-  const BenchState& s = bench_state();
-  const Plan plan(s.graph, 100, s.district);
-  std::vector<std::pair<UnitIndex, UnitIndex>> seeds;
-  for (const Region& region : s.regions) seeds.emplace_back(region.global(0), region.global(region.size() - 1));
+  const BenchState& s = bench_state(state);
+  const Plan plan(s.graph, s.k, s.district);
+  const auto& seeds = s.seeds;
   Region region;
   std::size_t i = 0;
   for (auto _ : state) {
@@ -174,7 +259,7 @@ void BM_RegionBuildFromSeeds(benchmark::State& state) {
   }
   state.SetItemsProcessed(state.iterations());
 }
-BENCHMARK(BM_RegionBuildFromSeeds);
+BENCHMARK(BM_RegionBuildFromSeeds)->Arg(0)->Arg(1);
 
 }  // namespace
 

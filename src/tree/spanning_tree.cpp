@@ -94,7 +94,8 @@ std::span<const std::uint32_t> SpanningTreeSampler::balanced_cuts(std::int64_t l
   return cuts_;
 }
 
-void SpanningTreeSampler::mark_side(std::uint32_t child, std::span<std::uint8_t> out) const noexcept {
+void SpanningTreeSampler::mark_side(std::uint32_t child,
+                                    std::span<std::uint8_t> out) const noexcept {
   out[root_] = child == root_ ? 1 : 0;
   for (std::size_t k = 1; k < order_.size(); ++k) {
     const std::uint32_t v = order_[k];
@@ -103,8 +104,10 @@ void SpanningTreeSampler::mark_side(std::uint32_t child, std::span<std::uint8_t>
 }
 
 std::size_t SpanningTreeSampler::capacity_bytes() const noexcept {
-  return in_tree_.capacity() + (next_.capacity() + parent_.capacity() + order_.capacity() +
-                                cuts_.capacity() + queue_.capacity()) * sizeof(std::uint32_t) +
+  return in_tree_.capacity() +
+         (next_.capacity() + parent_.capacity() + order_.capacity() + cuts_.capacity() +
+          queue_.capacity()) *
+             sizeof(std::uint32_t) +
          subtree_.capacity() * sizeof(std::int64_t);
 }
 

@@ -16,7 +16,8 @@ double chi_square_density(double x, double df) {
 TEST(ChiSquare, ClosedFormsForOneAndTwoDegreesOfFreedom) {
   // df = 2: Q(1, x/2) = exp(-x/2); df = 1: Q(1/2, x/2) = erfc(sqrt(x/2)) (standard identities).
   for (const double x : {0.01, 0.3, 1.0, 2.5, 4.0, 9.0, 20.0, 60.0}) {
-    EXPECT_NEAR(chi_square_upper_tail(x, 2.0), std::exp(-0.5 * x), 1e-13 * std::exp(-0.5 * x) + 1e-15);
+    EXPECT_NEAR(chi_square_upper_tail(x, 2.0), std::exp(-0.5 * x),
+                1e-13 * std::exp(-0.5 * x) + 1e-15);
     const double q1 = std::erfc(std::sqrt(0.5 * x));
     EXPECT_NEAR(chi_square_upper_tail(x, 1.0), q1, 1e-12 * q1 + 1e-15);
   }
@@ -43,10 +44,10 @@ TEST(ChiSquare, MatchesPublishedCriticalValues) {
     double df, quantile, upper_tail;
   };
   const Row rows[] = {
-      {1, 3.841, 0.05},    {1, 6.635, 0.01},    {1, 10.828, 0.001}, {5, 11.070, 0.05},
-      {5, 15.086, 0.01},   {10, 18.307, 0.05},  {10, 23.209, 0.01}, {10, 29.588, 0.001},
-      {100, 124.342, 0.05}, {100, 135.807, 0.01}, {100, 149.449, 0.001},
-      {100, 77.929, 0.95}, {100, 70.065, 0.99},
+      {1, 3.841, 0.05},     {1, 6.635, 0.01},     {1, 10.828, 0.001},    {5, 11.070, 0.05},
+      {5, 15.086, 0.01},    {10, 18.307, 0.05},   {10, 23.209, 0.01},    {10, 29.588, 0.001},
+      {100, 124.342, 0.05}, {100, 135.807, 0.01}, {100, 149.449, 0.001}, {100, 77.929, 0.95},
+      {100, 70.065, 0.99},
   };
   for (const Row& row : rows) {
     const double tolerance = 0.5e-3 * chi_square_density(row.quantile, row.df) * 1.01 + 1e-12;

@@ -33,7 +33,8 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
   // 12x12 grid in four 6x6 districts; the region is the top pair or the bottom pair (72 units).
   const UnitGraph g = graph_from_edges(144, grid_edges(12, 12));
   std::vector<DistrictIndex> d(144);
-  for (std::size_t u = 0; u < 144; ++u) d[u] = static_cast<DistrictIndex>(2 * (u / 72) + (u % 12) / 6);
+  for (std::size_t u = 0; u < 144; ++u)
+    d[u] = static_cast<DistrictIndex>(2 * (u / 72) + (u % 12) / 6);
   const Plan plan(g, 4, d);
   Region region;
   SpanningTreeSampler sampler;

@@ -65,7 +65,8 @@ TEST(Region, GrownFromSeedsEqualsTheScannedRegion) {
   const UnitGraph g = graph_from_edges(36, grid_edges(6, 6));
   // Six districts of 2 rows x 3 columns.
   std::vector<DistrictIndex> d(36);
-  for (std::size_t u = 0; u < 36; ++u) d[u] = static_cast<DistrictIndex>(2 * ((u / 6) / 2) + (u % 6) / 3);
+  for (std::size_t u = 0; u < 36; ++u)
+    d[u] = static_cast<DistrictIndex>(2 * ((u / 6) / 2) + (u % 6) / 3);
   const Plan plan(g, 6, d);
   Region scanned, grown;
   for (UnitIndex u = 0; u < 36; ++u) {

@@ -69,7 +69,9 @@ class TreeCatalog {
     }
   }
   [[nodiscard]] std::size_t tree_count() const { return index_.size(); }
-  [[nodiscard]] std::uint32_t edge_count() const { return static_cast<std::uint32_t>(edges_.size()); }
+  [[nodiscard]] std::uint32_t edge_count() const {
+    return static_cast<std::uint32_t>(edges_.size());
+  }
   [[nodiscard]] std::pair<std::uint32_t, std::uint32_t> edge(std::uint32_t e) const {
     return edges_[e];
   }
@@ -114,7 +116,8 @@ ChiSquareResult wilson_chi_square(const Region& region, const TreeCatalog& catal
     ++counts[catalog.index_of(sampler.parents())];
   }
   const ChiSquareResult result = chi_square_uniform(counts);
-  ::testing::Test::RecordProperty("p_value_seed_" + std::to_string(seed), std::to_string(result.p_value));
+  ::testing::Test::RecordProperty("p_value_seed_" + std::to_string(seed),
+                                  std::to_string(result.p_value));
   return result;
 }
 
@@ -136,7 +139,8 @@ TEST(WilsonUniformity, ThreeByThreeGridAllRootsAndFixedRoots) {
   GridBlock block;
   const TreeCatalog catalog(block.region);
   ASSERT_EQ(catalog.tree_count(), 192U);  // OEIS A007341, 3x3 grid
-  const auto uniform_root = wilson_chi_square(block.region, catalog, 200, RootChoice::uniform, 0, 11);
+  const auto uniform_root =
+      wilson_chi_square(block.region, catalog, 200, RootChoice::uniform, 0, 11);
   EXPECT_GT(uniform_root.p_value, kPValueThreshold) << "X2=" << uniform_root.statistic;
   // Uniformity holds for any fixed root: a corner (local 0) and the centre (unit 5, local 4).
   const auto corner = wilson_chi_square(block.region, catalog, 200, RootChoice::fixed, 0, 12);
