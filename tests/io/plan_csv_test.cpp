@@ -1,0 +1,98 @@
+// Plan files: a written plan reads back equal, and each kind of bad plan file is an InputError
+// naming the file, line and column.
+#include "planmill/io/plan_csv.hpp"
+
+#include <gtest/gtest.h>
+
+#include "planmill/graph/unit_graph.hpp"
+#include "temp_files.hpp"
+
+namespace planmill {
+namespace {
+
+using test::expect_input_error;
+
+// Four units in a path; ids chosen to need CSV quoting.
+UnitGraph odd_ids() {
+  UnitGraphBuilder b;
+  for (const char* id : {"a", "b,1", "say \"c\"", " d"}) (void)b.add_unit(id, 1);
+  for (UnitIndex u = 0; u + 1 < 4; ++u) (void)b.add_edge(u, u + 1);
+  return std::move(b).build();
+}
+
+TEST(PlanCsv, WriteThenReadGivesTheSamePlan) {
+  test::TempDir dir;
+  const UnitGraph g = odd_ids();
+  const Plan plan(g, 2, {0, 0, 1, 1});
+  const std::string path = (dir.path() / "plan.csv").string();
+  write_plan_csv(path, plan);
+  EXPECT_EQ(test::read_file(path), "unit,district\na,1\n\"b,1\",1\n\"say \"\"c\"\"\",2\n\" d\",2\n");
+  const Plan back = read_plan_csv(path, g, 2);
+  EXPECT_TRUE(back == plan);
+}
+
+TEST(PlanCsv, RowsInAnyOrder) {
+  const UnitGraph g = odd_ids();
+  const Plan p = parse_plan_csv("u,d\n\" d\",1\na,2\n\"b,1\",2.0\n\"say \"\"c\"\"\",1\n", "p.csv", g, 2);
+  EXPECT_EQ(p.district_of(0), 1);
+  EXPECT_EQ(p.district_of(3), 0);
+  EXPECT_EQ(p.district_of(1), 1);
+}
+
+const std::string kGood = "u,d\na,1\n\"b,1\",1\n\"say \"\"c\"\"\",2\n";  // without " d"
+
+TEST(PlanCsv, UnknownId) {
+  const UnitGraph g = odd_ids();
+  const std::string m =
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "e,2\n", "p.csv", g, 2); }, "p.csv", 5, "u");
+  EXPECT_NE(m.find("'e'"), std::string::npos) << m;
+}
+
+TEST(PlanCsv, DuplicatedId) {
+  const UnitGraph g = odd_ids();
+  const std::string m =
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "a,2\n", "p.csv", g, 2); }, "p.csv", 5, "u");
+  EXPECT_NE(m.find("first on line 2"), std::string::npos) << m;
+}
+
+TEST(PlanCsv, MissingUnitsAreCountedAndNamed) {
+  const UnitGraph g = odd_ids();
+  const std::string m = expect_input_error([&] { (void)parse_plan_csv(kGood, "p.csv", g, 2); }, "p.csv", 0, "u");
+  EXPECT_NE(m.find("1 unit(s)"), std::string::npos) << m;
+  EXPECT_NE(m.find("' d'"), std::string::npos) << m;
+}
+
+TEST(PlanCsv, DistrictOutOfRange) {
+  const UnitGraph g = odd_ids();
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",3\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",0\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+}
+
+TEST(PlanCsv, DistrictNotAWholeNumber) {
+  const UnitGraph g = odd_ids();
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",1.5\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",two\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+}
+
+TEST(PlanCsv, EmptyDistrictMeansTheWrongK) {
+  const UnitGraph g = odd_ids();
+  const std::string m =
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",2\n", "p.csv", g, 3); }, "p.csv", 0, "d");
+  EXPECT_NE(m.find("district 3 has no units"), std::string::npos) << m;
+}
+
+TEST(PlanCsv, WrongColumnCount) {
+  const UnitGraph g = odd_ids();
+  expect_input_error([&] { (void)parse_plan_csv("u,d,x\na,1,1\n", "p.csv", g, 2); }, "p.csv", 1, "");
+}
+
+TEST(PlanCsv, MissingFile) {
+  test::TempDir dir;
+  const UnitGraph g = odd_ids();
+  const std::string path = (dir.path() / "none.csv").string();
+  expect_input_error([&] { (void)read_plan_csv(path, g, 2); }, path, 0, "");
+}
+
+}  // namespace
+}  // namespace planmill
