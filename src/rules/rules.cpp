@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <stdexcept>
 
 #include "planmill/base/error.hpp"
@@ -19,6 +20,17 @@ std::string with_commas(std::int64_t value) {
     out += digits[i];
   }
   return value < 0 ? "-" + out : out;
+}
+
+// 100000 -> "100,000", 16/3 -> "5.33".
+std::string ideal_text(double ideal) {
+  const double whole = std::floor(ideal);
+  const auto hundredths = static_cast<int>(std::lround((ideal - whole) * 100.0));
+  if (hundredths == 0) return with_commas(static_cast<std::int64_t>(whole));
+  if (hundredths == 100) return with_commas(static_cast<std::int64_t>(whole) + 1);
+  char buf[8];
+  std::snprintf(buf, sizeof buf, ".%02d", hundredths);
+  return with_commas(static_cast<std::int64_t>(whole)) + buf;
 }
 
 std::string percent(double fraction) {
@@ -144,6 +156,11 @@ void RuleTracker::move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept {
   update_group_terms(plan, to);
 }
 
+void RuleTracker::assign(Plan& plan, std::span<const UnitIndex> units,
+                         std::span<const DistrictIndex> to) noexcept {
+  for (std::size_t i = 0; i < units.size(); ++i) move(plan, units[i], to[i]);
+}
+
 double RuleTracker::energy(const Plan& plan) const noexcept {
   // Terms are integer counts times weights, so the sum is the same however we got here.
   double j = rules_.cut_edges_weight * static_cast<double>(plan.cut_edge_count()) +
@@ -164,14 +181,14 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
   auto add = [&text](const std::string& item) { text += (text.empty() ? "" : "; ") + item; };
   const double ideal = plan.ideal_population();
   if (bounds_.min > bounds_.max)
-    add("no district population can meet the bounds: ideal " + with_commas(std::llround(ideal)) +
+    add("no district population can meet the bounds: ideal " + ideal_text(ideal) +
         " with deviation " + percent(rules_.population_deviation).substr(1) +
         " leaves no whole number between them; allow a larger deviation");
   for (DistrictIndex d = 0; d < k_; ++d) {
     const std::int64_t p = plan.population(d);
     const std::string head = "district " + std::to_string(d + 1) + " has population " +
                              with_commas(p) + " (" + percent((static_cast<double>(p) - ideal) / ideal) +
-                             " from ideal " + with_commas(std::llround(ideal)) + "), ";
+                             " from ideal " + ideal_text(ideal) + "), ";
     if (p < bounds_.min)
       add(head + with_commas(bounds_.min - p) + " below the lower bound " + with_commas(bounds_.min));
     else if (p > bounds_.max)

@@ -74,6 +74,15 @@ TEST(RuleTracker, PopulationBoundsAndViolationText) {
   for (UnitIndex r = 0; r < 4; ++r) tracker.move(plan, r * 4 + 2, 1);
   EXPECT_TRUE(tracker.hard_rules_ok(plan));
   EXPECT_EQ(tracker.describe_violations(plan), "");
+  // eps = 0 with ideal 16/3: no whole number fits, and the text says so.
+  const Plan three(g, 3, test::stripe_assignment(4, 4, 3));
+  RuleSet exact;
+  exact.population_deviation = 0.0;
+  const RuleTracker none(three, exact);
+  EXPECT_GT(none.population_min(), none.population_max());
+  EXPECT_FALSE(none.hard_rules_ok(three));
+  EXPECT_NE(none.describe_violations(three).find("no district population can meet the bounds"),
+            std::string::npos);
 }
 
 // County splits counted by hand on a 4x4 grid whose counties are column 0, columns 1-2 and
@@ -232,6 +241,16 @@ TEST(RuleTracker, RandomMovesMatchRecomputation) {
     expect_matches(tracker, plan, m.rules);
     EXPECT_LT(hard_ok, 400U);  // the walk leaves the allowed set, so both branches are exercised
     tracker.reset(plan);
+    expect_matches(tracker, plan, m.rules);
+    // A recombination-style relabelling of a whole region at once.
+    std::vector<UnitIndex> units;
+    std::vector<DistrictIndex> to;
+    for (UnitIndex u = 0; u < 36; ++u)
+      if (plan.district_of(u) <= 1) {
+        units.push_back(u);
+        to.push_back(static_cast<DistrictIndex>(u % 6 < 3 ? 0 : 1));
+      }
+    tracker.assign(plan, units, to);
     expect_matches(tracker, plan, m.rules);
   }
 }

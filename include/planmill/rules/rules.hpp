@@ -8,6 +8,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -58,6 +59,9 @@ class RuleTracker {
 
   // plan.move(u, to) and the matching update of every rule. No allocation.
   void move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept;
+  // Moves units[i] to to[i] in turn (a recombination's relabelling), in place of Plan::assign.
+  void assign(Plan& plan, std::span<const UnitIndex> units,
+              std::span<const DistrictIndex> to) noexcept;
   // Recomputes everything from the plan (after Plan::assign or any change made behind our back).
   void reset(const Plan& plan);
 
