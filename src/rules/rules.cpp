@@ -58,6 +58,9 @@ PopulationBounds population_bounds(std::int64_t total_population, std::size_t di
 
 RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::string& job_file) {
   RuleSet rules;
+  if (!(spec.population_deviation >= 0.0 && spec.population_deviation < 1.0))
+    throw InputError({job_file, 0, "rules.population_deviation"}, "must lie in [0, 1)",
+                     "give the allowed deviation as a fraction, e.g. 0.05 for 5%");
   rules.population_deviation = spec.population_deviation;
   if (spec.county_splits_max >= 0)
     rules.county_splits_max = static_cast<std::size_t>(spec.county_splits_max);
@@ -92,7 +95,8 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
     throw std::invalid_argument("population deviation must lie in [0, 1)");
   for (const GroupShareTerm& t : rules_.group_share)
     if (t.column >= g.count_column_count())
-      throw std::invalid_argument("group-share term names count column " + std::to_string(t.column) +
+      throw std::invalid_argument("group-share term names count column " +
+                                  std::to_string(t.column) +
                                   ", the map has " + std::to_string(g.count_column_count()));
   track_counties_ = rules_.county_splits_max.has_value() || rules_.county_splits_weight != 0.0;
   if (track_counties_ && !g.has_counties())
@@ -102,7 +106,8 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
   if (track_counties_) {
     county_of_ = g.counties().code.data();
     county_count_ = g.counties().names.size();
-    for (std::uint32_t c : g.counties().code) county_count_ = std::max<std::size_t>(county_count_, c + 1);
+    for (std::uint32_t c : g.counties().code)
+      county_count_ = std::max<std::size_t>(county_count_, c + 1);
   }
   bounds_ = population_bounds(g.total_population(), k_, rules_.population_deviation);
   reset(plan);
@@ -187,12 +192,15 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
   for (DistrictIndex d = 0; d < k_; ++d) {
     const std::int64_t p = plan.population(d);
     const std::string head = "district " + std::to_string(d + 1) + " has population " +
-                             with_commas(p) + " (" + percent((static_cast<double>(p) - ideal) / ideal) +
+                             with_commas(p) + " (" +
+                             percent((static_cast<double>(p) - ideal) / ideal) +
                              " from ideal " + ideal_text(ideal) + "), ";
     if (p < bounds_.min)
-      add(head + with_commas(bounds_.min - p) + " below the lower bound " + with_commas(bounds_.min));
+      add(head + with_commas(bounds_.min - p) + " below the lower bound " +
+          with_commas(bounds_.min));
     else if (p > bounds_.max)
-      add(head + with_commas(p - bounds_.max) + " above the upper bound " + with_commas(bounds_.max));
+      add(head + with_commas(p - bounds_.max) + " above the upper bound " +
+          with_commas(bounds_.max));
   }
   if (rules_.county_splits_max && splits_ > *rules_.county_splits_max)
     add(std::to_string(splits_) + " counties are split, the limit is " +

@@ -309,6 +309,9 @@ TEST(MakeRuleSet, ResolvesGroupsAndNamesMissingData) {
     EXPECT_EQ(e.where().column, "rules.county_splits_max");
     EXPECT_EQ(e.where().file, "job.toml");
   }
+  RulesSpec wide = spec;
+  wide.population_deviation = 1.5;
+  EXPECT_THROW((void)make_rule_set(wide, g, "job.toml"), InputError);
   RulesSpec unknown = spec;
   unknown.group_share = {{"hispanic", 0.4, 3.0}};
   EXPECT_THROW((void)make_rule_set(unknown, g, "job.toml"), InputError);
