@@ -1,9 +1,45 @@
+#include <cstdio>
+#include <iostream>
+#include <set>
+
 #include "cli/commands.hpp"
+#include "planmill/job/loaded_job.hpp"
 
 namespace planmill::cli {
 
+namespace {
+int run_check(const std::string& job_path) {
+  const LoadedJob loaded = load_and_check_job(job_path);
+  for (const auto& warning : loaded.report.warnings) std::cerr << "planmill: warning: " << warning << "\n";
+  const UnitGraph& g = loaded.graph;
+  const auto components = g.components();
+  const double ideal = static_cast<double>(g.total_population()) / static_cast<double>(loaded.job.districts);
+  std::printf("job          %s\n", job_path.c_str());
+  std::printf("units        %zu\n", g.unit_count());
+  std::printf("edges        %zu\n", g.edge_count());
+  std::printf("components   %zu\n", components.sizes.size());
+  std::printf("districts    %zu\n", loaded.job.districts);
+  std::printf("population   %lld total, %.1f ideal per district, tolerance +/-%.2f%%\n",
+              static_cast<long long>(g.total_population()), ideal, 100.0 * loaded.job.rules.population_deviation);
+  if (g.has_counties()) std::printf("counties     %zu\n", g.counties().names.size());
+  if (g.has_municipalities()) std::printf("towns        %zu\n", g.municipalities().names.size());
+  if (loaded.report.zero_population_units > 0)
+    std::printf("zero-pop     %zu units\n", loaded.report.zero_population_units);
+  std::printf("count cols   %zu (%zu groups, %zu elections)\n", g.count_column_count(), g.group_columns().size(),
+              g.elections().size());
+  std::printf("start        %s\n", loaded.start ? loaded.job.start.c_str() : "random seed plans");
+  std::printf("kernel       %s, %zu chains x %llu steps\n", kernel_name(loaded.job.sampler.kernel),
+              loaded.job.sampler.chains, static_cast<unsigned long long>(loaded.job.sampler.steps));
+  std::printf("ok\n");
+  return 0;
+}
+}  // namespace
+
 void add_check_command(CLI::App& app, Action& action) {
-  add_pending_command(app, action, "check", "load and validate everything a job file names");
+  auto* sub = app.add_subcommand("check", "load and validate everything a job file names, and summarise it");
+  auto job = std::make_shared<std::string>();
+  sub->add_option("job", *job, "job file (TOML)")->required();
+  sub->callback([&action, job] { action = [job] { return run_check(*job); }; });
 }
 
 }  // namespace planmill::cli

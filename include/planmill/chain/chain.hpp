@@ -1,0 +1,51 @@
+#pragma once
+// One chain: its state, its own random stream keyed by (run seed, chain index), the kernel, and
+// counts of every step's outcome. save()/restore() round-trip the whole chain exactly.
+#include <array>
+#include <memory>
+#include <string>
+#include <string_view>
+
+#include "planmill/moves/kernel.hpp"
+
+namespace planmill {
+
+struct ChainCounters {
+  std::uint64_t steps = 0;
+  std::array<std::uint64_t, kStepResultCount> outcomes{};  // indexed by StepResult
+  [[nodiscard]] double acceptance() const noexcept {
+    return steps ? static_cast<double>(outcomes[0]) / static_cast<double>(steps) : 0.0;
+  }
+};
+
+struct ChainSetup {
+  const UnitGraph* graph = nullptr;
+  RuleSet rules;
+  KernelSettings kernel;
+  std::uint64_t run_seed = 1;
+  std::uint64_t chain_index = 0;
+};
+
+class Chain {
+ public:
+  Chain(const ChainSetup& setup, Plan start);
+
+  StepResult step();
+  [[nodiscard]] const ChainState& state() const noexcept { return state_; }
+  [[nodiscard]] const ChainCounters& counters() const noexcept { return counters_; }
+  [[nodiscard]] std::uint64_t chain_index() const noexcept { return chain_index_; }
+
+  // Text snapshot of the RNG, counters and plan; restore() accepts only a snapshot of a chain with
+  // the same map and district count, and throws std::invalid_argument otherwise.
+  [[nodiscard]] std::string save() const;
+  void restore(std::string_view snapshot);
+
+ private:
+  std::uint64_t chain_index_;
+  ChainState state_;
+  std::unique_ptr<Kernel> kernel_;
+  Rng rng_;
+  ChainCounters counters_;
+};
+
+}  // namespace planmill

@@ -1,0 +1,23 @@
+#pragma once
+// A job file with everything it names loaded and validated: the map, the feasibility of the
+// district count and tolerance, and the starting plan if one is given.
+#include <optional>
+#include <string>
+
+#include "planmill/graph/load.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/plan/plan.hpp"
+
+namespace planmill {
+
+struct LoadedJob {
+  JobSpec job;
+  UnitGraph graph;
+  LoadReport report;
+  std::optional<Plan> start;  // set when districts.start names a plan file
+};
+
+// Throws InputError / InfeasibleError with the file, line and key of the first problem.
+[[nodiscard]] LoadedJob load_and_check_job(const std::string& job_path);
+
+}  // namespace planmill

@@ -1,0 +1,73 @@
+#pragma once
+// Proposal kernels over a Plan. A kernel proposes a change, decides it, and leaves the state
+// either changed (accepted) or exactly as it was. It knows nothing of files or ranks.
+//
+//   recombination  spanning-tree recombination: merge two adjacent districts, draw a uniform
+//                  spanning tree, cut a uniformly chosen balanced edge. Fast exploration; its
+//                  stationary law has no known closed form and is not the spanning-tree law.
+//   merge-split    the same proposal with a Metropolis-Hastings correction, so that the chain
+//                  targets pi(P) ~ prod_i tau(P_i)^gamma * exp(-beta * E(P)) over valid plans.
+//   flip           move one boundary unit to a neighbouring district, Metropolis-Hastings
+//                  corrected for the varying number of possible moves; targets exp(-beta E(P)).
+#include <cstdint>
+#include <memory>
+
+#include "planmill/base/random.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/plan/plan.hpp"
+#include "planmill/rules/rules.hpp"
+
+namespace planmill {
+
+// What the chain works on: the plan and its rule bookkeeping, always in step.
+struct ChainState {
+  Plan plan;
+  RuleTracker rules;
+  ChainState(Plan p, const RuleSet& set) : plan(std::move(p)), rules(plan, set) {}
+  ChainState(const ChainState& other) : plan(other.plan), rules(other.rules) {}
+  ChainState& operator=(const ChainState&) = default;
+};
+
+enum class StepResult : std::uint8_t {
+  accepted,   // the plan changed
+  rejected,   // Metropolis-Hastings rejection (the plan stays)
+  no_cut,     // the spanning tree had no balanced edge, or the merge-split coin said "no cut"
+  invalid,    // the proposal broke a hard rule (contiguity, population, county limit)
+};
+inline constexpr std::size_t kStepResultCount = 4;
+
+struct KernelSettings {
+  KernelKind kind = KernelKind::recombination;
+  double gamma = 0.0;  // merge-split only
+  double beta = 1.0;   // multiplies the energy in merge-split and flip
+  // Merge-split: M, the bound on balanced edges of a tree. 0 = |U| - 1, always exact. A tree with
+  // more balanced edges than M is an error, never silently capped.
+  std::size_t balanced_cut_bound = 0;
+  // For tests only: leave out the Hastings factor (merge-split: cut(P)/cut(P'); flip: the ratio of
+  // move counts), so that tests can show the self-test turns red on a wrong acceptance ratio.
+  bool drop_hastings_factor = false;
+};
+
+// The county-split limit, the one hard rule a tree cut or flip can break besides contiguity.
+[[nodiscard]] inline bool within_county_limit(const RuleTracker& rules) noexcept {
+  const auto& limit = rules.rules().county_splits_max;
+  return !limit || rules.county_splits() <= *limit;
+}
+
+class Kernel {
+ public:
+  virtual ~Kernel() = default;
+  // Recomputes caches from the state (after construction or a restore from a checkpoint).
+  virtual void reset(const ChainState& state) = 0;
+  virtual StepResult step(ChainState& state, Rng& rng) = 0;
+  [[nodiscard]] virtual KernelKind kind() const noexcept = 0;
+};
+
+[[nodiscard]] std::unique_ptr<Kernel> make_kernel(const KernelSettings& settings, const UnitGraph& graph,
+                                                  std::size_t district_count);
+
+// A uniformly chosen cut edge of the plan (rejection from uniform edges: exact, O(1) expected
+// per cut-edge fraction). The plan must have at least one cut edge.
+[[nodiscard]] EdgeIndex uniform_cut_edge(const Plan& plan, Rng& rng) noexcept;
+
+}  // namespace planmill

@@ -1,0 +1,60 @@
+#include "planmill/chain/chain.hpp"
+
+#include <sstream>
+#include <stdexcept>
+
+namespace planmill {
+
+Chain::Chain(const ChainSetup& setup, Plan start)
+    : chain_index_(setup.chain_index),
+      state_(std::move(start), setup.rules),
+      kernel_(make_kernel(setup.kernel, *setup.graph, state_.plan.district_count())),
+      rng_(make_stream(setup.run_seed, setup.chain_index)) {
+  kernel_->reset(state_);
+}
+
+StepResult Chain::step() {
+  const StepResult result = kernel_->step(state_, rng_);
+  ++counters_.steps;
+  ++counters_.outcomes[static_cast<std::size_t>(result)];
+  return result;
+}
+
+std::string Chain::save() const {
+  std::ostringstream out;
+  out << "planmill-chain 1\n" << chain_index_ << ' ' << state_.plan.unit_count() << ' '
+      << state_.plan.district_count() << '\n' << rng_ << '\n' << counters_.steps;
+  for (auto c : counters_.outcomes) out << ' ' << c;
+  out << '\n';
+  for (DistrictIndex d : state_.plan.assignment()) out << d << ' ';
+  out << '\n';
+  return out.str();
+}
+
+void Chain::restore(std::string_view snapshot) {
+  std::istringstream in{std::string(snapshot)};
+  std::string magic;
+  int version = 0;
+  std::uint64_t index = 0;
+  std::size_t units = 0, districts = 0;
+  in >> magic >> version >> index >> units >> districts;
+  if (!in || magic != "planmill-chain" || version != 1)
+    throw std::invalid_argument("not a planmill chain snapshot");
+  if (units != state_.plan.unit_count() || districts != state_.plan.district_count())
+    throw std::invalid_argument("snapshot is for another map or district count");
+  Rng rng;
+  ChainCounters counters;
+  in >> rng >> counters.steps;
+  for (auto& c : counters.outcomes) in >> c;
+  std::vector<DistrictIndex> labels(units);
+  for (auto& d : labels) in >> d;
+  if (!in) throw std::invalid_argument("chain snapshot is truncated");
+  Plan plan(state_.plan.graph(), districts, std::move(labels));
+  state_ = ChainState(std::move(plan), state_.rules.rules());
+  kernel_->reset(state_);
+  rng_ = rng;
+  counters_ = counters;
+  chain_index_ = index;
+}
+
+}  // namespace planmill

@@ -1,0 +1,17 @@
+#include "planmill/job/loaded_job.hpp"
+
+#include "planmill/graph/feasibility.hpp"
+#include "planmill/io/plan_csv.hpp"
+
+namespace planmill {
+
+LoadedJob load_and_check_job(const std::string& job_path) {
+  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt};
+  loaded.graph = load_unit_graph(loaded.job.map, &loaded.report);
+  check_feasible(loaded.graph, loaded.job.districts, loaded.job.rules.population_deviation, job_path);
+  if (loaded.job.start != "random")
+    loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));
+  return loaded;
+}
+
+}  // namespace planmill

@@ -1,0 +1,87 @@
+#include "moves/flip_kernel.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace planmill {
+
+void BoundarySet::reset(const Plan& plan) {
+  on_boundary_.assign(plan.unit_count(), 0);
+  count_ = 0;
+  for (UnitIndex u = 0; u < plan.unit_count(); ++u) refresh(plan, u);
+}
+
+void BoundarySet::refresh(const Plan& plan, UnitIndex u) {
+  std::uint8_t now = 0;
+  for (UnitIndex v : plan.graph().neighbors(u))
+    if (plan.district_of(v) != plan.district_of(u)) {
+      now = 1;
+      break;
+    }
+  count_ = count_ + now - on_boundary_[u];
+  on_boundary_[u] = now;
+}
+
+UnitIndex BoundarySet::draw(Rng& rng) const noexcept {
+  const auto n = static_cast<std::uint32_t>(on_boundary_.size());
+  for (;;) {
+    const UnitIndex u = uniform_below(rng, n);
+    if (on_boundary_[u]) return u;
+  }
+}
+
+void BoundarySet::update_around(const Plan& plan, UnitIndex u) {
+  refresh(plan, u);
+  for (UnitIndex v : plan.graph().neighbors(u)) refresh(plan, v);
+}
+
+FlipKernel::FlipKernel(const KernelSettings& settings, const UnitGraph& graph) : settings_(settings) {
+  std::size_t max_degree = 0;
+  for (UnitIndex u = 0; u < graph.unit_count(); ++u) max_degree = std::max(max_degree, graph.degree(u));
+  neighbours_.reserve(max_degree);
+}
+
+std::size_t FlipKernel::collect_other_districts(const Plan& plan, UnitIndex u, DistrictIndex own) {
+  neighbours_.clear();
+  for (UnitIndex v : plan.graph().neighbors(u)) {
+    const DistrictIndex d = plan.district_of(v);
+    if (d != own && std::find(neighbours_.begin(), neighbours_.end(), d) == neighbours_.end())
+      neighbours_.push_back(d);
+  }
+  return neighbours_.size();
+}
+
+void FlipKernel::move(ChainState& state, UnitIndex u, DistrictIndex to) {
+  state.rules.move(state.plan, u, to);
+  boundary_.update_around(state.plan, u);
+}
+
+StepResult FlipKernel::step(ChainState& state, Rng& rng) {
+  // alpha = min{1, pi(P')/pi(P) * |dP| |N(v,P)| / (|dP'| |N(v,P')|)}: docs/kernels.md, "Flip".
+  Plan& plan = state.plan;
+  const double boundary_before = static_cast<double>(boundary_.size());
+  const UnitIndex v = boundary_.draw(rng);
+  const DistrictIndex from = plan.district_of(v);
+  const std::size_t choices_before = collect_other_districts(plan, v, from);
+  const DistrictIndex to = neighbours_[uniform_below(rng, static_cast<std::uint32_t>(choices_before))];
+  const std::int64_t pop = plan.graph().population(v);
+  if (plan.population(from) - pop < state.rules.population_min() ||
+      plan.population(to) + pop > state.rules.population_max())
+    return StepResult::invalid;
+  const double energy_before = state.rules.energy(plan);
+  move(state, v, to);
+  if (!plan.is_connected(from) || !within_county_limit(state.rules)) {
+    move(state, v, from);
+    return StepResult::invalid;
+  }
+  const std::size_t choices_after = collect_other_districts(plan, v, to);
+  double log_ratio = -settings_.beta * (state.rules.energy(plan) - energy_before);
+  if (!settings_.drop_hastings_factor)
+    log_ratio += std::log(boundary_before * static_cast<double>(choices_before)) -
+                 std::log(static_cast<double>(boundary_.size()) * static_cast<double>(choices_after));
+  if (log_ratio >= 0.0 || std::log(uniform01(rng)) < log_ratio) return StepResult::accepted;
+  move(state, v, from);
+  return StepResult::rejected;
+}
+
+}  // namespace planmill

@@ -1,0 +1,113 @@
+#include "moves/tree_kernels.hpp"
+
+#include <cmath>
+#include <stdexcept>
+#include <string>
+
+namespace planmill {
+
+TreeProposal::TreeProposal(const UnitGraph& graph) : side_(graph.unit_count()), before_(graph.unit_count()) {}
+
+void TreeProposal::draw(const Plan& plan, Rng& rng) {
+  const UnitGraph& g = plan.graph();
+  const EdgeIndex e = uniform_cut_edge(plan, rng);
+  a_ = plan.district_of(g.edge_first(e));
+  b_ = plan.district_of(g.edge_second(e));
+  if (a_ > b_) std::swap(a_, b_);
+  region_.build(plan, a_, b_);
+  sampler_.sample(region_, rng);
+}
+
+std::span<const std::uint32_t> TreeProposal::balanced_cuts(const RuleTracker& rules) {
+  return sampler_.balanced_cuts(rules.population_min(), rules.population_max());
+}
+
+void TreeProposal::apply(ChainState& state, std::uint32_t child, Rng& rng) {
+  const std::span<std::uint8_t> side(side_.data(), region_.size());
+  sampler_.mark_side(child, side);
+  const bool flip = (rng() & 1U) != 0;
+  const DistrictIndex inside = flip ? b_ : a_, outside = flip ? a_ : b_;
+  for (std::uint32_t i = 0; i < region_.size(); ++i) {
+    const UnitIndex u = region_.global(i);
+    before_[i] = state.plan.district_of(u);
+    const DistrictIndex to = side[i] ? inside : outside;
+    if (to != before_[i]) state.rules.move(state.plan, u, to);
+  }
+}
+
+void TreeProposal::revert(ChainState& state) {
+  for (std::uint32_t i = 0; i < region_.size(); ++i) {
+    const UnitIndex u = region_.global(i);
+    if (state.plan.district_of(u) != before_[i]) state.rules.move(state.plan, u, before_[i]);
+  }
+}
+
+RecombinationKernel::RecombinationKernel(const KernelSettings&, const UnitGraph& graph, std::size_t)
+    : proposal_(graph) {}
+
+StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
+  proposal_.draw(state.plan, rng);
+  const auto cuts = proposal_.balanced_cuts(state.rules);
+  if (cuts.empty()) return StepResult::no_cut;
+  proposal_.apply(state, cuts[uniform_below(rng, static_cast<std::uint32_t>(cuts.size()))], rng);
+  if (!within_county_limit(state.rules)) {
+    proposal_.revert(state);
+    return StepResult::invalid;
+  }
+  return StepResult::accepted;
+}
+
+MergeSplitKernel::MergeSplitKernel(const KernelSettings& settings, const UnitGraph& graph,
+                                   std::size_t district_count)
+    : settings_(settings), proposal_(graph), log_tau_(district_count, 0.0) {}
+
+double MergeSplitKernel::log_tree_count(const Plan& plan, DistrictIndex d) {
+  count_region_.build(plan, d, d);
+  return counter_.log_count(count_region_);
+}
+
+void MergeSplitKernel::reset(const ChainState& state) {
+  if (settings_.gamma == 1.0) return;
+  for (DistrictIndex d = 0; d < state.plan.district_count(); ++d) log_tau_[d] = log_tree_count(state.plan, d);
+}
+
+StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
+  // Proposal and acceptance: ../docs/kernels.md, "Merge-split". With a uniform cut edge choosing
+  // the pair, q(P')/q(P) times |E(A,B)|/|E(A',B')| reduces to cut(P)/cut(P').
+  const double cut_before = static_cast<double>(state.plan.cut_edge_count());
+  const double energy_before = state.rules.energy(state.plan);
+  proposal_.draw(state.plan, rng);
+  const auto cuts = proposal_.balanced_cuts(state.rules);
+  const std::size_t bound =
+      settings_.balanced_cut_bound > 0 ? settings_.balanced_cut_bound : proposal_.region_size() - 1;
+  if (cuts.size() > bound)
+    throw std::runtime_error("merge-split: a spanning tree has " + std::to_string(cuts.size()) +
+                             " balanced edges, more than the bound M = " + std::to_string(bound) +
+                             "; raise sampler.balanced_cut_bound");
+  const std::uint32_t pick = uniform_below(rng, static_cast<std::uint32_t>(bound));
+  if (pick >= cuts.size()) return StepResult::no_cut;
+  proposal_.apply(state, cuts[pick], rng);
+  if (!within_county_limit(state.rules)) {
+    proposal_.revert(state);
+    return StepResult::invalid;
+  }
+  double log_ratio = -settings_.beta * (state.rules.energy(state.plan) - energy_before);
+  if (!settings_.drop_hastings_factor)
+    log_ratio += std::log(cut_before) - std::log(static_cast<double>(state.plan.cut_edge_count()));
+  const DistrictIndex a = proposal_.first(), b = proposal_.second();
+  double tau_a = 0, tau_b = 0;
+  if (settings_.gamma != 1.0) {
+    tau_a = log_tree_count(state.plan, a);
+    tau_b = log_tree_count(state.plan, b);
+    log_ratio += (settings_.gamma - 1.0) * (tau_a + tau_b - log_tau_[a] - log_tau_[b]);
+  }
+  if (log_ratio >= 0.0 || std::log(uniform01(rng)) < log_ratio) {
+    log_tau_[a] = tau_a;
+    log_tau_[b] = tau_b;
+    return StepResult::accepted;
+  }
+  proposal_.revert(state);
+  return StepResult::rejected;
+}
+
+}  // namespace planmill

@@ -1,0 +1,64 @@
+#pragma once
+// Spanning-tree recombination and merge-split share one proposal: merge the two districts at a
+// uniformly chosen cut edge, draw a uniform spanning tree, cut a balanced edge.
+#include <vector>
+
+#include "planmill/moves/kernel.hpp"
+#include "planmill/tree/region.hpp"
+#include "planmill/tree/spanning_tree.hpp"
+#include "planmill/tree/tree_count.hpp"
+
+namespace planmill {
+
+class TreeProposal {
+ public:
+  explicit TreeProposal(const UnitGraph& graph);
+  // Merges the districts at a uniform cut edge and draws a uniform spanning tree of their union.
+  void draw(const Plan& plan, Rng& rng);
+  [[nodiscard]] std::span<const std::uint32_t> balanced_cuts(const RuleTracker& rules);
+  // Relabels the merged region: the subtree below `child` gets one of the two labels (by a fair
+  // coin, so the proposal is symmetric in the labels), the rest the other.
+  void apply(ChainState& state, std::uint32_t child, Rng& rng);
+  // Puts back the labels the region had before apply().
+  void revert(ChainState& state);
+  [[nodiscard]] DistrictIndex first() const noexcept { return a_; }
+  [[nodiscard]] DistrictIndex second() const noexcept { return b_; }
+  [[nodiscard]] std::size_t region_size() const noexcept { return region_.size(); }
+
+ private:
+  Region region_;
+  SpanningTreeSampler sampler_;
+  std::vector<std::uint8_t> side_;
+  std::vector<DistrictIndex> before_;  // label of each local vertex before apply()
+  DistrictIndex a_ = 0, b_ = 0;
+};
+
+class RecombinationKernel final : public Kernel {
+ public:
+  RecombinationKernel(const KernelSettings& settings, const UnitGraph& graph, std::size_t district_count);
+  void reset(const ChainState&) override {}
+  StepResult step(ChainState& state, Rng& rng) override;
+  [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::recombination; }
+
+ private:
+  TreeProposal proposal_;
+};
+
+class MergeSplitKernel final : public Kernel {
+ public:
+  MergeSplitKernel(const KernelSettings& settings, const UnitGraph& graph, std::size_t district_count);
+  void reset(const ChainState& state) override;
+  StepResult step(ChainState& state, Rng& rng) override;
+  [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::merge_split; }
+
+ private:
+  [[nodiscard]] double log_tree_count(const Plan& plan, DistrictIndex d);
+
+  KernelSettings settings_;
+  TreeProposal proposal_;
+  Region count_region_;
+  TreeCounter counter_;
+  std::vector<double> log_tau_;  // per district, only when gamma != 1
+};
+
+}  // namespace planmill

@@ -1,0 +1,57 @@
+// Seed plans: valid when a valid plan exists, a clear error when none can be found, and a user's
+// plan checked with the district and amount of every violation.
+#include <gtest/gtest.h>
+
+#include "planmill/base/error.hpp"
+#include "planmill/seed/seed_plan.hpp"
+#include "small_graphs.hpp"
+
+namespace planmill {
+namespace {
+
+TEST(SeedPlan, RandomSeedsAreValidForManyShapes) {
+  const UnitGraph g = test::grid(12, 10);
+  for (std::size_t k : {2u, 3u, 5u, 8u, 12u}) {
+    RuleSet rules;
+    rules.population_deviation = 0.05;
+    Rng rng = make_stream(7, k);
+    const Plan plan = random_seed_plan(g, k, rules, rng);
+    EXPECT_TRUE(plan.all_connected()) << k;
+    EXPECT_LE(plan.max_population_deviation(), 0.05 + 1e-12) << k;
+    const RuleTracker tracker(plan, rules);
+    EXPECT_TRUE(tracker.hard_rules_ok(plan));
+  }
+}
+
+TEST(SeedPlan, ImpossibleToleranceIsAnInfeasibleErrorAfterBoundedEffort) {
+  // A path of 5 units of population 1 cannot be cut into 2 districts of exactly 2.5.
+  const UnitGraph g = test::graph_from_edges(5, test::path_edges(5));
+  RuleSet rules;
+  rules.population_deviation = 0.0;
+  Rng rng = make_stream(1, 0);
+  try {
+    (void)random_seed_plan(g, 2, rules, rng, {20, 3});
+    FAIL();
+  } catch (const InfeasibleError& e) {
+    EXPECT_NE(std::string(e.what()).find("districts.start"), std::string::npos) << e.what();
+  }
+}
+
+TEST(SeedPlan, UserPlanViolationsNameTheDistrict) {
+  const UnitGraph g = test::grid(2, 4);  // 0 1 2 3 / 4 5 6 7
+  // District 1 = {0, 3}: not contiguous; district 2 has the remaining 6 units.
+  Plan plan(g, 2, {0, 1, 1, 0, 1, 1, 1, 1});
+  RuleSet rules;
+  rules.population_deviation = 0.1;
+  try {
+    check_seed_plan(plan, rules, "start.csv");
+    FAIL();
+  } catch (const InfeasibleError& e) {
+    const std::string m = e.what();
+    EXPECT_NE(m.find("start.csv"), std::string::npos) << m;
+    EXPECT_NE(m.find("district 1 is not contiguous"), std::string::npos) << m;
+  }
+}
+
+}  // namespace
+}  // namespace planmill
