@@ -1,6 +1,8 @@
 // Effective sample size of a (split) matrix, eqs. (5)-(11) of Vehtari et al. (2021) in the exact
 // arrangement of posterior 1.4.0's .ess(), so that the truncation and the cap agree with it.
 #include <algorithm>
+#include <array>
+#include <memory>
 #include <cfloat>
 #include <cmath>
 
@@ -10,9 +12,16 @@
 namespace planmill::diagnose::detail {
 namespace {
 
+// FFT tables are reused while the padded length stays the same (one per thread).
+const Fft& fft_of_size(std::size_t p) {
+  thread_local std::unique_ptr<Fft> cached;
+  if (!cached || cached->size() != p) cached = std::make_unique<Fft>(p);
+  return *cached;
+}
+
 // Mean over chains of the autocovariance at lag t, on demand. Geyer's sequence usually stops
-// after a few lags, so the first lags are direct sums (cost n per lag and chain); a longer
-// sequence switches to the FFT, which gives all lags at once. Both compute the same numbers:
+// after a few lags, so the first lags are direct sums (cost n per lag and chain); a long
+// sequence (strong autocorrelation) switches to the FFT, which gives all lags at once. Both compute the same numbers:
 // acov_m(t) = (1/n) sum_{i < n-t} y_i y_{i+t}, y the chain minus its mean.
 class MeanAutocovariance {
  public:
@@ -35,31 +44,42 @@ class MeanAutocovariance {
         all_by_fft();
         break;
       }
-      mean_[known_] = direct(known_);
-      ++known_;
+      known_ += direct_block(known_);
     }
     return mean_[t];
   }
 
  private:
-  static constexpr std::size_t kDirectLags = 48;
+  static constexpr std::size_t kBlock = 8;         // lags per pass over the draws
+  static constexpr std::size_t kDirectLags = 32;  // beyond this the FFT is cheaper
 
-  double direct(std::size_t t) const {
-    double total = 0.0;
+  // Lags first .. first + kBlock - 1 in one pass; independent sums keep the pipeline full.
+  std::size_t direct_block(std::size_t first) {
+    const std::size_t count = std::min(kBlock, n_ - first);
+    std::array<double, kBlock> total{};
     for (std::size_t c = 0; c < m_; ++c) {
       const double* y = centred_.data() + c * n_;
-      double sum = 0.0;
-      for (std::size_t i = 0; i + t < n_; ++i) sum += y[i] * y[i + t];
-      total += sum / static_cast<double>(n_);
+      std::array<double, kBlock> sum{};
+      std::size_t i = 0;
+      if (count == kBlock) {
+        for (; i + first + kBlock <= n_; ++i) {
+          for (std::size_t k = 0; k < kBlock; ++k) sum[k] += y[i] * y[i + first + k];
+        }
+      }
+      for (std::size_t k = 0; k < count; ++k) {
+        for (std::size_t j = i; j + first + k < n_; ++j) sum[k] += y[j] * y[j + first + k];
+      }
+      for (std::size_t k = 0; k < count; ++k) total[k] += sum[k] / static_cast<double>(n_);
     }
-    return total / static_cast<double>(m_);
+    for (std::size_t k = 0; k < count; ++k) mean_[first + k] = total[k] / static_cast<double>(m_);
+    return count;
   }
 
   // Two real chains a, b per complex transform: z = a + i b, then A_k = (Z_k + conj Z_{-k})/2 and
   // B_k = (Z_k - conj Z_{-k})/2i; the inverse of |A|^2 + i|B|^2 gives both autocovariances.
   void all_by_fft() {
     const std::size_t p = next_power_of_two(2 * n_);
-    const Fft fft(p);
+    const Fft& fft = fft_of_size(p);
     std::vector<double> re(p), im(p), total(n_, 0.0);
     for (std::size_t c = 0; c < m_; c += 2) {
       std::fill(re.begin(), re.end(), 0.0);
