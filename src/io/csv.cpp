@@ -182,7 +182,7 @@ CsvTable read_csv_file(const std::string& path) {
 std::string csv_field(std::string_view value) {
   const bool needs_quotes = value.empty() || value.find_first_of(",\"\r\n") != std::string_view::npos ||
                             value.front() == ' ' || value.back() == ' ' || value.front() == '\t' ||
-                            value.back() == '\t';
+                            value.back() == '\t' || value.substr(0, 3) == "\xEF\xBB\xBF";
   if (!needs_quotes) return std::string(value);
   std::string out = "\"";
   for (char c : value) {

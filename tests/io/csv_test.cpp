@@ -100,6 +100,9 @@ TEST(Csv, ReadsAFile) {
 
 TEST(Csv, FieldWriterRoundTrips) {
   const std::vector<std::string> values = {"plain", "with,comma", "say \"hi\"", "two\nlines", " padded ", "", "x\r\ny"};
+  // A value starting with a byte-order mark must survive being the first field of a file.
+  const CsvTable first = parse_csv_text(csv_field("\xEF\xBB\xBFid") + "\nx\n", "bom.csv");
+  EXPECT_EQ(first.header[0], "\xEF\xBB\xBFid");
   std::string text = "v\n";
   for (const auto& v : values) text += csv_field(v) + "\n";
   const CsvTable t = parse_csv_text(text, "r.csv");

@@ -34,7 +34,8 @@ struct CsvTable {
 [[nodiscard]] CsvTable read_csv_file(const std::string& path);
 
 // The field as written to a CSV file: quoted (with "" escapes) when it holds a comma, quote,
-// line break or leading/trailing space, or is empty.
+// line break or leading/trailing space, is empty, or starts with a byte-order mark (which a
+// reader would drop at the start of a file).
 [[nodiscard]] std::string csv_field(std::string_view value);
 
 }  // namespace planmill
