@@ -87,12 +87,17 @@ class UnitTableReader {
     return values;
   }
 
-  UnitCodes codes(std::size_t c, const char* what) const {
+  // Empty cells are errors for counties; for municipalities they mean "in none" (rural land).
+  UnitCodes codes(std::size_t c, const char* what, bool empty_means_none = false) const {
     UnitCodes codes;
     std::unordered_map<std::string, std::uint32_t> code_of;
     codes.code.reserve(table_.rows.size());
     for (const CsvRow& row : table_.rows) {
       const std::string& name = row.fields[c];
+      if (name.empty() && empty_means_none) {
+        codes.code.push_back(UnitCodes::kNone);
+        continue;
+      }
       if (name.empty()) {
         throw InputError({table_.source, row.line, table_.header[c]}, std::string(what) + " code is empty",
                          "give every unit a code");
@@ -189,7 +194,7 @@ void read_units(const MapSpec& spec, const CsvTable& units, UnitGraphBuilder& bu
     builder.add_election(std::move(e));
   }
   if (county_col != std::string::npos) builder.set_counties(reader.codes(county_col, "county"));
-  if (town_col != std::string::npos) builder.set_municipalities(reader.codes(town_col, "municipality"));
+  if (town_col != std::string::npos) builder.set_municipalities(reader.codes(town_col, "municipality", true));
   if (area_col != std::string::npos) builder.set_areas(reader.numbers(area_col, "area"));
   if (perimeter_col != std::string::npos) builder.set_perimeters(reader.numbers(perimeter_col, "perimeter"));
   if (outer_col != std::string::npos) builder.set_outer_boundary(reader.numbers(outer_col, "outer boundary"));

@@ -14,7 +14,7 @@ void TreeProposal::draw(const Plan& plan, Rng& rng) {
   a_ = plan.district_of(g.edge_first(e));
   b_ = plan.district_of(g.edge_second(e));
   if (a_ > b_) std::swap(a_, b_);
-  region_.build(plan, a_, b_);
+  region_.build_from_seeds(plan, g.edge_first(e), g.edge_second(e));
   sampler_.sample(region_, rng);
 }
 

@@ -86,7 +86,6 @@ TEST_P(BuiltinCase, PassesAgainstExactEnumeration) {
   EXPECT_TRUE(r.all_valid) << r.name;
   EXPECT_TRUE(r.passed) << r.name << ": TV " << r.total_variation << ", p " << r.p_value << ", visited "
                         << r.plans_visited << "/" << r.valid_plans << " " << r.note;
-  if (r.kernel != "recombination") EXPECT_LT(r.total_variation, 0.05) << r.name;
 }
 
 INSTANTIATE_TEST_SUITE_P(All, BuiltinCase, ::testing::Range<std::size_t>(0, builtin_selftest_cases(true).size()));

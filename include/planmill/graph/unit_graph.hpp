@@ -21,8 +21,10 @@ struct Election {
   std::vector<std::size_t> columns;  // indices into the graph's count columns
 };
 
-// A categorical code per unit (county, municipality): dense codes 0..names.size()-1.
+// A categorical code per unit (county, municipality): dense codes 0..names.size()-1, or kNone
+// for a unit in no municipality (counties always have a code).
 struct UnitCodes {
+  static constexpr std::uint32_t kNone = 0xFFFFFFFFU;
   std::vector<std::uint32_t> code;  // per unit
   std::vector<std::string> names;   // per code, as written in the unit table
 };
