@@ -45,11 +45,13 @@ for target in "${targets[@]}"; do
     fi
   fi
 
+  dict="$here/$target.dict"
+  [ -f "$dict" ] || dict="$here/csv.dict"
   seeds=()
   [ -d "$here/seeds/$target" ] && seeds+=("$here/seeds/$target")
   echo "== $target: fuzzing for $seconds s"
   if ! "$binary" -max_total_time="$seconds" -max_len="$max_len" -timeout=10 -rss_limit_mb=2048 \
-      -dict="$here/csv.dict" -artifact_prefix="$artifacts/" -print_final_stats=1 \
+      -dict="$dict" -artifact_prefix="$artifacts/" -print_final_stats=1 \
       "$corpus" "${seeds[@]}" >"$build/$target.log" 2>&1; then
     echo "!! $target found a failing input; see $build/$target.log"
     tail -n 40 "$build/$target.log"
