@@ -1,5 +1,6 @@
 // Fuzz target: the unit-table reader. Column roles are taken from the header the fuzzer writes
-// (field 1 = id, 2 = population, 3 = county, 4 = group, 5 and 6 = an election, 7 = area), so
+// (field 1 = id, 2 = population, 3 = county, 4 = group, 5 and 6 = an election, 7 = area,
+// 8 = municipality), so
 // every check is reachable; the adjacency is a path through the units in file order.
 #include <cstdint>
 
@@ -41,6 +42,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     if (h.size() > 3) spec.group_columns = {h[3]};
     if (h.size() > 5) spec.elections.push_back({"e", {"A", "B"}, {h[4], h[5]}});
     if (h.size() > 6) spec.area_column = h[6];
+    if (h.size() > 7) spec.municipality_column = h[7];
 
     CsvTable adjacency;
     adjacency.source = "adjacency.csv";

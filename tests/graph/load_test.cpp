@@ -165,6 +165,13 @@ TEST_F(LoadTest, EmptyCountyCode) {
       units_path(), 6, "county");
 }
 
+TEST_F(LoadTest, EmptyMunicipalityCodeMeansNone) {
+  const UnitGraph g =
+      load_unit_graph(spec(std::string(kUnits) + "e,1,C1,,1,1,0,0,0,v\n", std::string(kAdjacency) + "e,a,1\n"));
+  EXPECT_EQ(g.municipalities().code[4], UnitCodes::kNone);
+  EXPECT_EQ(g.municipalities().names.size(), 3U);
+}
+
 TEST_F(LoadTest, UnknownUnitInAdjacencyNamesTheId) {
   const std::string m = expect_input_error(
       [&] { (void)load_unit_graph(spec(kUnits, std::string(kAdjacency) + "d,zz,1\n")); }, adjacency_path(), 6,
