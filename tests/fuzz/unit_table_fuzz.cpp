@@ -1,7 +1,7 @@
 // Fuzz target: the unit-table reader. Column roles are taken from the header the fuzzer writes
 // (field 1 = id, 2 = population, 3 = county, 4 = group, 5 and 6 = an election, 7 = area,
-// 8 = municipality), so
-// every check is reachable; the adjacency is a path through the units in file order.
+// 8 = municipality), so every check is reachable; the adjacency is a path through the units in
+// file order.
 #include <cstdint>
 
 #include "fuzz_support.hpp"
