@@ -60,9 +60,14 @@ int run(const SelftestOptions& options) {
     if (options.job.empty()) c.seed = options.seed;
     const SelftestResult r = run_selftest(c);
     all_passed &= r.passed;
-    std::printf("%-44s %-13s %7zu %8llu %7zu %8.4f %9.3g %6.3f %s%s%s\n", r.name.c_str(), r.kernel.c_str(),
-                r.valid_plans, static_cast<unsigned long long>(r.samples), r.plans_visited, r.total_variation,
-                r.p_value, r.acceptance, r.passed ? "pass" : "FAIL", r.note.empty() ? "" : "  ", r.note.c_str());
+    char tv[16] = "-", p[16] = "-";
+    if (std::isfinite(r.total_variation)) {
+      std::snprintf(tv, sizeof tv, "%.4f", r.total_variation);
+      std::snprintf(p, sizeof p, "%.3g", r.p_value);
+    }
+    std::printf("%-44s %-13s %7zu %8llu %7zu %8s %9s %6.3f %s%s%s\n", r.name.c_str(), r.kernel.c_str(), r.valid_plans,
+                static_cast<unsigned long long>(r.samples), r.plans_visited, tv, p, r.acceptance,
+                r.passed ? "pass" : "FAIL", r.note.empty() ? "" : "  ", r.note.c_str());
     report.push_back(to_json(r));
     for (const auto& p : r.plans)
       frequencies += "\"" + r.name + "\"," + p.plan + "," + std::to_string(p.exact) + "," + std::to_string(p.seen) +
