@@ -2,9 +2,11 @@
 // arrangement of posterior 1.4.0's .ess(), so that the truncation and the cap agree with it.
 #include <algorithm>
 #include <array>
-#include <memory>
 #include <cfloat>
 #include <cmath>
+#include <cstddef>
+#include <memory>
+#include <vector>
 
 #include "diagnose/fft.hpp"
 #include "diagnose/steps.hpp"
@@ -76,41 +78,57 @@ class MeanAutocovariance {
   }
 
   // Two real chains a, b per complex transform: z = a + i b, then A_k = (Z_k + conj Z_{-k})/2 and
-  // B_k = (Z_k - conj Z_{-k})/2i; the inverse of |A|^2 + i|B|^2 gives both autocovariances.
+  // B_k = (Z_k - conj Z_{-k})/2i. The inverse transform is linear, so the chains' power spectra
+  // |A|^2, each scaled so that lag 0 becomes that chain's acov(0) (as posterior scales by
+  // acov(0) / raw(0), raw(0) = sum_k |A_k|^2 by Parseval), are summed first and inverted once.
   void all_by_fft() {
     const std::size_t p = next_power_of_two(2 * n_);
     const Fft& fft = fft_of_size(p);
-    std::vector<double> re(p), im(p), total(n_, 0.0);
+    thread_local std::vector<double> re, im, spectrum;  // reused: no allocation after warm-up
+    re.resize(p);
+    im.resize(p);
+    spectrum.assign(p, 0.0);
     for (std::size_t c = 0; c < m_; c += 2) {
-      std::fill(re.begin(), re.end(), 0.0);
-      std::fill(im.begin(), im.end(), 0.0);
+      std::fill(re.begin() + static_cast<std::ptrdiff_t>(n_), re.end(), 0.0);
       std::copy_n(centred_.data() + c * n_, n_, re.begin());
-      if (c + 1 < m_) std::copy_n(centred_.data() + (c + 1) * n_, n_, im.begin());
+      if (c + 1 < m_) {
+        std::fill(im.begin() + static_cast<std::ptrdiff_t>(n_), im.end(), 0.0);
+        std::copy_n(centred_.data() + (c + 1) * n_, n_, im.begin());
+      } else {
+        std::fill(im.begin(), im.end(), 0.0);
+      }
       fft.forward(re, im);
+      double total_a = 0.0, total_b = 0.0;
       for (std::size_t k = 0; k <= p / 2; ++k) {
         const std::size_t j = (p - k) % p;
         const double ar = 0.5 * (re[k] + re[j]), ai = 0.5 * (im[k] - im[j]);
         const double br = 0.5 * (im[k] + im[j]), bi = 0.5 * (re[j] - re[k]);
         const double power_a = ar * ar + ai * ai, power_b = br * br + bi * bi;
-        re[k] = re[j] = power_a;
-        im[k] = im[j] = power_b;
+        const double copies = (k == j) ? 1.0 : 2.0;  // bins k and p - k carry the same power
+        total_a += copies * power_a;
+        total_b += copies * power_b;
+        re[k] = power_a;
+        im[k] = power_b;
       }
-      fft.inverse(re, im);
-      // Scale lag t by acov(0) / raw(0), as posterior does, with acov(0) a direct sum of squares.
-      add_scaled(re, c, total);
-      if (c + 1 < m_) add_scaled(im, c + 1, total);
+      const double scale_a = lag0_scale(c, total_a);
+      const double scale_b = c + 1 < m_ ? lag0_scale(c + 1, total_b) : 0.0;
+      for (std::size_t k = 0; k <= p / 2; ++k) spectrum[k] += scale_a * re[k] + scale_b * im[k];
     }
-    for (std::size_t t = 0; t < n_; ++t) mean_[t] = total[t] / static_cast<double>(m_);
+    for (std::size_t k = 1; k < p / 2; ++k) spectrum[p - k] = spectrum[k];
+    std::copy(spectrum.begin(), spectrum.end(), re.begin());
+    std::fill(im.begin(), im.end(), 0.0);
+    fft.inverse(re, im);
+    for (std::size_t t = 0; t < n_; ++t) mean_[t] = re[t] / static_cast<double>(m_);
     known_ = n_;
   }
 
-  void add_scaled(const std::vector<double>& raw, std::size_t c, std::vector<double>& total) const {
+  // acov(0) / raw(0) for chain c, acov(0) a direct sum of squares; 0 for a constant chain.
+  [[nodiscard]] double lag0_scale(std::size_t c, double raw0) const {
     const double* y = centred_.data() + c * n_;
     double squares = 0.0;
     for (std::size_t i = 0; i < n_; ++i) squares += y[i] * y[i];
-    if (squares == 0.0) return;
-    const double scale = squares / static_cast<double>(n_) / raw[0];
-    for (std::size_t t = 0; t < n_; ++t) total[t] += raw[t] * scale;
+    if (squares == 0.0 || raw0 == 0.0) return 0.0;
+    return squares / static_cast<double>(n_) / raw0;
   }
 
   std::size_t n_, m_;

@@ -12,11 +12,17 @@ std::size_t next_power_of_two(std::size_t n) {
   return p;
 }
 
-Fft::Fft(std::size_t n) : n_(n), cos_(n / 2), sin_(n / 2), bit_reversed_(n) {
-  for (std::size_t k = 0; k < n / 2; ++k) {
-    const double angle = -2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(n);
-    cos_[k] = std::cos(angle);
-    sin_[k] = std::sin(angle);
+Fft::Fft(std::size_t n) : n_(n), cos_(n), sin_(n), bit_reversed_(n) {
+  for (std::size_t len = 2; len <= n; len <<= 1) {
+    const std::size_t half = len / 2;
+    for (std::size_t j = 0; j < half; ++j) {
+      // The same angles as k = j * (n / len) of the full-length table, for identical values.
+      const std::size_t k = j * (n / len);
+      const double angle =
+          -2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(n);
+      cos_[half + j] = std::cos(angle);
+      sin_[half + j] = std::sin(angle);
+    }
   }
   std::size_t bits = 0;
   while ((std::size_t{1} << bits) < n) ++bits;
@@ -35,18 +41,34 @@ void Fft::run(std::vector<double>& re, std::vector<double>& im, bool inverse) co
       std::swap(im[i], im[j]);
     }
   }
+  double* __restrict xr = re.data();
+  double* __restrict xi = im.data();
+  // Length-2 stage: the only twiddle is 1.
+  if (n_ >= 2) {
+    for (std::size_t s = 0; s < n_; s += 2) {
+      const double br = xr[s + 1], bi = xi[s + 1];
+      xr[s + 1] = xr[s] - br;
+      xi[s + 1] = xi[s] - bi;
+      xr[s] += br;
+      xi[s] += bi;
+    }
+  }
   const double sign = inverse ? -1.0 : 1.0;
-  for (std::size_t len = 2; len <= n_; len <<= 1) {
-    const std::size_t half = len / 2, stride = n_ / len;
+  for (std::size_t len = 4; len <= n_; len <<= 1) {
+    const std::size_t half = len / 2;
+    const double* __restrict wr = cos_.data() + half;
+    const double* __restrict ws = sin_.data() + half;
     for (std::size_t start = 0; start < n_; start += len) {
-      double* ar = re.data() + start;
-      double* ai = im.data() + start;
+      double* __restrict ar = xr + start;
+      double* __restrict ai = xi + start;
+      double* __restrict br = ar + half;
+      double* __restrict bi = ai + half;
       for (std::size_t j = 0; j < half; ++j) {
-        const double wr = cos_[j * stride], wi = sign * sin_[j * stride];
-        const double vr = ar[j + half] * wr - ai[j + half] * wi;
-        const double vi = ar[j + half] * wi + ai[j + half] * wr;
-        ar[j + half] = ar[j] - vr;
-        ai[j + half] = ai[j] - vi;
+        const double c = wr[j], s = sign * ws[j];
+        const double vr = br[j] * c - bi[j] * s;
+        const double vi = br[j] * s + bi[j] * c;
+        br[j] = ar[j] - vr;
+        bi[j] = ai[j] - vi;
         ar[j] += vr;
         ai[j] += vi;
       }

@@ -20,7 +20,9 @@ class Fft {
   void run(std::vector<double>& re, std::vector<double>& im, bool inverse) const;
 
   std::size_t n_;
-  std::vector<double> cos_, sin_;  // e^{-2 pi i k / n}, k < n / 2
+  // Twiddles e^{-2 pi i j / len} of the stage of length len stored contiguously from offset
+  // len / 2 (j < len / 2), so every stage reads them with unit stride.
+  std::vector<double> cos_, sin_;
   std::vector<std::uint32_t> bit_reversed_;
 };
 

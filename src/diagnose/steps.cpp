@@ -8,6 +8,7 @@
 #include <cfloat>
 #include <cmath>
 #include <cstring>
+#include <limits>
 #include <numeric>
 #include <utility>
 
@@ -68,15 +69,44 @@ std::vector<std::uint32_t> ascending_order(std::span<const double> v) {
   return idx;
 }
 
+// The normal score of a whole rank r depends only on r and S: a table per S, filled on first use
+// of each rank and kept per thread (S doubles), serves every quantity with the same draw count.
+class ScoreTable {
+ public:
+  void reset(std::size_t s, double denominator) {
+    if (s == size_) return;
+    size_ = s;
+    denominator_ = denominator;
+    score_.assign(s, std::numeric_limits<double>::quiet_NaN());
+  }
+  double of_whole_rank(std::size_t i) {  // score of rank i + 1
+    double& z = score_[i];
+    if (std::isnan(z)) z = normal_quantile((static_cast<double>(i) + 1.0 - 0.375) / denominator_);
+    return z;
+  }
+
+ private:
+  std::size_t size_ = 0;
+  double denominator_ = 0.0;
+  std::vector<double> score_;
+};
+
 // Normal scores of values given in ascending order; ties share their average rank.
 Matrix scores_of_ascending(std::span<const double> ascending, std::span<const std::uint32_t> pos,
                            std::size_t draws, std::size_t chains) {
   Matrix z{std::vector<double>(draws * chains), draws, chains};
   const std::size_t s = ascending.size();
   const double denominator = static_cast<double>(s) - 2.0 * 0.375 + 1.0;  // S + 1/4
+  thread_local ScoreTable table;
+  table.reset(s, denominator);
   for (std::size_t i = 0; i < s;) {
     std::size_t j = i;
     while (j + 1 < s && ascending[j + 1] == ascending[i]) ++j;
+    if (j == i) {
+      z.values[pos[i]] = table.of_whole_rank(i);
+      ++i;
+      continue;
+    }
     const double rank = 0.5 * static_cast<double>(i + j) + 1.0;  // average of ranks i+1..j+1
     const double score = normal_quantile((rank - 0.375) / denominator);
     for (std::size_t k = i; k <= j; ++k) z.values[pos[k]] = score;
