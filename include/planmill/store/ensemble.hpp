@@ -1,0 +1,93 @@
+#pragma once
+// Ensemble files: one HDF5 file (serial driver, one per rank) holding, per chain, the recorded plans
+// in compact form, a table of observables per recorded plan and the step-outcome counters.
+// Layout in docs/format.md. Every HDF5 failure throws StoreError (store/hdf5_handle.hpp).
+#include <cstdint>
+#include <memory>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "planmill/base/ids.hpp"
+#include "planmill/store/plan_codec.hpp"
+
+namespace planmill {
+
+inline constexpr std::int64_t kEnsembleFormatVersion = 1;
+
+struct EnsembleHeader {
+  std::size_t unit_count = 0;
+  std::size_t district_count = 0;
+  std::string job_text;  // the job file as the user wrote it
+};
+
+struct EnsembleWriterOptions {
+  std::size_t full_every = 64;         // a full plan every this many records of a chain
+  std::size_t chunk_bytes = 1 << 16;   // chunk size of the byte stream; buffered until a chunk fills
+  int deflate_level = 4;
+};
+
+// Step-outcome counters of a chain, as stored (attributes of the chain group).
+struct StoredCounters {
+  std::uint64_t steps = 0, accepted = 0, rejected = 0, no_cut = 0, invalid = 0;
+};
+
+class EnsembleWriter {
+ public:
+  // Creates (truncates) `path`.
+  EnsembleWriter(const std::string& path, const EnsembleHeader& header, EnsembleWriterOptions options = {});
+  ~EnsembleWriter();
+  EnsembleWriter(const EnsembleWriter&) = delete;
+  EnsembleWriter& operator=(const EnsembleWriter&) = delete;
+
+  // Creates group chain_<index> with one observable column per name. Returns a handle for record().
+  std::size_t add_chain(std::uint64_t chain_index, const std::vector<std::string>& observable_names);
+  // Appends one recorded plan (labels 0..k-1 per unit) with its observables (one per name).
+  void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
+              std::span<const double> observables);
+  void set_counters(std::size_t chain, const StoredCounters& counters);
+  // Writes every buffered record and H5Fflush-es the file, so that what was recorded is durable.
+  void flush();
+  // Bytes of encoded plan records so far (before HDF5 compression), summed over chains.
+  [[nodiscard]] std::uint64_t encoded_bytes() const noexcept;
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+};
+
+struct ChainProblem {
+  std::uint64_t chain_index = 0;
+  std::uint64_t first_record = 0;  // records [first_record, last_record] are affected
+  std::uint64_t last_record = 0;
+  std::string what;
+};
+
+class EnsembleReader {
+ public:
+  explicit EnsembleReader(const std::string& path);
+  ~EnsembleReader();
+  EnsembleReader(const EnsembleReader&) = delete;
+  EnsembleReader& operator=(const EnsembleReader&) = delete;
+
+  [[nodiscard]] const EnsembleHeader& header() const noexcept;
+  [[nodiscard]] std::int64_t format_version() const noexcept;
+  // Chain indices in the file, ascending.
+  [[nodiscard]] std::vector<std::uint64_t> chains() const;
+  [[nodiscard]] std::size_t record_count(std::uint64_t chain_index) const;
+  [[nodiscard]] std::vector<std::uint64_t> record_steps(std::uint64_t chain_index) const;
+  // Plan of record r: decoded from the nearest preceding full plan.
+  [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain_index, std::size_t record) const;
+  [[nodiscard]] std::vector<std::string> observable_names(std::uint64_t chain_index) const;
+  // Row-major records x observables.
+  [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain_index) const;
+  [[nodiscard]] StoredCounters counters(std::uint64_t chain_index) const;
+  // Checks every chain (checksums, index consistency, decodability); empty = all good.
+  [[nodiscard]] std::vector<ChainProblem> verify() const;
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+};
+
+}  // namespace planmill

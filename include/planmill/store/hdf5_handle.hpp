@@ -1,0 +1,75 @@
+#pragma once
+// RAII ownership of HDF5 ids, keyed on their close function, and the typed error every failing
+// HDF5 call in the store turns into. Only the store includes this header.
+#include <hdf5.h>
+
+#include <stdexcept>
+#include <string>
+#include <utility>
+
+namespace planmill {
+
+// A failed HDF5 call: what() reads "PATH: WHAT WAS BEING DONE: HDF5 error stack".
+class StoreError : public std::runtime_error {
+ public:
+  StoreError(std::string path, std::string action, std::string detail = {});
+  [[nodiscard]] const std::string& path() const noexcept { return path_; }
+  [[nodiscard]] const std::string& action() const noexcept { return action_; }
+
+ private:
+  std::string path_;
+  std::string action_;
+};
+
+// Text of the current HDF5 error stack (collected with H5Ewalk2), then clears it.
+[[nodiscard]] std::string hdf5_error_stack();
+// Turns off HDF5's automatic printing of errors to stderr (the store reports them itself).
+void silence_hdf5_errors() noexcept;
+
+template <herr_t (*Close)(hid_t)>
+class H5Handle {
+ public:
+  H5Handle() = default;
+  explicit H5Handle(hid_t id) noexcept : id_(id) {}
+  H5Handle(const H5Handle&) = delete;
+  H5Handle& operator=(const H5Handle&) = delete;
+  H5Handle(H5Handle&& other) noexcept : id_(std::exchange(other.id_, H5I_INVALID_HID)) {}
+  H5Handle& operator=(H5Handle&& other) noexcept {
+    if (this != &other) {
+      reset();
+      id_ = std::exchange(other.id_, H5I_INVALID_HID);
+    }
+    return *this;
+  }
+  ~H5Handle() { reset(); }
+
+  [[nodiscard]] hid_t get() const noexcept { return id_; }
+  [[nodiscard]] bool valid() const noexcept { return id_ >= 0; }
+  void reset() noexcept {
+    if (id_ >= 0) (void)Close(id_);
+    id_ = H5I_INVALID_HID;
+  }
+
+ private:
+  hid_t id_ = H5I_INVALID_HID;
+};
+
+using H5File = H5Handle<H5Fclose>;
+using H5Group = H5Handle<H5Gclose>;
+using H5Dataset = H5Handle<H5Dclose>;
+using H5Dataspace = H5Handle<H5Sclose>;
+using H5PropList = H5Handle<H5Pclose>;
+using H5Type = H5Handle<H5Tclose>;
+using H5Attribute = H5Handle<H5Aclose>;
+
+// Throws StoreError(path, action, stack) when id < 0; returns the handle otherwise.
+template <typename Handle>
+Handle checked(hid_t id, const std::string& path, const char* action) {
+  if (id < 0) throw StoreError(path, action, hdf5_error_stack());
+  return Handle(id);
+}
+inline void check(herr_t status, const std::string& path, const char* action) {
+  if (status < 0) throw StoreError(path, action, hdf5_error_stack());
+}
+
+}  // namespace planmill
