@@ -2,6 +2,8 @@
 
 #include "planmill/graph/feasibility.hpp"
 #include "planmill/io/plan_csv.hpp"
+#include "planmill/rules/rules.hpp"
+#include "planmill/seed/seed_plan.hpp"
 
 namespace planmill {
 
@@ -9,8 +11,11 @@ LoadedJob load_and_check_job(const std::string& job_path) {
   LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt};
   loaded.graph = load_unit_graph(loaded.job.map, &loaded.report);
   check_feasible(loaded.graph, loaded.job.districts, loaded.job.rules.population_deviation, job_path);
-  if (loaded.job.start != "random")
+  const RuleSet rules = make_rule_set(loaded.job.rules, loaded.graph, job_path);
+  if (loaded.job.start != "random") {
     loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));
+    check_seed_plan(*loaded.start, rules, loaded.job.start);
+  }
   return loaded;
 }
 

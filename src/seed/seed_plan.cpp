@@ -81,13 +81,12 @@ Plan random_seed_plan(const UnitGraph& graph, std::size_t districts, const RuleS
 
 void check_seed_plan(const Plan& plan, const RuleSet& rules, const std::string& source) {
   const RuleTracker tracker(plan, rules);
-  std::ostringstream problems;
+  std::string problems;
   for (DistrictIndex d = 0; d < plan.district_count(); ++d)
-    if (!plan.is_connected(d)) problems << " district " << d + 1 << " is not contiguous;";
-  if (!tracker.hard_rules_ok(plan)) problems << ' ' << tracker.describe_violations(plan);
-  const std::string text = problems.str();
-  if (!text.empty())
-    throw InfeasibleError(source + ": the starting plan breaks the rules:" + text +
+    if (!plan.is_connected(d)) problems += " district " + std::to_string(d + 1) + " is not contiguous;";
+  if (!tracker.hard_rules_ok(plan)) problems += " " + tracker.describe_violations(plan) + ";";
+  if (!problems.empty())
+    throw InfeasibleError(source + ": the starting plan breaks the rules:" + problems +
                           " fix the plan or loosen the rules in the job file");
 }
 

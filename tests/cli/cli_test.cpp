@@ -144,3 +144,21 @@ TEST_F(Cli, SelftestReportsAFlipChainThatCannotReachEveryPlan) {
 }
 
 }  // namespace
+
+namespace {
+
+TEST_F(Cli, StartingPlanThatBreaksTheRulesIsNamedWithDistrictAndAmount) {
+  write_small_map("merge-split", 3, 0.1);
+  // Districts: {a,b,c} = 7, {d,e,f} = 6, {g,h,i} = 5 people; ideal 6, so +/-10% allows 6 only.
+  write("start.csv", "unit,district\na,1\nb,1\nc,1\nd,2\ne,2\nf,2\ng,3\nh,3\ni,3\n");
+  std::string job = slurp(dir_ / "job.toml");
+  job.replace(job.find("count = 3"), 9, "count = 3\nstart = \"start.csv\"");
+  write("job.toml", job);
+  const auto o = run("check " + path("job.toml"));
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("start.csv"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("district 1"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("district 3"), std::string::npos) << o.err;
+}
+
+}  // namespace
