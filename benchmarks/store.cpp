@@ -1,0 +1,111 @@
+// Ensemble store cost on the benchmark state (`synth` 10,000 units, 100 districts, seed 7, ±5%):
+// a recombination chain recording every 1, 10 or 100 steps into an ensemble file. One iteration =
+// one chain step (plus a record every `interval` steps). Counters: bytes of file per recorded plan
+// (after flush, HDF5 overhead included), encoded bytes per record before deflate, and bits per unit
+// per recorded plan. BM_ChainOnly is the same chain without recording, for the relative write cost.
+//   build/benchmarks/bench_store --benchmark_min_time=3
+#include <benchmark/benchmark.h>
+#include <unistd.h>
+
+#include <filesystem>
+#include <memory>
+
+#include "planmill/chain/chain.hpp"
+#include "planmill/graph/load.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/seed/seed_plan.hpp"
+#include "planmill/store/ensemble.hpp"
+#include "planmill/synth/synth.hpp"
+
+namespace {
+
+using namespace planmill;
+namespace fs = std::filesystem;
+
+struct State {
+  UnitGraph graph;
+  Plan start;
+};
+
+const State& benchmark_state() {
+  static const std::unique_ptr<State> state = [] {
+    const auto dir = fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()));
+    (void)write_synthetic_state({10000, 100, 7, dir.string()});
+    JobSpec job = load_job((dir / "job.toml").string());
+    UnitGraph graph = load_unit_graph(job.map);
+    fs::remove_all(dir);
+    RuleSet rules;
+    rules.population_deviation = 0.05;
+    Rng rng = make_stream(7, 99);
+    Plan start = random_seed_plan(graph, 100, rules, rng);
+    auto s = std::make_unique<State>(State{std::move(graph), start});
+    s->start = Plan(s->graph, 100, std::vector<DistrictIndex>(start.assignment().begin(), start.assignment().end()));
+    return s;
+  }();
+  return *state;
+}
+
+Chain make_chain(const State& s) {
+  ChainSetup setup;
+  setup.graph = &s.graph;
+  setup.rules.population_deviation = 0.05;
+  setup.kernel.kind = KernelKind::recombination;
+  Chain chain(setup, s.start);
+  for (int i = 0; i < 2000; ++i) chain.step();  // warm the buffers and leave the seed plan
+  return chain;
+}
+
+void BM_ChainOnly(benchmark::State& bench) {
+  Chain chain = make_chain(benchmark_state());
+  for (auto _ : bench) benchmark::DoNotOptimize(chain.step());
+  bench.SetItemsProcessed(bench.iterations());
+}
+
+void BM_ChainRecording(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  const auto interval = static_cast<std::uint64_t>(bench.range(0));
+  Chain chain = make_chain(s);
+  const fs::path path = fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()) + ".h5");
+  std::uint64_t records = 0;
+  std::uint64_t encoded = 0;
+  {
+    EnsembleWriterOptions options;
+    options.full_every = static_cast<std::size_t>(bench.range(1));
+    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, ""}, options);
+    const std::size_t h = writer.add_chain(0, {"cut_edges", "max_population_deviation"});
+    std::uint64_t step = 0;
+    for (auto _ : bench) {
+      chain.step();
+      if (++step % interval == 0) {
+        const Plan& p = chain.state().plan;
+        const double obs[] = {static_cast<double>(p.cut_edge_count()), p.max_population_deviation()};
+        writer.record(h, step, p.assignment(), obs);
+        ++records;
+      }
+    }
+    writer.flush();
+    encoded = writer.encoded_bytes();
+  }
+  const auto file_bytes = static_cast<double>(fs::file_size(path));
+  fs::remove(path);
+  const double per_record = records ? file_bytes / static_cast<double>(records) : 0.0;
+  bench.SetItemsProcessed(bench.iterations());
+  bench.counters["records"] = static_cast<double>(records);
+  bench.counters["file_bytes_per_record"] = per_record;
+  bench.counters["encoded_bytes_per_record"] = records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
+  bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph.unit_count());
+}
+
+BENCHMARK(BM_ChainOnly)->Unit(benchmark::kMicrosecond);
+// Args: recording interval, full plan every K records (1 = full plans only, for comparison).
+BENCHMARK(BM_ChainRecording)
+    ->ArgNames({"interval", "full_every"})
+    ->Args({1, 64})
+    ->Args({10, 64})
+    ->Args({100, 64})
+    ->Args({100, 1})
+    ->Unit(benchmark::kMicrosecond);
+
+}  // namespace
+
+BENCHMARK_MAIN();
