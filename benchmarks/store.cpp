@@ -29,7 +29,8 @@ struct State {
 
 const State& benchmark_state() {
   static const std::unique_ptr<State> state = [] {
-    const auto dir = fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()));
+    const auto dir =
+        fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()));
     (void)write_synthetic_state({10000, 100, 7, dir.string()});
     JobSpec job = load_job((dir / "job.toml").string());
     UnitGraph graph = load_unit_graph(job.map);
@@ -39,7 +40,9 @@ const State& benchmark_state() {
     Rng rng = make_stream(7, 99);
     Plan start = random_seed_plan(graph, 100, rules, rng);
     auto s = std::make_unique<State>(State{std::move(graph), start});
-    s->start = Plan(s->graph, 100, std::vector<DistrictIndex>(start.assignment().begin(), start.assignment().end()));
+    s->start =
+        Plan(s->graph, 100,
+             std::vector<DistrictIndex>(start.assignment().begin(), start.assignment().end()));
     return s;
   }();
   return *state;
@@ -65,7 +68,8 @@ void BM_ChainRecording(benchmark::State& bench) {
   const State& s = benchmark_state();
   const auto interval = static_cast<std::uint64_t>(bench.range(0));
   Chain chain = make_chain(s);
-  const fs::path path = fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()) + ".h5");
+  const fs::path path =
+      fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()) + ".h5");
   std::uint64_t records = 0;
   std::uint64_t encoded = 0;
   {
@@ -78,7 +82,8 @@ void BM_ChainRecording(benchmark::State& bench) {
       chain.step();
       if (++step % interval == 0) {
         const Plan& p = chain.state().plan;
-        const double obs[] = {static_cast<double>(p.cut_edge_count()), p.max_population_deviation()};
+        const double obs[] = {static_cast<double>(p.cut_edge_count()),
+                              p.max_population_deviation()};
         writer.record(h, step, p.assignment(), obs);
         ++records;
       }
@@ -92,7 +97,8 @@ void BM_ChainRecording(benchmark::State& bench) {
   bench.SetItemsProcessed(bench.iterations());
   bench.counters["records"] = static_cast<double>(records);
   bench.counters["file_bytes_per_record"] = per_record;
-  bench.counters["encoded_bytes_per_record"] = records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
+  bench.counters["encoded_bytes_per_record"] =
+      records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
   bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph.unit_count());
 }
 

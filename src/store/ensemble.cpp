@@ -24,15 +24,19 @@ H5Type vlen_string_type(const std::string& path) {
   return t;
 }
 
-void write_attribute(hid_t object, const char* name, hid_t type, const void* value, const std::string& path) {
+void write_attribute(hid_t object, const char* name, hid_t type, const void* value,
+                     const std::string& path) {
   if (H5Aexists(object, name) > 0) check(H5Adelete(object, name), path, "replacing an attribute");
   H5Dataspace space = checked<H5Dataspace>(H5Screate(H5S_SCALAR), path, "writing an attribute");
-  H5Attribute attr = checked<H5Attribute>(H5Acreate2(object, name, type, space.get(), H5P_DEFAULT, H5P_DEFAULT),
-                                          path, (std::string("creating attribute ") + name).c_str());
-  check(H5Awrite(attr.get(), type, value), path, (std::string("writing attribute ") + name).c_str());
+  H5Attribute attr =
+      checked<H5Attribute>(H5Acreate2(object, name, type, space.get(), H5P_DEFAULT, H5P_DEFAULT),
+                           path, (std::string("creating attribute ") + name).c_str());
+  check(H5Awrite(attr.get(), type, value), path,
+        (std::string("writing attribute ") + name).c_str());
 }
 
-void write_string_attribute(hid_t object, const char* name, const std::string& value, const std::string& path) {
+void write_string_attribute(hid_t object, const char* name, const std::string& value,
+                            const std::string& path) {
   H5Type t = vlen_string_type(path);
   const char* p = value.c_str();
   write_attribute(object, name, t.get(), &p, path);
@@ -63,40 +67,48 @@ H5Dataset create_stream(hid_t group, const char* name, hid_t type, std::span<con
   const int rank = static_cast<int>(chunk.size());
   std::vector<hsize_t> dims(chunk.size(), 0), maxdims(chunk.size(), H5S_UNLIMITED);
   for (std::size_t i = 1; i < chunk.size(); ++i) dims[i] = maxdims[i] = chunk[i];
-  H5Dataspace space = checked<H5Dataspace>(H5Screate_simple(rank, dims.data(), maxdims.data()), path,
-                                           "creating a dataspace");
-  H5PropList dcpl = checked<H5PropList>(H5Pcreate(H5P_DATASET_CREATE), path, "creating a property list");
+  H5Dataspace space = checked<H5Dataspace>(H5Screate_simple(rank, dims.data(), maxdims.data()),
+                                           path, "creating a dataspace");
+  H5PropList dcpl =
+      checked<H5PropList>(H5Pcreate(H5P_DATASET_CREATE), path, "creating a property list");
   check(H5Pset_chunk(dcpl.get(), rank, chunk.data()), path, "setting the chunk size");
   check(H5Pset_fletcher32(dcpl.get()), path, "setting the fletcher32 filter");
   if (shuffle) check(H5Pset_shuffle(dcpl.get()), path, "setting the shuffle filter");
-  check(H5Pset_deflate(dcpl.get(), static_cast<unsigned>(deflate)), path, "setting the deflate filter");
+  check(H5Pset_deflate(dcpl.get(), static_cast<unsigned>(deflate)), path,
+        "setting the deflate filter");
   return checked<H5Dataset>(
       H5Dcreate2(group, name, type, space.get(), H5P_DEFAULT, dcpl.get(), H5P_DEFAULT), path,
       (std::string("creating dataset ") + name).c_str());
 }
 
 // Appends `rows` rows of `columns` values (row-major) after row `at`.
-void append_rows(hid_t dset, hid_t mem_type, const void* data, hsize_t at, hsize_t rows, hsize_t columns,
-                 bool two_d, const std::string& path, const char* action) {
+void append_rows(hid_t dset, hid_t mem_type, const void* data, hsize_t at, hsize_t rows,
+                 hsize_t columns, bool two_d, const std::string& path, const char* action) {
   if (rows == 0) return;
   const hsize_t new_dims[2] = {at + rows, columns};
   check(H5Dset_extent(dset, new_dims), path, action);
   H5Dataspace file_space = checked<H5Dataspace>(H5Dget_space(dset), path, action);
   const hsize_t start[2] = {at, 0}, count[2] = {rows, columns};
-  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path, action);
-  H5Dataspace mem_space = checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
-  check(H5Dwrite(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path, action);
+  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path,
+        action);
+  H5Dataspace mem_space =
+      checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
+  check(H5Dwrite(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path,
+        action);
 }
 
 // Reads rows [first, first + rows) of a 1-D or 2-D dataset.
-void read_rows(hid_t dset, hid_t mem_type, void* data, hsize_t first, hsize_t rows, hsize_t columns, bool two_d,
-               const std::string& path, const char* action) {
+void read_rows(hid_t dset, hid_t mem_type, void* data, hsize_t first, hsize_t rows, hsize_t columns,
+               bool two_d, const std::string& path, const char* action) {
   if (rows == 0) return;
   H5Dataspace file_space = checked<H5Dataspace>(H5Dget_space(dset), path, action);
   const hsize_t start[2] = {first, 0}, count[2] = {rows, columns};
-  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path, action);
-  H5Dataspace mem_space = checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
-  check(H5Dread(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path, action);
+  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path,
+        action);
+  H5Dataspace mem_space =
+      checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
+  check(H5Dread(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path,
+        action);
 }
 
 std::vector<hsize_t> dims_of(hid_t dset, const std::string& path) {
@@ -104,7 +116,8 @@ std::vector<hsize_t> dims_of(hid_t dset, const std::string& path) {
   const int rank = H5Sget_simple_extent_ndims(space.get());
   if (rank < 0) throw StoreError(path, "reading a dataset's size", hdf5_error_stack());
   std::vector<hsize_t> dims(static_cast<std::size_t>(rank));
-  check(H5Sget_simple_extent_dims(space.get(), dims.data(), nullptr), path, "reading a dataset's size");
+  check(H5Sget_simple_extent_dims(space.get(), dims.data(), nullptr), path,
+        "reading a dataset's size");
   return dims;
 }
 
@@ -136,13 +149,14 @@ struct EnsembleWriter::Impl {
 
   void write_pending(ChainOut& c) {
     const hsize_t buffered_records = c.record_buffer.size() / kIndexColumns;
-    append_rows(c.bytes.get(), H5T_NATIVE_UINT8, c.byte_buffer.data(), c.written_bytes, c.byte_buffer.size(), 1,
-                false, path, "appending to plan_bytes");
-    append_rows(c.records.get(), H5T_NATIVE_UINT64, c.record_buffer.data(), c.written_records, buffered_records,
-                kIndexColumns, true, path, "appending to plan_records");
+    append_rows(c.bytes.get(), H5T_NATIVE_UINT8, c.byte_buffer.data(), c.written_bytes,
+                c.byte_buffer.size(), 1, false, path, "appending to plan_bytes");
+    append_rows(c.records.get(), H5T_NATIVE_UINT64, c.record_buffer.data(), c.written_records,
+                buffered_records, kIndexColumns, true, path, "appending to plan_records");
     if (c.observable_count > 0)
-      append_rows(c.observables.get(), H5T_NATIVE_DOUBLE, c.observable_buffer.data(), c.written_records,
-                  buffered_records, c.observable_count, true, path, "appending to observables");
+      append_rows(c.observables.get(), H5T_NATIVE_DOUBLE, c.observable_buffer.data(),
+                  c.written_records, buffered_records, c.observable_count, true, path,
+                  "appending to observables");
     c.written_bytes += c.byte_buffer.size();
     c.written_records += buffered_records;
     c.byte_buffer.clear();
@@ -151,7 +165,8 @@ struct EnsembleWriter::Impl {
   }
 };
 
-EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& header, EnsembleWriterOptions options)
+EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& header,
+                               EnsembleWriterOptions options)
     : impl_(std::make_unique<Impl>()) {
   silence_hdf5_errors();
   Impl& m = *impl_;
@@ -161,7 +176,8 @@ EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& he
   if (m.options.full_every == 0) m.options.full_every = 1;
   if (m.options.chunk_bytes == 0) m.options.chunk_bytes = 1 << 16;
   m.width = label_width(header.district_count);
-  H5PropList fapl = checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
+  H5PropList fapl =
+      checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
   check(H5Pset_fapl_sec2(fapl.get()), path, "choosing the serial file driver");
   m.file = checked<H5File>(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, fapl.get()), path,
                            "creating the ensemble file");
@@ -184,31 +200,34 @@ EnsembleWriter::~EnsembleWriter() {
   }
 }
 
-std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index, const std::vector<std::string>& names) {
+std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
+                                      const std::vector<std::string>& names) {
   Impl& m = *impl_;
   const std::string& path = m.path;
   Impl::ChainOut c;
   c.index = chain_index;
   c.observable_count = names.size();
-  c.group = checked<H5Group>(H5Gcreate2(m.file.get(), chain_group_name(chain_index).c_str(), H5P_DEFAULT,
-                                        H5P_DEFAULT, H5P_DEFAULT),
+  c.group = checked<H5Group>(H5Gcreate2(m.file.get(), chain_group_name(chain_index).c_str(),
+                                        H5P_DEFAULT, H5P_DEFAULT, H5P_DEFAULT),
                              path, ("creating group " + chain_group_name(chain_index)).c_str());
   write_attribute(c.group.get(), "chain_index", H5T_STD_U64LE, &chain_index, path);
   const hsize_t byte_chunk[1] = {m.options.chunk_bytes};
-  c.bytes = create_stream(c.group.get(), "plan_bytes", H5T_STD_U8LE, byte_chunk, m.options.deflate_level, false, path);
+  c.bytes = create_stream(c.group.get(), "plan_bytes", H5T_STD_U8LE, byte_chunk,
+                          m.options.deflate_level, false, path);
   const hsize_t index_chunk[2] = {kIndexChunkRows, kIndexColumns};
-  c.records = create_stream(c.group.get(), "plan_records", H5T_STD_U64LE, index_chunk, m.options.deflate_level,
-                            true, path);
+  c.records = create_stream(c.group.get(), "plan_records", H5T_STD_U64LE, index_chunk,
+                            m.options.deflate_level, true, path);
   if (!names.empty()) {
     const hsize_t obs_chunk[2] = {kObservableChunkRows, names.size()};
-    c.observables = create_stream(c.group.get(), "observables", H5T_IEEE_F64LE, obs_chunk, m.options.deflate_level,
-                                  true, path);
+    c.observables = create_stream(c.group.get(), "observables", H5T_IEEE_F64LE, obs_chunk,
+                                  m.options.deflate_level, true, path);
     H5Type t = vlen_string_type(path);
     const hsize_t n = names.size();
-    H5Dataspace space = checked<H5Dataspace>(H5Screate_simple(1, &n, nullptr), path, "writing observable names");
+    H5Dataspace space =
+        checked<H5Dataspace>(H5Screate_simple(1, &n, nullptr), path, "writing observable names");
     H5Attribute attr = checked<H5Attribute>(
-        H5Acreate2(c.observables.get(), "names", t.get(), space.get(), H5P_DEFAULT, H5P_DEFAULT), path,
-        "writing observable names");
+        H5Acreate2(c.observables.get(), "names", t.get(), space.get(), H5P_DEFAULT, H5P_DEFAULT),
+        path, "writing observable names");
     std::vector<const char*> p;
     for (const auto& s : names) p.push_back(s.c_str());
     check(H5Awrite(attr.get(), t.get(), p.data()), path, "writing observable names");
@@ -218,7 +237,8 @@ std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index, const std::vect
   return m.chains.size() - 1;
 }
 
-void EnsembleWriter::record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
+void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
+                            std::span<const DistrictIndex> plan,
                             std::span<const double> observables) {
   Impl& m = *impl_;
   Impl::ChainOut& c = m.chains.at(chain);
@@ -235,21 +255,24 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step, std::span<con
     kind = encode_delta(c.previous, plan, m.width, c.byte_buffer);
   }
   const std::uint64_t length = c.byte_buffer.size() - before;
-  c.record_buffer.insert(c.record_buffer.end(), {step, c.byte_count, length, static_cast<std::uint64_t>(kind)});
+  c.record_buffer.insert(c.record_buffer.end(),
+                         {step, c.byte_count, length, static_cast<std::uint64_t>(kind)});
   c.observable_buffer.insert(c.observable_buffer.end(), observables.begin(), observables.end());
   c.previous.assign(plan.begin(), plan.end());
   c.byte_count += length;
   ++c.record_count;
-  if (c.byte_buffer.size() >= m.options.chunk_bytes || c.record_buffer.size() >= kIndexChunkRows * kIndexColumns)
+  if (c.byte_buffer.size() >= m.options.chunk_bytes ||
+      c.record_buffer.size() >= kIndexChunkRows * kIndexColumns)
     m.write_pending(c);
 }
 
 void EnsembleWriter::set_counters(std::size_t chain, const StoredCounters& counters) {
   Impl& m = *impl_;
   const hid_t g = m.chains.at(chain).group.get();
-  const std::uint64_t values[] = {counters.steps, counters.accepted, counters.rejected, counters.no_cut,
-                                  counters.invalid};
-  for (std::size_t i = 0; i < 5; ++i) write_attribute(g, kCounterNames[i], H5T_STD_U64LE, &values[i], m.path);
+  const std::uint64_t values[] = {counters.steps, counters.accepted, counters.rejected,
+                                  counters.no_cut, counters.invalid};
+  for (std::size_t i = 0; i < 5; ++i)
+    write_attribute(g, kCounterNames[i], H5T_STD_U64LE, &values[i], m.path);
 }
 
 void EnsembleWriter::flush() {
@@ -277,17 +300,20 @@ struct EnsembleReader::Impl {
 
   H5Group group(std::uint64_t chain) const {
     const std::string name = chain_group_name(chain);
-    return checked<H5Group>(H5Gopen2(file.get(), name.c_str(), H5P_DEFAULT), path, ("opening group " + name).c_str());
+    return checked<H5Group>(H5Gopen2(file.get(), name.c_str(), H5P_DEFAULT), path,
+                            ("opening group " + name).c_str());
   }
   H5Dataset dataset(const H5Group& g, const char* name) const {
-    return checked<H5Dataset>(H5Dopen2(g.get(), name, H5P_DEFAULT), path, (std::string("opening ") + name).c_str());
+    return checked<H5Dataset>(H5Dopen2(g.get(), name, H5P_DEFAULT), path,
+                              (std::string("opening ") + name).c_str());
   }
   std::vector<std::uint64_t> read_index_uncached(std::uint64_t chain) const {
     H5Group g = group(chain);
     H5Dataset d = dataset(g, "plan_records");
     const auto dims = dims_of(d.get(), path);
     if (dims.size() != 2 || dims[1] != kIndexColumns)
-      throw StoreError(path, "reading plan_records of " + chain_group_name(chain), "not a records x 4 table");
+      throw StoreError(path, "reading plan_records of " + chain_group_name(chain),
+                       "not a records x 4 table");
     std::vector<std::uint64_t> index(dims[0] * kIndexColumns);
     read_rows(d.get(), H5T_NATIVE_UINT64, index.data(), 0, dims[0], kIndexColumns, true, path,
               "reading plan_records");
@@ -304,27 +330,33 @@ EnsembleReader::EnsembleReader(const std::string& path) : impl_(std::make_unique
   silence_hdf5_errors();
   Impl& m = *impl_;
   m.path = path;
-  H5PropList fapl = checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
+  H5PropList fapl =
+      checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
   check(H5Pset_fapl_sec2(fapl.get()), path, "choosing the serial file driver");
-  m.file = checked<H5File>(H5Fopen(path.c_str(), H5F_ACC_RDONLY, fapl.get()), path, "opening the ensemble file");
+  m.file = checked<H5File>(H5Fopen(path.c_str(), H5F_ACC_RDONLY, fapl.get()), path,
+                           "opening the ensemble file");
   const hid_t root = m.file.get();
   m.version = read_scalar_attribute<std::int64_t>(root, "format_version", H5T_NATIVE_INT64, path);
   if (m.version != kEnsembleFormatVersion)
     throw StoreError(path, "reading format_version",
                      "version " + std::to_string(m.version) + ", this planmill reads " +
                          std::to_string(kEnsembleFormatVersion));
-  m.header.unit_count = read_scalar_attribute<std::uint64_t>(root, "unit_count", H5T_NATIVE_UINT64, path);
-  m.header.district_count = read_scalar_attribute<std::uint64_t>(root, "district_count", H5T_NATIVE_UINT64, path);
+  m.header.unit_count =
+      read_scalar_attribute<std::uint64_t>(root, "unit_count", H5T_NATIVE_UINT64, path);
+  m.header.district_count =
+      read_scalar_attribute<std::uint64_t>(root, "district_count", H5T_NATIVE_UINT64, path);
   m.header.job_text = read_string_attribute(root, "job_text", path);
   m.width = label_width(m.header.district_count);
   H5G_info_t info;
   check(H5Gget_info(root, &info), path, "listing chains");
   for (hsize_t i = 0; i < info.nlinks; ++i) {
     char name[256];
-    if (H5Lget_name_by_idx(root, ".", H5_INDEX_NAME, H5_ITER_INC, i, name, sizeof name, H5P_DEFAULT) < 0)
+    if (H5Lget_name_by_idx(root, ".", H5_INDEX_NAME, H5_ITER_INC, i, name, sizeof name,
+                           H5P_DEFAULT) < 0)
       throw StoreError(path, "listing chains", hdf5_error_stack());
     const std::string s = name;
-    if (s.rfind("chain_", 0) != 0 || s.size() == 6 || s.find_first_not_of("0123456789", 6) != std::string::npos)
+    if (s.rfind("chain_", 0) != 0 || s.size() == 6 ||
+        s.find_first_not_of("0123456789", 6) != std::string::npos)
       continue;
     m.chain_indices.push_back(std::stoull(s.substr(6)));
   }
@@ -348,14 +380,17 @@ std::vector<std::uint64_t> EnsembleReader::record_steps(std::uint64_t chain) con
   return steps;
 }
 
-std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain, std::size_t record) const {
+std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
+                                                     std::size_t record) const {
   const Impl& m = *impl_;
   const auto& index = m.index(chain);
   const std::size_t records = index.size() / kIndexColumns;
   const std::string where = chain_group_name(chain) + " record " + std::to_string(record);
   if (record >= records) throw std::out_of_range("EnsembleReader::read_plan: no " + where);
   std::size_t first = record;
-  while (first > 0 && index[first * kIndexColumns + 3] != static_cast<std::uint64_t>(RecordKind::full)) --first;
+  while (first > 0 &&
+         index[first * kIndexColumns + 3] != static_cast<std::uint64_t>(RecordKind::full))
+    --first;
   if (index[first * kIndexColumns + 3] != static_cast<std::uint64_t>(RecordKind::full))
     throw StoreError(m.path, "reading " + where, "no full plan before it");
   const std::uint64_t begin = index[first * kIndexColumns + 1];
@@ -364,7 +399,8 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain, std::s
   H5Group g = m.group(chain);
   H5Dataset d = m.dataset(g, "plan_bytes");
   if (dims_of(d.get(), m.path).at(0) < end)
-    throw StoreError(m.path, "reading " + where, "plan_bytes is shorter than plan_records says (truncated)");
+    throw StoreError(m.path, "reading " + where,
+                     "plan_bytes is shorter than plan_records says (truncated)");
   std::vector<std::uint8_t> bytes(end - begin);
   read_rows(d.get(), H5T_NATIVE_UINT8, bytes.data(), begin, end - begin, 1, false, m.path,
             ("reading plan_bytes for " + where).c_str());
@@ -375,7 +411,8 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain, std::s
       throw StoreError(m.path, "reading " + where, "inconsistent plan_records");
     const std::span<const std::uint8_t> b(bytes.data() + (row[1] - begin), row[2]);
     if (!decode_record(static_cast<RecordKind>(row[3]), b, m.width, m.header.district_count, plan))
-      throw StoreError(m.path, "reading " + where, "record " + std::to_string(r) + " does not decode");
+      throw StoreError(m.path, "reading " + where,
+                       "record " + std::to_string(r) + " does not decode");
   }
   return plan;
 }
@@ -385,8 +422,10 @@ std::vector<std::string> EnsembleReader::observable_names(std::uint64_t chain) c
   H5Group g = m.group(chain);
   if (H5Lexists(g.get(), "observables", H5P_DEFAULT) <= 0) return {};
   H5Dataset d = m.dataset(g, "observables");
-  H5Attribute attr = checked<H5Attribute>(H5Aopen(d.get(), "names", H5P_DEFAULT), m.path, "reading observable names");
-  H5Dataspace space = checked<H5Dataspace>(H5Aget_space(attr.get()), m.path, "reading observable names");
+  H5Attribute attr = checked<H5Attribute>(H5Aopen(d.get(), "names", H5P_DEFAULT), m.path,
+                                          "reading observable names");
+  H5Dataspace space =
+      checked<H5Dataspace>(H5Aget_space(attr.get()), m.path, "reading observable names");
   const hssize_t n = H5Sget_simple_extent_npoints(space.get());
   if (n < 0) throw StoreError(m.path, "reading observable names", hdf5_error_stack());
   H5Type t = vlen_string_type(m.path);
@@ -405,7 +444,8 @@ std::vector<double> EnsembleReader::read_observables(std::uint64_t chain) const 
   H5Dataset d = m.dataset(g, "observables");
   const auto dims = dims_of(d.get(), m.path);
   std::vector<double> values(dims.at(0) * dims.at(1));
-  read_rows(d.get(), H5T_NATIVE_DOUBLE, values.data(), 0, dims[0], dims[1], true, m.path, "reading observables");
+  read_rows(d.get(), H5T_NATIVE_DOUBLE, values.data(), 0, dims[0], dims[1], true, m.path,
+            "reading observables");
   return values;
 }
 
@@ -414,7 +454,8 @@ StoredCounters EnsembleReader::counters(std::uint64_t chain) const {
   H5Group g = m.group(chain);
   std::uint64_t v[5];
   for (std::size_t i = 0; i < 5; ++i)
-    v[i] = read_scalar_attribute<std::uint64_t>(g.get(), kCounterNames[i], H5T_NATIVE_UINT64, m.path);
+    v[i] =
+        read_scalar_attribute<std::uint64_t>(g.get(), kCounterNames[i], H5T_NATIVE_UINT64, m.path);
   return {v[0], v[1], v[2], v[3], v[4]};
 }
 
@@ -440,13 +481,15 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
     std::size_t consistent = records;
     for (std::size_t r = 0; r < records && consistent == records; ++r) {
       const std::uint64_t* row = &index[r * kIndexColumns];
-      const std::uint64_t expected_offset = r ? index[(r - 1) * kIndexColumns + 1] + index[(r - 1) * kIndexColumns + 2] : 0;
+      const std::uint64_t expected_offset =
+          r ? index[(r - 1) * kIndexColumns + 1] + index[(r - 1) * kIndexColumns + 2] : 0;
       const bool ok = row[3] <= 3 && row[1] == expected_offset && (r > 0 || row[3] == 0) &&
                       (r == 0 || row[0] >= index[(r - 1) * kIndexColumns]);
       if (!ok) consistent = r;
     }
     if (consistent < records)
-      report(consistent, last, "plan_records inconsistent from record " + std::to_string(consistent));
+      report(consistent, last,
+             "plan_records inconsistent from record " + std::to_string(consistent));
     std::vector<std::uint8_t> bytes;
     std::vector<bool> good;  // per record: its bytes were read without error
     try {
@@ -454,14 +497,16 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
       H5Dataset d = m.dataset(g, "plan_bytes");
       const hsize_t size = dims_of(d.get(), m.path).at(0);
       bytes.resize(size);
-      H5PropList dcpl = checked<H5PropList>(H5Dget_create_plist(d.get()), m.path, "reading chunk size");
+      H5PropList dcpl =
+          checked<H5PropList>(H5Dget_create_plist(d.get()), m.path, "reading chunk size");
       hsize_t chunk = 1 << 16;
       if (H5Pget_chunk(dcpl.get(), 1, &chunk) < 0) chunk = 1 << 16;
       std::vector<std::pair<hsize_t, hsize_t>> bad;
       for (hsize_t at = 0; at < size; at += chunk) {
         const hsize_t n = std::min(chunk, size - at);
         try {
-          read_rows(d.get(), H5T_NATIVE_UINT8, bytes.data() + at, at, n, 1, false, m.path, "reading plan_bytes");
+          read_rows(d.get(), H5T_NATIVE_UINT8, bytes.data() + at, at, n, 1, false, m.path,
+                    "reading plan_bytes");
         } catch (const StoreError&) {
           bad.emplace_back(at, at + n);
         }
@@ -479,7 +524,8 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
       }
       if (truncated_from < consistent) {
         report(truncated_from, consistent - 1,
-               "plan_bytes truncated: it holds " + std::to_string(size) + " bytes, plan_records needs more");
+               "plan_bytes truncated: it holds " + std::to_string(size) +
+                   " bytes, plan_records needs more");
         consistent = truncated_from;
       }
       // Decode in order: a bad record spoils everything up to the next readable full plan.
@@ -487,7 +533,8 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
       bool have_plan = false;
       std::size_t bad_from = records;
       auto close_bad = [&](std::size_t r) {
-        if (bad_from < r) report(bad_from, r - 1, "plan records unreadable (checksum failure or bad encoding)");
+        if (bad_from < r)
+          report(bad_from, r - 1, "plan records unreadable (checksum failure or bad encoding)");
         bad_from = records;
       };
       for (std::size_t r = 0; r < consistent; ++r) {
@@ -498,8 +545,9 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
           have_plan = false;
         }
         bool ok = good[r] && (have_plan || kind == RecordKind::full);
-        if (ok) ok = decode_record(kind, std::span<const std::uint8_t>(bytes.data() + row[1], row[2]), m.width,
-                                   m.header.district_count, plan);
+        if (ok)
+          ok = decode_record(kind, std::span<const std::uint8_t>(bytes.data() + row[1], row[2]),
+                             m.width, m.header.district_count, plan);
         have_plan = ok;
         if (!ok && bad_from == records) bad_from = r;
       }
@@ -513,13 +561,15 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
         H5Dataset d = m.dataset(g, "observables");
         const auto dims = dims_of(d.get(), m.path);
         if (dims.at(0) != records)
-          report(std::min<std::uint64_t>(dims[0], records), last, "observables has " + std::to_string(dims[0]) +
-                                                                     " rows for " + std::to_string(records) + " records");
+          report(std::min<std::uint64_t>(dims[0], records), last,
+                 "observables has " + std::to_string(dims[0]) + " rows for " +
+                     std::to_string(records) + " records");
         std::vector<double> rows(kObservableChunkRows * dims.at(1));
         for (hsize_t at = 0; at < dims[0]; at += kObservableChunkRows) {
           const hsize_t n = std::min<hsize_t>(kObservableChunkRows, dims[0] - at);
           try {
-            read_rows(d.get(), H5T_NATIVE_DOUBLE, rows.data(), at, n, dims[1], true, m.path, "reading observables");
+            read_rows(d.get(), H5T_NATIVE_DOUBLE, rows.data(), at, n, dims[1], true, m.path,
+                      "reading observables");
           } catch (const StoreError&) {
             report(at, at + n - 1, "observables rows unreadable (checksum failure)");
           }

@@ -22,7 +22,9 @@ std::string message(const std::string& path, const std::string& action, const st
 }  // namespace
 
 StoreError::StoreError(std::string path, std::string action, std::string detail)
-    : std::runtime_error(message(path, action, detail)), path_(std::move(path)), action_(std::move(action)) {}
+    : std::runtime_error(message(path, action, detail)),
+      path_(std::move(path)),
+      action_(std::move(action)) {}
 
 std::string hdf5_error_stack() {
   std::string text;

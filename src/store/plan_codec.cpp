@@ -48,12 +48,14 @@ struct Reader {
 
 }  // namespace
 
-void encode_full(std::span<const DistrictIndex> plan, std::size_t width, std::vector<std::uint8_t>& out) {
+void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
+                 std::vector<std::uint8_t>& out) {
   for (DistrictIndex d : plan) put_label(d, width, out);
 }
 
-RecordKind encode_delta(std::span<const DistrictIndex> previous, std::span<const DistrictIndex> next,
-                        std::size_t width, std::vector<std::uint8_t>& out) {
+RecordKind encode_delta(std::span<const DistrictIndex> previous,
+                        std::span<const DistrictIndex> next, std::size_t width,
+                        std::vector<std::uint8_t>& out) {
   const std::size_t start = out.size();
   const std::size_t n = next.size();
   // One pass: write the runs encoding and note which labels the changes involve.
@@ -61,9 +63,12 @@ RecordKind encode_delta(std::span<const DistrictIndex> previous, std::span<const
   bool two_labels = true;
   auto note = [&](DistrictIndex d) {
     if (d == involved[0] || d == involved[1]) return;
-    if (involved[0] == kNoDistrict) involved[0] = d;
-    else if (involved[1] == kNoDistrict) involved[1] = d;
-    else two_labels = false;
+    if (involved[0] == kNoDistrict)
+      involved[0] = d;
+    else if (involved[1] == kNoDistrict)
+      involved[1] = d;
+    else
+      two_labels = false;
   };
   std::size_t changes = 0;
   std::size_t last_end = 0;
@@ -92,7 +97,8 @@ RecordKind encode_delta(std::span<const DistrictIndex> previous, std::span<const
   std::size_t pair_size = static_cast<std::size_t>(-1);
   if (two_labels && involved[1] != kNoDistrict) {
     std::size_t members = 0;
-    for (std::size_t u = 0; u < n; ++u) members += previous[u] == involved[0] || previous[u] == involved[1];
+    for (std::size_t u = 0; u < n; ++u)
+      members += previous[u] == involved[0] || previous[u] == involved[1];
     pair_size = 2 * width + (members + 7) / 8;
   }
   if (runs_size <= pair_size && runs_size <= full_size) return RecordKind::runs;

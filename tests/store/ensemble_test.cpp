@@ -1,4 +1,6 @@
 // Ensemble files: exact round trips of random plan sequences, and verify() on damaged files.
+#include "planmill/store/ensemble.hpp"
+
 #include <gtest/gtest.h>
 #include <hdf5.h>
 #include <unistd.h>
@@ -7,7 +9,6 @@
 #include <fstream>
 #include <random>
 
-#include "planmill/store/ensemble.hpp"
 #include "planmill/store/hdf5_handle.hpp"
 
 namespace planmill {
@@ -17,7 +18,8 @@ namespace fs = std::filesystem;
 using Plans = std::vector<std::vector<DistrictIndex>>;
 
 fs::path temp_file(const std::string& name) {
-  return fs::temp_directory_path() / ("planmill_store_" + std::to_string(getpid()) + "_" + name + ".h5");
+  return fs::temp_directory_path() /
+         ("planmill_store_" + std::to_string(getpid()) + "_" + name + ".h5");
 }
 
 // A sequence mixing the changes a chain makes: two-district relabelings of contiguous stretches,
@@ -42,20 +44,22 @@ Plans random_sequence(std::size_t units, std::size_t k, std::size_t count, std::
       case 2:
         break;
       default:
-        for (std::size_t j = pick(units); j > 0; --j) plan[pick(units)] = static_cast<DistrictIndex>(pick(k));
+        for (std::size_t j = pick(units); j > 0; --j)
+          plan[pick(units)] = static_cast<DistrictIndex>(pick(k));
     }
     plans.push_back(plan);
   }
   return plans;
 }
 
-void write_file(const fs::path& path, std::size_t units, std::size_t k, const std::vector<Plans>& chains,
-                EnsembleWriterOptions options = {}) {
+void write_file(const fs::path& path, std::size_t units, std::size_t k,
+                const std::vector<Plans>& chains, EnsembleWriterOptions options = {}) {
   EnsembleWriter writer(path.string(), {units, k, "name = \"test\"\n"}, options);
   for (std::size_t c = 0; c < chains.size(); ++c) {
     const std::size_t h = writer.add_chain(c, {"index", "first_label"});
     for (std::size_t r = 0; r < chains[c].size(); ++r) {
-      const double obs[] = {static_cast<double>(r) + 0.5 * static_cast<double>(c), chains[c][r][0] * 1.25};
+      const double obs[] = {static_cast<double>(r) + 0.5 * static_cast<double>(c),
+                            chains[c][r][0] * 1.25};
       writer.record(h, 10 * r, chains[c][r], obs);
     }
     writer.set_counters(h, {chains[c].size(), 3, 2, 1, c});
@@ -63,9 +67,11 @@ void write_file(const fs::path& path, std::size_t units, std::size_t k, const st
   writer.flush();
 }
 
-void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every, std::uint32_t seed) {
+void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every,
+                       std::uint32_t seed) {
   const fs::path path = temp_file("round_trip_" + std::to_string(seed));
-  const std::vector<Plans> chains = {random_sequence(units, k, 300, seed), random_sequence(units, k, 77, seed + 1)};
+  const std::vector<Plans> chains = {random_sequence(units, k, 300, seed),
+                                     random_sequence(units, k, 77, seed + 1)};
   write_file(path, units, k, chains, {full_every, 512, 4});
   EnsembleReader reader(path.string());
   EXPECT_EQ(reader.header().unit_count, units);
@@ -74,7 +80,8 @@ void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every,
   ASSERT_EQ(reader.chains(), (std::vector<std::uint64_t>{0, 1}));
   for (std::size_t c = 0; c < chains.size(); ++c) {
     ASSERT_EQ(reader.record_count(c), chains[c].size());
-    for (std::size_t r = 0; r < chains[c].size(); ++r) ASSERT_EQ(reader.read_plan(c, r), chains[c][r]) << r;
+    for (std::size_t r = 0; r < chains[c].size(); ++r)
+      ASSERT_EQ(reader.read_plan(c, r), chains[c][r]) << r;
     EXPECT_EQ(reader.observable_names(c), (std::vector<std::string>{"index", "first_label"}));
     const auto obs = reader.read_observables(c);
     ASSERT_EQ(obs.size(), 2 * chains[c].size());
@@ -96,7 +103,8 @@ TEST(PlanCodec, PairChangeIsSmall) {
   std::vector<DistrictIndex> before(10000), after;
   for (std::size_t u = 0; u < before.size(); ++u) before[u] = static_cast<DistrictIndex>(u / 100);
   after = before;
-  for (std::size_t u = 150; u < 250; u += 3) after[u] = after[u] == 1 ? 2 : 1;  // scattered, two districts
+  for (std::size_t u = 150; u < 250; u += 3)
+    after[u] = after[u] == 1 ? 2 : 1;  // scattered, two districts
   std::vector<std::uint8_t> out;
   EXPECT_EQ(encode_delta(before, after, 1, out), RecordKind::pair);
   EXPECT_EQ(out.size(), 2u + 200u / 8u);  // two labels + one bit per unit of districts 1 and 2

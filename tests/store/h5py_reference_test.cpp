@@ -4,9 +4,9 @@
 #include <gtest/gtest.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cstdlib>
 #include <filesystem>
-#include <algorithm>
 #include <fstream>
 #include <map>
 #include <random>
@@ -88,7 +88,8 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
       for (std::size_t u = 0; u < units; ++u) plan[u] = static_cast<DistrictIndex>(u * k / units);
       std::normal_distribution<double> normal;
       for (std::uint64_t r = 0; r < 40; ++r) {
-        const auto a = static_cast<DistrictIndex>(rng() % k), b = static_cast<DistrictIndex>(rng() % k);
+        const auto a = static_cast<DistrictIndex>(rng() % k),
+                   b = static_cast<DistrictIndex>(rng() % k);
         for (auto& d : plan)
           if ((d == a || d == b) && rng() % 2) d = d == a ? b : a;  // two-district change
         if (r % 5 == 0) plan[rng() % units] = static_cast<DistrictIndex>(rng() % k);  // one unit
@@ -100,7 +101,8 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
     }
   }
   std::ofstream(script) << kPythonReader;
-  const std::string command = "/usr/bin/python3 " + script.string() + " " + file.string() + " " + output.string();
+  const std::string command =
+      "/usr/bin/python3 " + script.string() + " " + file.string() + " " + output.string();
   ASSERT_EQ(std::system(command.c_str()), 0) << command;
 
   EnsembleReader reader(file.string());
@@ -117,14 +119,16 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
       std::string name;
       fields >> name;
       const auto names = reader.observable_names(chain);
-      const auto column = static_cast<std::size_t>(std::find(names.begin(), names.end(), name) - names.begin());
+      const auto column =
+          static_cast<std::size_t>(std::find(names.begin(), names.end(), name) - names.begin());
       ASSERT_LT(column, names.size()) << name;
       const auto table = reader.read_observables(chain);
       std::string value;
       std::size_t row = 0;
       for (; fields >> value; ++row) {
         ASSERT_LT(row * names.size() + column, table.size());
-        EXPECT_EQ(std::strtod(value.c_str(), nullptr), table[row * names.size() + column]) << name << " " << row;
+        EXPECT_EQ(std::strtod(value.c_str(), nullptr), table[row * names.size() + column])
+            << name << " " << row;
       }
       EXPECT_EQ(row, reader.record_count(chain));
       ++obs_lines;

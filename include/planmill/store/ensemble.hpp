@@ -1,6 +1,6 @@
 #pragma once
-// Ensemble files: one HDF5 file (serial driver, one per rank) holding, per chain, the recorded plans
-// in compact form, a table of observables per recorded plan and the step-outcome counters.
+// Ensemble files: one HDF5 file (serial driver, one per rank) holding, per chain, the recorded
+// plans in compact form, a table of observables per recorded plan and the step-outcome counters.
 // Layout in docs/format.md. Every HDF5 failure throws StoreError (store/hdf5_handle.hpp).
 #include <cstdint>
 #include <memory>
@@ -22,8 +22,8 @@ struct EnsembleHeader {
 };
 
 struct EnsembleWriterOptions {
-  std::size_t full_every = 64;         // a full plan every this many records of a chain
-  std::size_t chunk_bytes = 1 << 16;   // chunk size of the byte stream; buffered until a chunk fills
+  std::size_t full_every = 64;        // a full plan every this many records of a chain
+  std::size_t chunk_bytes = 1 << 16;  // chunk size of the byte stream; buffered until a chunk fills
   int deflate_level = 4;
 };
 
@@ -35,13 +35,15 @@ struct StoredCounters {
 class EnsembleWriter {
  public:
   // Creates (truncates) `path`.
-  EnsembleWriter(const std::string& path, const EnsembleHeader& header, EnsembleWriterOptions options = {});
+  EnsembleWriter(const std::string& path, const EnsembleHeader& header,
+                 EnsembleWriterOptions options = {});
   ~EnsembleWriter();
   EnsembleWriter(const EnsembleWriter&) = delete;
   EnsembleWriter& operator=(const EnsembleWriter&) = delete;
 
   // Creates group chain_<index> with one observable column per name. Returns a handle for record().
-  std::size_t add_chain(std::uint64_t chain_index, const std::vector<std::string>& observable_names);
+  std::size_t add_chain(std::uint64_t chain_index,
+                        const std::vector<std::string>& observable_names);
   // Appends one recorded plan (labels 0..k-1 per unit) with its observables (one per name).
   void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
               std::span<const double> observables);
@@ -77,7 +79,8 @@ class EnsembleReader {
   [[nodiscard]] std::size_t record_count(std::uint64_t chain_index) const;
   [[nodiscard]] std::vector<std::uint64_t> record_steps(std::uint64_t chain_index) const;
   // Plan of record r: decoded from the nearest preceding full plan.
-  [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain_index, std::size_t record) const;
+  [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain_index,
+                                                     std::size_t record) const;
   [[nodiscard]] std::vector<std::string> observable_names(std::uint64_t chain_index) const;
   // Row-major records x observables.
   [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain_index) const;

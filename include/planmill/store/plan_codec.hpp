@@ -21,14 +21,17 @@ enum class RecordKind : std::uint8_t {
 }
 
 // Appends the full plan to `out`.
-void encode_full(std::span<const DistrictIndex> plan, std::size_t width, std::vector<std::uint8_t>& out);
+void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
+                 std::vector<std::uint8_t>& out);
 // Appends the cheapest encoding of `next` given `previous` and returns its kind. `previous` and
 // `next` have the same size.
-RecordKind encode_delta(std::span<const DistrictIndex> previous, std::span<const DistrictIndex> next,
-                        std::size_t width, std::vector<std::uint8_t>& out);
+RecordKind encode_delta(std::span<const DistrictIndex> previous,
+                        std::span<const DistrictIndex> next, std::size_t width,
+                        std::vector<std::uint8_t>& out);
 // Applies one record to `plan` in place (for full records `plan` is overwritten). Returns false,
 // leaving `plan` unspecified, when the bytes do not form a valid record of that kind.
-[[nodiscard]] bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes, std::size_t width,
-                                 std::size_t district_count, std::span<DistrictIndex> plan);
+[[nodiscard]] bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes,
+                                 std::size_t width, std::size_t district_count,
+                                 std::span<DistrictIndex> plan);
 
 }  // namespace planmill
