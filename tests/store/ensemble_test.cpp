@@ -227,3 +227,37 @@ TEST(EnsembleVerify, TruncatedFileThrowsStoreErrorWithPath) {
 
 }  // namespace
 }  // namespace planmill
+
+namespace planmill {
+namespace {
+
+TEST(EnsembleVerify, FlippedRecordIndexNamesTheChain) {
+  const fs::path path = temp_file("flip_index");
+  const auto chains = two_chains();
+  write_file(path, 3000, 30, chains);
+  corrupt_chunk(path, "plan_records", 0);
+  EnsembleReader reader(path.string());
+  const auto problems = reader.verify();
+  ASSERT_EQ(problems.size(), 1u);
+  EXPECT_EQ(problems[0].chain_index, 1u);
+  EXPECT_NE(problems[0].what.find("plan_records"), std::string::npos) << problems[0].what;
+  EXPECT_THROW((void)reader.read_plan(1, 0), StoreError);
+  EXPECT_EQ(reader.read_plan(0, 199), chains[0][199]);
+  fs::remove(path);
+}
+
+TEST(EnsembleStore, FailedCreateNamesThePathAndAction) {
+  const std::string path = (temp_file("no_such_dir") / "ensemble.h5").string();
+  try {
+    EnsembleWriter writer(path, {10, 2, ""});
+    FAIL() << "created a file in a missing folder";
+  } catch (const StoreError& e) {
+    EXPECT_EQ(e.path(), path);
+    EXPECT_EQ(e.action(), "creating the ensemble file");
+    EXPECT_NE(std::string(e.what()).find("H5Fcreate"), std::string::npos)
+        << e.what();  // HDF5 stack text
+  }
+}
+
+}  // namespace
+}  // namespace planmill
