@@ -2,6 +2,7 @@
 #include "planmill/store/plan_codec.hpp"
 
 #include <algorithm>
+#include <cstring>
 
 namespace planmill {
 namespace {
@@ -73,6 +74,12 @@ RecordKind encode_delta(std::span<const DistrictIndex> previous,
   std::size_t changes = 0;
   std::size_t last_end = 0;
   for (std::size_t u = 0; u < n;) {
+    // Most of a plan is unchanged: skip equal stretches a block at a time (memcmp is vectorised).
+    constexpr std::size_t kBlock = 64;
+    while (u + kBlock <= n &&
+           std::memcmp(&previous[u], &next[u], kBlock * sizeof(DistrictIndex)) == 0)
+      u += kBlock;
+    if (u >= n) break;
     if (previous[u] == next[u]) {
       ++u;
       continue;
