@@ -61,7 +61,7 @@ class EnsembleWriter {
 struct ChainProblem {
   std::uint64_t chain_index = 0;
   std::uint64_t first_record = 0;  // records [first_record, last_record] are affected
-  std::uint64_t last_record = 0;
+  std::uint64_t last_record = 0;   // UINT64_MAX: up to the end, count unknown (index unreadable)
   std::string what;
 };
 
