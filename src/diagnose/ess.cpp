@@ -28,7 +28,9 @@ const Fft& fft_of_size(std::size_t p) {
 class MeanAutocovariance {
  public:
   explicit MeanAutocovariance(const Matrix& x)
-      : n_(x.draws), m_(x.chains), centred_(x.values), mean_(n_, 0.0), known_(0) {
+      : n_(x.draws), m_(x.chains), centred_(scratch()), mean_(scratch_mean()), known_(0) {
+    centred_.assign(x.values.begin(), x.values.end());
+    mean_.assign(n_, 0.0);
     for (std::size_t c = 0; c < m_; ++c) {
       double* y = centred_.data() + c * n_;
       const bool constant = std::all_of(y, y + n_, [&](double v) { return v == y[0]; });
@@ -42,7 +44,7 @@ class MeanAutocovariance {
 
   double at(std::size_t t) {
     while (known_ <= t) {
-      if (known_ >= kDirectLags) {
+      if (known_ >= kDirectLags || decays_slowly()) {
         all_by_fft();
         break;
       }
@@ -51,9 +53,22 @@ class MeanAutocovariance {
     return mean_[t];
   }
 
+  // All lags by FFT now, for a sequence known to be long (the direct sums would be wasted).
+  void compute_all() {
+    if (known_ < n_) all_by_fft();
+  }
+
  private:
-  static constexpr std::size_t kBlock = 8;         // lags per pass over the draws
-  static constexpr std::size_t kDirectLags = 32;  // beyond this the FFT is cheaper
+  static constexpr std::size_t kBlock = 8;  // lags per pass over the draws
+  // A direct lag costs about as much as a few per cent of the FFT of all lags: up to this many
+  // the direct sums are cheaper even when the FFT follows.
+  static constexpr std::size_t kDirectLags = 48;
+
+  // Autocovariance still above 30% of lag 0 after a block: Geyer's sequence will run far past
+  // kDirectLags, so the FFT comes sooner. Only the cost depends on this guess, not the result.
+  [[nodiscard]] bool decays_slowly() const {
+    return known_ >= kBlock && mean_[known_ - 1] > 0.3 * mean_[0];
+  }
 
   // Lags first .. first + kBlock - 1 in one pass; independent sums keep the pipeline full.
   std::size_t direct_block(std::size_t first) {
@@ -131,8 +146,20 @@ class MeanAutocovariance {
     return squares / static_cast<double>(n_) / raw0;
   }
 
+  // Per-thread buffers, reused by every ESS so that no call maps fresh pages (one object alive
+  // per thread at a time).
+  static std::vector<double>& scratch() {
+    thread_local std::vector<double> v;
+    return v;
+  }
+  static std::vector<double>& scratch_mean() {
+    thread_local std::vector<double> v;
+    return v;
+  }
+
   std::size_t n_, m_;
-  std::vector<double> centred_, mean_;
+  std::vector<double>& centred_;
+  std::vector<double>& mean_;
   std::size_t known_;
 };
 
@@ -166,6 +193,9 @@ Estimate ess_of(const Matrix& x) {
     for (double v : chain_mean) between += (v - mu) * (v - mu);
     var_plus += static_cast<double>(between / static_cast<long double>(m - 1));
   }
+  // rho_t below never falls under 1 - W / var+: when that floor is clearly positive (chains
+  // disagree), Geyer's sequence runs to the full length and all lags come from the FFT.
+  if (1.0 - mean_var / var_plus > 0.01) acov.compute_all();
   // Combined autocorrelation rho_t = 1 - (W - mean_m acov_m(t)) / var+, eq. (10).
   auto rho_at = [&](std::size_t t) { return 1.0 - (mean_var - acov.at(t)) / var_plus; };
 

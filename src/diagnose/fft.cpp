@@ -1,5 +1,6 @@
 #include "diagnose/fft.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <numbers>
 #include <utility>
@@ -54,24 +55,36 @@ void Fft::run(std::vector<double>& re, std::vector<double>& im, bool inverse) co
     }
   }
   const double sign = inverse ? -1.0 : 1.0;
-  for (std::size_t len = 4; len <= n_; len <<= 1) {
-    const std::size_t half = len / 2;
-    const double* __restrict wr = cos_.data() + half;
-    const double* __restrict ws = sin_.data() + half;
-    for (std::size_t start = 0; start < n_; start += len) {
-      double* __restrict ar = xr + start;
-      double* __restrict ai = xi + start;
-      double* __restrict br = ar + half;
-      double* __restrict bi = ai + half;
-      for (std::size_t j = 0; j < half; ++j) {
-        const double c = wr[j], s = sign * ws[j];
-        const double vr = br[j] * c - bi[j] * s;
-        const double vi = br[j] * s + bi[j] * c;
-        br[j] = ar[j] - vr;
-        bi[j] = ai[j] - vi;
-        ar[j] += vr;
-        ai[j] += vi;
-      }
+  // Stages up to kBlock touch only their own block of kBlock points: finish those stages block by
+  // block while the block sits in cache, then run the longer stages over the whole array.
+  constexpr std::size_t kBlock = 8192;  // 128 KiB of points
+  const std::size_t block = std::min(kBlock, n_);
+  for (std::size_t first = 0; first < n_; first += block) {
+    for (std::size_t len = 4; len <= block; len <<= 1) {
+      butterflies(xr, xi, first, first + block, len, sign);
+    }
+  }
+  for (std::size_t len = 2 * block; len <= n_; len <<= 1) butterflies(xr, xi, 0, n_, len, sign);
+}
+
+void Fft::butterflies(double* __restrict xr, double* __restrict xi, std::size_t begin,
+                      std::size_t end, std::size_t len, double sign) const {
+  const std::size_t half = len / 2;
+  const double* __restrict wr = cos_.data() + half;
+  const double* __restrict ws = sin_.data() + half;
+  for (std::size_t start = begin; start < end; start += len) {
+    double* __restrict ar = xr + start;
+    double* __restrict ai = xi + start;
+    double* __restrict br = ar + half;
+    double* __restrict bi = ai + half;
+    for (std::size_t j = 0; j < half; ++j) {
+      const double c = wr[j], s = sign * ws[j];
+      const double vr = br[j] * c - bi[j] * s;
+      const double vi = br[j] * s + bi[j] * c;
+      br[j] = ar[j] - vr;
+      bi[j] = ai[j] - vi;
+      ar[j] += vr;
+      ai[j] += vi;
     }
   }
 }

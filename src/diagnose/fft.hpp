@@ -18,6 +18,9 @@ class Fft {
 
  private:
   void run(std::vector<double>& re, std::vector<double>& im, bool inverse) const;
+  // One stage of length len (>= 4) on the points [begin, end), a multiple of len.
+  void butterflies(double* xr, double* xi, std::size_t begin, std::size_t end, std::size_t len,
+                   double sign) const;
 
   std::size_t n_;
   // Twiddles e^{-2 pi i j / len} of the stage of length len stored contiguously from offset

@@ -28,12 +28,13 @@ QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   q.sd = pooled_sd(x.values);
 
   const SortedDraws sorted = sort_draws(x);  // one sort serves every rank-based step
-  q.rhat_bulk = note(rhat_of(bulk_scores(sorted)));
+  const Matrix bulk = bulk_scores(sorted);  // shared by bulk R-hat and bulk ESS
+  q.rhat_bulk = note(rhat_of(bulk));
   q.rhat_folded = note(rhat_of(folded_scores(sorted)));
   q.rhat = std::isnan(q.rhat_bulk) || std::isnan(q.rhat_folded)
                ? kNaN
                : std::max(q.rhat_bulk, q.rhat_folded);
-  q.ess_bulk = note(ess_of(bulk_scores(sorted)));
+  q.ess_bulk = note(ess_of(bulk));
 
   const Estimate ess_q05 = ess_of(indicator_at_quantile(x, sorted, 0.05));
   const Estimate ess_q95 = ess_of(indicator_at_quantile(x, sorted, 0.95));

@@ -41,10 +41,15 @@ std::uint64_t sort_key(double x) {
 }
 
 // Ascending order of v by LSD radix sort on 11-bit digits, skipping digits all keys share.
-std::vector<std::uint32_t> ascending_order(std::span<const double> v) {
+// The buffers are kept per thread (valid until the next call) to spare fresh pages per quantity.
+std::span<const std::uint32_t> ascending_order(std::span<const double> v) {
   const std::size_t n = v.size();
-  std::vector<std::uint64_t> key(n), key2(n);
-  std::vector<std::uint32_t> idx(n), idx2(n);
+  thread_local std::vector<std::uint64_t> key, key2;
+  thread_local std::vector<std::uint32_t> idx, idx2;
+  key.resize(n);
+  key2.resize(n);
+  idx.resize(n);
+  idx2.resize(n);
   for (std::size_t i = 0; i < n; ++i) {
     key[i] = sort_key(v[i]);
     idx[i] = static_cast<std::uint32_t>(i);
