@@ -132,8 +132,9 @@ struct EnsembleWriter::Impl {
     H5Dataset bytes, records, observables;
     std::size_t observable_count = 0;
     std::vector<DistrictIndex> previous;
-    std::uint64_t record_count = 0;  // recorded so far, written or buffered
-    std::uint64_t byte_count = 0;    // encoded bytes so far, written or buffered
+    std::vector<DistrictIndex> scratch;  // for encode_delta
+    std::uint64_t record_count = 0;      // recorded so far, written or buffered
+    std::uint64_t byte_count = 0;        // encoded bytes so far, written or buffered
     std::uint64_t written_records = 0, written_bytes = 0;
     std::vector<std::uint8_t> byte_buffer;
     std::vector<std::uint64_t> record_buffer;
@@ -252,7 +253,8 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
   if (c.record_count % m.options.full_every == 0) {
     encode_full(plan, m.width, c.byte_buffer);
   } else {
-    kind = encode_delta(c.previous, plan, m.width, c.byte_buffer);
+    kind =
+        encode_delta(c.previous, plan, m.width, m.header.district_count, c.byte_buffer, c.scratch);
   }
   const std::uint64_t length = c.byte_buffer.size() - before;
   c.record_buffer.insert(c.record_buffer.end(),

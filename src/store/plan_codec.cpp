@@ -56,7 +56,9 @@ void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
 
 RecordKind encode_delta(std::span<const DistrictIndex> previous,
                         std::span<const DistrictIndex> next, std::size_t width,
-                        std::vector<std::uint8_t>& out) {
+                        std::size_t district_count, std::vector<std::uint8_t>& out,
+                        std::vector<DistrictIndex>& guess) {
+  guess.assign(district_count, kNoDistrict);
   const std::size_t start = out.size();
   const std::size_t n = next.size();
   // One pass: write the runs encoding and note which labels the changes involve.
@@ -92,9 +94,13 @@ RecordKind encode_delta(std::span<const DistrictIndex> previous,
     }
     note(label);
     changes += end - u;
+    // Guess the label from the last run that started in the same old district (a merged pair
+    // keeps swapping the same two labels); spell it out only when the guess is wrong.
+    const bool guessed = guess[previous[u]] == label;
+    guess[previous[u]] = label;
     put_varint(u - last_end, out);
-    put_varint(end - u, out);
-    put_label(label, width, out);
+    put_varint((end - u) * 2 + (guessed ? 0 : 1), out);
+    if (!guessed) put_label(label, width, out);
     last_end = end;
     u = end;
   }
@@ -161,13 +167,19 @@ bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes, std::si
       return in.at + (bit + 7) / 8 == bytes.size();
     }
     case RecordKind::runs: {
+      std::vector<DistrictIndex> guess(district_count, kNoDistrict);
       std::size_t u = 0;
       while (in.at < bytes.size()) {
         const std::uint64_t gap = in.varint();
-        const std::uint64_t length = in.varint();
-        const DistrictIndex label = in.label(width);
-        if (!in.ok || label >= district_count || gap > n - u || length > n - u - gap) return false;
+        const std::uint64_t coded = in.varint();
+        const std::uint64_t length = coded / 2;
+        if (!in.ok || length == 0 || gap > n - u || length > n - u - gap) return false;
         u += gap;
+        const DistrictIndex old_label = plan[u];
+        if (old_label >= district_count) return false;
+        const DistrictIndex label = coded % 2 ? in.label(width) : guess[old_label];
+        if (!in.ok || label >= district_count) return false;
+        guess[old_label] = label;
         std::fill_n(plan.begin() + static_cast<std::ptrdiff_t>(u), length, label);
         u += length;
       }

@@ -106,23 +106,29 @@ TEST(PlanCodec, PairChangeIsSmall) {
   for (std::size_t u = 150; u < 250; u += 3)
     after[u] = after[u] == 1 ? 2 : 1;  // scattered, two districts
   std::vector<std::uint8_t> out;
-  EXPECT_EQ(encode_delta(before, after, 1, out), RecordKind::pair);
+  std::vector<DistrictIndex> scratch;
+  EXPECT_EQ(encode_delta(before, after, 1, 100, out, scratch), RecordKind::pair);
   EXPECT_EQ(out.size(), 2u + 200u / 8u);  // two labels + one bit per unit of districts 1 and 2
   std::vector<DistrictIndex> plan = before;
   ASSERT_TRUE(decode_record(RecordKind::pair, out, 1, 100, plan));
   EXPECT_EQ(plan, after);
   out.clear();
-  EXPECT_EQ(encode_delta(after, after, 1, out), RecordKind::unchanged);
+  EXPECT_EQ(encode_delta(after, after, 1, 100, out, scratch), RecordKind::unchanged);
   EXPECT_TRUE(out.empty());
 }
 
 TEST(PlanCodec, RejectsGarbage) {
   std::vector<DistrictIndex> plan(10, 0);
-  const std::vector<std::uint8_t> bad_runs = {0x05, 0x09, 0x01};  // runs past the last unit
+  const std::vector<std::uint8_t> bad_runs = {0x05, 0x11, 0x01};  // 8 units from unit 5 of 10
   EXPECT_FALSE(decode_record(RecordKind::runs, bad_runs, 1, 4, plan));
-  const std::vector<std::uint8_t> bad_label = {0x00, 0x01, 0x09};  // label 9 of 4 districts
+  const std::vector<std::uint8_t> bad_label = {0x00, 0x03, 0x09};  // label 9 of 4 districts
   EXPECT_FALSE(decode_record(RecordKind::runs, bad_label, 1, 4, plan));
   EXPECT_FALSE(decode_record(RecordKind::full, bad_runs, 1, 4, plan));
+  const std::vector<std::uint8_t> no_guess = {0x00, 0x02};  // "as the last run" with none before
+  EXPECT_FALSE(decode_record(RecordKind::runs, no_guess, 1, 4, plan));
+  const std::vector<std::uint8_t> good = {0x02, 0x05, 0x03};  // units 2..3 get district 3
+  ASSERT_TRUE(decode_record(RecordKind::runs, good, 1, 4, plan));
+  EXPECT_EQ(plan, (std::vector<DistrictIndex>{0, 0, 3, 3, 0, 0, 0, 0, 0, 0}));
 }
 
 // Flips bytes in the middle of chunk `chunk` of dataset `name` of chain 1, found with

@@ -63,13 +63,16 @@ for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g
             bits = np.unpackbits(b[2 * w:], bitorder="little")[:len(members)]
             plan[members] = np.where(bits == 1, c, a)
         elif kind == 3:
-            i, u = 0, 0
+            i, u, guess = 0, 0, {}
             while i < len(b):
                 gap, i = varint(b, i)
-                run, i = varint(b, i)
+                coded, i = varint(b, i)
                 u += gap
-                plan[u:u + run] = label(b, i)
-                i += w
+                run, old = coded // 2, int(plan[u])
+                if coded % 2:
+                    guess[old] = label(b, i)
+                    i += w
+                plan[u:u + run] = guess[old]
                 u += run
         out.write("plan %s %d %s\n" % (chain, step, " ".join(str(x) for x in plan)))
 )PY";

@@ -13,7 +13,10 @@ enum class RecordKind : std::uint8_t {
   full = 0,       // every label, in unit order
   unchanged = 1,  // no bytes
   pair = 2,       // labels a, b; then one bit per unit labelled a or b before (unit order): 1 = b
-  runs = 3,       // (gap varint, length varint, label) for each run of changed units
+  // Per run of changed units with one new label: varint gap since the previous run, varint
+  // length*2 + f, and the label only when f = 1; f = 0 means the label given to the last run
+  // (of this record) that started on a unit of the same old district.
+  runs = 3,
 };
 
 [[nodiscard]] inline std::size_t label_width(std::size_t district_count) noexcept {
@@ -24,10 +27,11 @@ enum class RecordKind : std::uint8_t {
 void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
                  std::vector<std::uint8_t>& out);
 // Appends the cheapest encoding of `next` given `previous` and returns its kind. `previous` and
-// `next` have the same size.
+// `next` have the same size; `scratch` (k entries) is reused between calls.
 RecordKind encode_delta(std::span<const DistrictIndex> previous,
                         std::span<const DistrictIndex> next, std::size_t width,
-                        std::vector<std::uint8_t>& out);
+                        std::size_t district_count, std::vector<std::uint8_t>& out,
+                        std::vector<DistrictIndex>& scratch);
 // Applies one record to `plan` in place (for full records `plan` is overwritten). Returns false,
 // leaving `plan` unspecified, when the bytes do not form a valid record of that kind.
 [[nodiscard]] bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes,
