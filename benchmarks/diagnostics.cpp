@@ -3,9 +3,11 @@
 // (diagnostics_posterior.R; target: planmill >= 10x faster). Set PLANMILL_BENCH_POSTERIOR=0 to
 // skip R, PLANMILL_BENCH_DRAWS=N for a smaller run.
 #include <benchmark/benchmark.h>
+#include <sys/resource.h>
 #include <unistd.h>
 
 #include <chrono>
+#include <ctime>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
@@ -53,15 +55,35 @@ const std::vector<std::vector<double>>& benchmark_data() {
   return data;
 }
 
+double process_cpu_seconds() {
+  timespec t{};
+  ::clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &t);
+  return static_cast<double>(t.tv_sec) + 1e-9 * static_cast<double>(t.tv_nsec);
+}
+
+// CPU time (user + system) of finished child processes, for Rscript.
+double children_cpu_seconds() {
+  rusage u{};
+  ::getrusage(RUSAGE_CHILDREN, &u);
+  auto seconds = [](const timeval& v) {
+    return static_cast<double>(v.tv_sec) + 1e-6 * static_cast<double>(v.tv_usec);
+  };
+  return seconds(u.ru_utime) + seconds(u.ru_stime);
+}
+
+double last_cpu_seconds = 0.0;
+
 double run_all_diagnostics() {
   const auto& data = benchmark_data();
   const std::size_t draws = draws_per_chain();
+  const double cpu_start = process_cpu_seconds();
   const auto start = std::chrono::steady_clock::now();
   for (std::size_t q = 0; q < kQuantities; ++q) {
     auto d = planmill::diagnose::diagnose_quantity("q" + std::to_string(q),
                                                    {data[q], draws, kChains});
     benchmark::DoNotOptimize(d);
   }
+  last_cpu_seconds = process_cpu_seconds() - cpu_start;
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
@@ -73,10 +95,14 @@ void BM_AllDiagnostics_50x16x100k(benchmark::State& state) {
     last_seconds = run_all_diagnostics();
     state.SetIterationTime(last_seconds);
   }
+  state.counters["cpu_seconds"] = last_cpu_seconds;
   state.counters["draws"] = static_cast<double>(kQuantities * kChains * draws_per_chain());
 }
 BENCHMARK(BM_AllDiagnostics_50x16x100k)->UseManualTime()->Unit(benchmark::kSecond)->Iterations(1);
 
+// Returns posterior's own elapsed seconds; sets r_cpu_seconds to Rscript's CPU time (including
+// its start-up and reading the data, a few seconds).
+double r_cpu_seconds = -1.0;
 double time_posterior() {
   const auto& data = benchmark_data();
   const auto path = std::filesystem::temp_directory_path() /
@@ -93,6 +119,7 @@ double time_posterior() {
                               std::to_string(kQuantities) + " " + std::to_string(kChains) + " " +
                               std::to_string(draws_per_chain());
   double seconds = -1.0;
+  const double children_before = children_cpu_seconds();
   if (FILE* pipe = ::popen(command.c_str(), "r")) {
     char line[256];
     while (std::fgets(line, sizeof line, pipe) != nullptr) {
@@ -101,6 +128,7 @@ double time_posterior() {
       if (std::sscanf(line, "posterior %31s seconds %lf", version, &seconds) != 2) seconds = -1.0;
     }
     ::pclose(pipe);
+    r_cpu_seconds = children_cpu_seconds() - children_before;
   }
   std::filesystem::remove(path);
   return seconds;
@@ -116,8 +144,10 @@ int main(int argc, char** argv) {
   if (last_seconds > 0.0 && (skip == nullptr || std::string(skip) != "0")) {
     const double r_seconds = time_posterior();
     if (r_seconds > 0.0) {
-      std::printf("planmill %.3f s, posterior %.3f s, ratio %.1fx\n", last_seconds, r_seconds,
-                  r_seconds / last_seconds);
+      std::printf("wall: planmill %.3f s, posterior %.3f s, ratio %.1fx\n", last_seconds,
+                  r_seconds, r_seconds / last_seconds);
+      std::printf("cpu: planmill %.3f s, Rscript %.3f s, ratio %.1fx\n", last_cpu_seconds,
+                  r_cpu_seconds, r_cpu_seconds / last_cpu_seconds);
     } else {
       std::printf("posterior timing failed (is Rscript with library(posterior) installed?)\n");
     }

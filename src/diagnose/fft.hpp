@@ -18,6 +18,12 @@ class Fft {
 
  private:
   void run(std::vector<double>& re, std::vector<double>& im, bool inverse) const;
+  // Stages of lengths from, 2 from, ..., to on the points [begin, end), a multiple of to.
+  void stages(double* xr, double* xi, std::size_t begin, std::size_t end, std::size_t from,
+              std::size_t to, double sign) const;
+  // Stages len and 2 len in one pass; [begin, end) a multiple of 2 len.
+  void butterfly_pairs(double* xr, double* xi, std::size_t begin, std::size_t end, std::size_t len,
+                       double sign) const;
   // One stage of length len (>= 4) on the points [begin, end), a multiple of len.
   void butterflies(double* xr, double* xi, std::size_t begin, std::size_t end, std::size_t len,
                    double sign) const;
