@@ -13,6 +13,7 @@
 #include "planmill/base/error.hpp"
 #include "planmill/diagnose/trace_csv.hpp"
 #include "planmill/diagnose/verdict.hpp"
+#include "planmill/io/atomic_file.hpp"
 
 namespace planmill::cli {
 namespace {
@@ -85,28 +86,6 @@ nlohmann::json to_json(const diagnose::Verdict& verdict, const DiagnoseOptions& 
 }
 
 // Write to a temporary file beside the target, then rename: readers never see half a file.
-void write_atomically(const std::string& path, const std::string& text) {
-  const std::filesystem::path target(path);
-  std::filesystem::path temp = target;
-  temp += ".tmp." + std::to_string(::getpid());
-  {
-    std::ofstream out(temp, std::ios::binary | std::ios::trunc);
-    out << text;
-    out.flush();
-    if (!out) {
-      std::error_code ignored;
-      std::filesystem::remove(temp, ignored);
-      throw InputError({path, 0, {}}, "cannot write the JSON file", "check the directory exists");
-    }
-  }
-  std::error_code ec;
-  std::filesystem::rename(temp, target, ec);
-  if (ec) {
-    std::filesystem::remove(temp, ec);
-    throw InputError({path, 0, {}}, "cannot move the JSON file into place");
-  }
-}
-
 int run_diagnose(const DiagnoseOptions& o) {
   if (o.traces.empty()) {
     if (!o.run_dir.empty()) {
@@ -144,7 +123,7 @@ int run_diagnose(const DiagnoseOptions& o) {
       std::cout << "  " << f.name << ": " << f.problem << "\n    -> " << f.suggestion << "\n";
     }
   }
-  if (!o.json.empty()) write_atomically(o.json, to_json(verdict, o).dump(2) + "\n");
+  if (!o.json.empty()) write_file_atomically(o.json, to_json(verdict, o).dump(2) + "\n");
   return verdict.pass ? 0 : 3;
 }
 

@@ -61,14 +61,25 @@ MergeSplitKernel::MergeSplitKernel(const KernelSettings& settings, const UnitGra
                                    std::size_t district_count)
     : settings_(settings), proposal_(graph), log_tau_(district_count, 0.0) {}
 
-double MergeSplitKernel::log_tree_count(const Plan& plan, DistrictIndex d) {
-  count_region_.build(plan, d, d);
+UnitIndex TreeProposal::smallest_unit_of(const Plan& plan, DistrictIndex d) const noexcept {
+  UnitIndex smallest = static_cast<UnitIndex>(-1);
+  for (const UnitIndex u : region_.units())
+    if (u < smallest && plan.district_of(u) == d) smallest = u;
+  return smallest;
+}
+
+double MergeSplitKernel::log_tree_count(const Plan& plan, UnitIndex smallest) {
+  count_region_.build_from_seeds(plan, smallest, smallest);
   return counter_.log_count(count_region_);
 }
 
 void MergeSplitKernel::reset(const ChainState& state) {
   if (settings_.gamma == 1.0) return;
-  for (DistrictIndex d = 0; d < state.plan.district_count(); ++d) log_tau_[d] = log_tree_count(state.plan, d);
+  std::vector<UnitIndex> smallest(state.plan.district_count(), static_cast<UnitIndex>(-1));
+  for (UnitIndex u = static_cast<UnitIndex>(state.plan.unit_count()); u-- > 0;)
+    smallest[state.plan.district_of(u)] = u;
+  for (DistrictIndex d = 0; d < state.plan.district_count(); ++d)
+    log_tau_[d] = log_tree_count(state.plan, smallest[d]);
 }
 
 StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
@@ -97,8 +108,8 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   const DistrictIndex a = proposal_.first(), b = proposal_.second();
   double tau_a = 0, tau_b = 0;
   if (settings_.gamma != 1.0) {
-    tau_a = log_tree_count(state.plan, a);
-    tau_b = log_tree_count(state.plan, b);
+    tau_a = log_tree_count(state.plan, proposal_.smallest_unit_of(state.plan, a));
+    tau_b = log_tree_count(state.plan, proposal_.smallest_unit_of(state.plan, b));
     log_ratio += (settings_.gamma - 1.0) * (tau_a + tau_b - log_tau_[a] - log_tau_[b]);
   }
   if (log_ratio >= 0.0 || std::log(uniform01(rng)) < log_ratio) {

@@ -24,6 +24,8 @@ class TreeProposal {
   [[nodiscard]] DistrictIndex first() const noexcept { return a_; }
   [[nodiscard]] DistrictIndex second() const noexcept { return b_; }
   [[nodiscard]] std::size_t region_size() const noexcept { return region_.size(); }
+  // The smallest unit of district d within the merged region (d must be one of its two labels).
+  [[nodiscard]] UnitIndex smallest_unit_of(const Plan& plan, DistrictIndex d) const noexcept;
 
  private:
   Region region_;
@@ -52,7 +54,10 @@ class MergeSplitKernel final : public Kernel {
   [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::merge_split; }
 
  private:
-  [[nodiscard]] double log_tree_count(const Plan& plan, DistrictIndex d);
+  // log tau of the district holding `smallest`, its smallest unit. Growing the region from a
+  // canonical unit keeps the floating-point result a function of the plan alone, so a chain
+  // restored from a snapshot recomputes bit-identical values.
+  [[nodiscard]] double log_tree_count(const Plan& plan, UnitIndex smallest);
 
   KernelSettings settings_;
   TreeProposal proposal_;
