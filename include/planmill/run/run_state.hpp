@@ -1,0 +1,102 @@
+#pragma once
+// The run folder and its committed state.
+//
+//   RUNDIR/job.toml            the job file text as given (written at the first start)
+//   RUNDIR/run-state.json      what has been committed: every chain's snapshot, record counts and
+//                              the plan files that hold its records. Replaced atomically at each
+//                              checkpoint; a reader or a resume trusts nothing that it does not list.
+//   RUNDIR/plans/seg-SSSSS-rank-RRR.h5
+//                              ensemble files (docs/format.md). Rank R writes one per checkpoint
+//                              interval S and closes it at the checkpoint, so a file once listed is
+//                              never written again; a killed rank can only lose its unlisted file.
+//   RUNDIR/manifest.json       written by `planmill merge` (docs/manifest.md)
+#include <cstdint>
+#include <filesystem>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "planmill/store/ensemble.hpp"
+
+namespace planmill {
+
+inline constexpr std::int64_t kRunStateFormatVersion = 1;
+
+struct RunLayout {
+  std::filesystem::path root;
+  [[nodiscard]] std::filesystem::path job_copy() const { return root / "job.toml"; }
+  [[nodiscard]] std::filesystem::path state_file() const { return root / "run-state.json"; }
+  [[nodiscard]] std::filesystem::path plans_dir() const { return root / "plans"; }
+  [[nodiscard]] std::filesystem::path manifest() const { return root / "manifest.json"; }
+  // Relative to root, as stored in the state.
+  [[nodiscard]] static std::string plan_file_name(std::uint64_t segment, int rank);
+  [[nodiscard]] std::filesystem::path resolve(const std::string& relative) const {
+    return root / relative;
+  }
+};
+
+// One span of a chain's records inside one plan file, in record order.
+struct ChainFileSpan {
+  std::string file;  // relative to the run folder
+  std::uint64_t records = 0;
+};
+
+struct ChainEntry {
+  std::uint64_t index = 0;
+  std::uint64_t steps = 0;    // steps taken so far
+  std::uint64_t records = 0;  // recorded plans so far (sum of the spans)
+  StoredCounters counters;
+  std::string snapshot;              // Chain::save() at the last checkpoint
+  std::string last_checkpoint;       // UTC, ISO 8601
+  std::vector<ChainFileSpan> spans;  // where its records are
+};
+
+struct PlanFileEntry {
+  std::string file;  // relative to the run folder
+  std::uint64_t segment = 0;
+  int rank = 0;
+  std::string host;
+};
+
+// One start or resume of the run.
+struct RunSession {
+  std::string started, ended;  // UTC, ISO 8601; ended empty while running or after a kill
+  int ranks = 1;
+  std::vector<std::string> hosts;  // per rank
+  std::string how_ended;           // "finished", "checkpointed on signal", "converged", ...
+};
+
+struct InputFileEntry {
+  std::string role;  // "job", "units", "adjacency", "start plan"
+  std::string path;  // as resolved when the run started
+  std::string sha256;
+};
+
+struct RunState {
+  std::int64_t format_version = kRunStateFormatVersion;
+  std::string run_id;
+  std::string planmill_version, git_commit;
+  std::string job_path;  // as given on the command line
+  std::string job_sha256;
+  std::vector<InputFileEntry> inputs;
+  std::uint64_t seed = 0;
+  std::uint64_t target_steps = 0;  // steps per chain the run aims at (burn-in included)
+  std::uint64_t burn_in = 0;
+  std::uint64_t record_every = 1;
+  std::vector<std::string> observable_names;
+  std::uint64_t checkpoints = 0;  // commits so far; the next plan files use segment = checkpoints
+  bool finished = false;
+  std::string stop_reason;  // why the last session stopped, once it has
+  std::vector<RunSession> sessions;
+  std::vector<ChainEntry> chains;  // ascending by index
+  std::vector<PlanFileEntry> files;
+};
+
+// Throws InputError naming the file (and the key) when it is missing or malformed.
+[[nodiscard]] RunState read_run_state(const RunLayout& layout);
+// Atomic replace (io/atomic_file.hpp).
+void write_run_state(const RunLayout& layout, const RunState& state);
+
+[[nodiscard]] std::string utc_now_iso8601();
+
+}  // namespace planmill

@@ -1,0 +1,139 @@
+#include "planmill/run/run_reader.hpp"
+
+#include <algorithm>
+#include <stdexcept>
+
+#include "planmill/base/error.hpp"
+#include "planmill/store/hdf5_handle.hpp"
+
+namespace planmill {
+
+RunReader::RunReader(const std::string& run_dir) : layout_{run_dir}, state_(read_run_state(layout_)) {
+  for (const auto& f : state_.files) {
+    std::unique_ptr<EnsembleReader> reader;
+    try {
+      reader = std::make_unique<EnsembleReader>(layout_.resolve(f.file).string());
+    } catch (const StoreError& e) {
+      unreadable_.emplace(f.file, e.what());  // reported by verify(); other files stay readable
+      files_.emplace(f.file, nullptr);
+      continue;
+    }
+    if (unit_count_ == 0) {
+      unit_count_ = reader->header().unit_count;
+      district_count_ = reader->header().district_count;
+    } else if (reader->header().unit_count != unit_count_ ||
+               reader->header().district_count != district_count_) {
+      throw InputError({layout_.resolve(f.file).string(), 0, ""},
+                       "has a different map or district count from the run's other plan files",
+                       "keep only the files that run-state.json lists");
+    }
+    files_.emplace(f.file, std::move(reader));
+  }
+  for (const auto& c : state_.chains) {
+    auto& spans = spans_[c.index];
+    std::uint64_t first = 0;
+    for (const auto& sp : c.spans) {
+      const auto it = files_.find(sp.file);
+      if (it == files_.end()) {
+        throw InputError({layout_.state_file().string(), 0, "chains"},
+                         "chain " + std::to_string(c.index) + " names plan file " + sp.file +
+                             " that the state does not list",
+                         "the run state is inconsistent; restore it from a backup");
+      }
+      spans.push_back({it->second.get(), sp.file, first, sp.records});
+      first += sp.records;
+    }
+  }
+}
+
+RunReader::~RunReader() = default;
+
+std::vector<std::uint64_t> RunReader::chains() const {
+  std::vector<std::uint64_t> out;
+  for (const auto& c : state_.chains) out.push_back(c.index);
+  return out;
+}
+
+const std::vector<RunReader::Span>& RunReader::spans_of(std::uint64_t chain) const {
+  const auto it = spans_.find(chain);
+  if (it == spans_.end()) {
+    throw std::out_of_range("the run has no chain " + std::to_string(chain));
+  }
+  return it->second;
+}
+
+const EnsembleReader& RunReader::reader_of(const Span& span) const {
+  if (span.reader == nullptr) {
+    throw StoreError(layout_.resolve(span.file).string(), "open", unreadable_.at(span.file));
+  }
+  return *span.reader;
+}
+
+std::uint64_t RunReader::record_count(std::uint64_t chain) const {
+  std::uint64_t n = 0;
+  for (const auto& s : spans_of(chain)) n += s.records;
+  return n;
+}
+
+std::vector<std::uint64_t> RunReader::record_steps(std::uint64_t chain) const {
+  std::vector<std::uint64_t> out;
+  for (const auto& s : spans_of(chain)) {
+    const auto steps = reader_of(s).record_steps(chain);
+    out.insert(out.end(), steps.begin(),
+               steps.begin() + static_cast<std::ptrdiff_t>(std::min<std::uint64_t>(s.records, steps.size())));
+  }
+  return out;
+}
+
+std::vector<DistrictIndex> RunReader::read_plan(std::uint64_t chain, std::uint64_t record) const {
+  for (const auto& s : spans_of(chain)) {
+    if (record < s.first + s.records) return reader_of(s).read_plan(chain, record - s.first);
+  }
+  throw std::out_of_range("chain " + std::to_string(chain) + " has " +
+                          std::to_string(record_count(chain)) + " records, not " +
+                          std::to_string(record + 1));
+}
+
+std::vector<double> RunReader::read_observables(std::uint64_t chain) const {
+  const std::size_t width = state_.observable_names.size();
+  std::vector<double> out;
+  for (const auto& s : spans_of(chain)) {
+    const auto rows = reader_of(s).read_observables(chain);
+    const std::size_t take = std::min<std::size_t>(rows.size(), s.records * width);
+    out.insert(out.end(), rows.begin(), rows.begin() + static_cast<std::ptrdiff_t>(take));
+  }
+  return out;
+}
+
+std::vector<ChainProblem> RunReader::verify() const {
+  std::vector<ChainProblem> problems;
+  for (const auto& c : state_.chains) {
+    for (const auto& s : spans_of(c.index)) {
+      if (s.reader == nullptr) {
+        problems.push_back({c.index, s.first, s.first + s.records - 1,
+                            s.file + ": cannot be opened: " + unreadable_.at(s.file)});
+        continue;
+      }
+      const auto in_file = s.reader->record_count(c.index);
+      if (in_file < s.records) {
+        problems.push_back({c.index, s.first + in_file, s.first + s.records - 1,
+                            "the plan file holds fewer records than the run state lists"});
+      }
+    }
+  }
+  for (const auto& [name, reader] : files_) {
+    if (reader == nullptr) continue;
+    for (auto p : reader->verify()) {
+      for (const auto& s : spans_of(p.chain_index)) {
+        if (s.reader != reader.get()) continue;
+        p.first_record += s.first;
+        p.last_record = p.last_record == UINT64_MAX ? s.first + s.records - 1 : p.last_record + s.first;
+      }
+      p.what = name + ": " + p.what;
+      problems.push_back(std::move(p));
+    }
+  }
+  return problems;
+}
+
+}  // namespace planmill

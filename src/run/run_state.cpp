@@ -1,0 +1,176 @@
+#include "planmill/run/run_state.hpp"
+
+#include <chrono>
+#include <cstdio>
+#include <ctime>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "planmill/base/error.hpp"
+#include "planmill/io/atomic_file.hpp"
+
+namespace planmill {
+namespace {
+
+using nlohmann::json;
+
+json counters_json(const StoredCounters& c) {
+  return {{"steps", c.steps},     {"accepted", c.accepted}, {"rejected", c.rejected},
+          {"no_cut", c.no_cut},   {"invalid", c.invalid}};
+}
+
+StoredCounters counters_from(const json& j) {
+  StoredCounters c;
+  c.steps = j.at("steps").get<std::uint64_t>();
+  c.accepted = j.at("accepted").get<std::uint64_t>();
+  c.rejected = j.at("rejected").get<std::uint64_t>();
+  c.no_cut = j.at("no_cut").get<std::uint64_t>();
+  c.invalid = j.at("invalid").get<std::uint64_t>();
+  return c;
+}
+
+json to_json(const RunState& s) {
+  json j;
+  j["format_version"] = s.format_version;
+  j["run_id"] = s.run_id;
+  j["planmill_version"] = s.planmill_version;
+  j["git_commit"] = s.git_commit;
+  j["job_path"] = s.job_path;
+  j["job_sha256"] = s.job_sha256;
+  j["inputs"] = json::array();
+  for (const auto& f : s.inputs) {
+    j["inputs"].push_back({{"role", f.role}, {"path", f.path}, {"sha256", f.sha256}});
+  }
+  j["seed"] = s.seed;
+  j["target_steps"] = s.target_steps;
+  j["burn_in"] = s.burn_in;
+  j["record_every"] = s.record_every;
+  j["observables"] = s.observable_names;
+  j["checkpoints"] = s.checkpoints;
+  j["finished"] = s.finished;
+  j["stop_reason"] = s.stop_reason;
+  j["sessions"] = json::array();
+  for (const auto& r : s.sessions) {
+    j["sessions"].push_back({{"started", r.started}, {"ended", r.ended}, {"ranks", r.ranks},
+                             {"hosts", r.hosts}, {"how_ended", r.how_ended}});
+  }
+  j["files"] = json::array();
+  for (const auto& f : s.files) {
+    j["files"].push_back(
+        {{"file", f.file}, {"segment", f.segment}, {"rank", f.rank}, {"host", f.host}});
+  }
+  j["chains"] = json::array();
+  for (const auto& c : s.chains) {
+    json spans = json::array();
+    for (const auto& sp : c.spans) spans.push_back({{"file", sp.file}, {"records", sp.records}});
+    j["chains"].push_back({{"index", c.index},
+                           {"steps", c.steps},
+                           {"records", c.records},
+                           {"counters", counters_json(c.counters)},
+                           {"last_checkpoint", c.last_checkpoint},
+                           {"spans", spans},
+                           {"snapshot", c.snapshot}});
+  }
+  return j;
+}
+
+RunState from_json(const json& j) {
+  RunState s;
+  s.format_version = j.at("format_version").get<std::int64_t>();
+  if (s.format_version != kRunStateFormatVersion) {
+    throw std::invalid_argument("format_version " + std::to_string(s.format_version) +
+                                " is not the one this planmill reads (" +
+                                std::to_string(kRunStateFormatVersion) + ")");
+  }
+  s.run_id = j.at("run_id").get<std::string>();
+  s.planmill_version = j.at("planmill_version").get<std::string>();
+  s.git_commit = j.at("git_commit").get<std::string>();
+  s.job_path = j.at("job_path").get<std::string>();
+  s.job_sha256 = j.at("job_sha256").get<std::string>();
+  for (const auto& f : j.at("inputs")) {
+    s.inputs.push_back({f.at("role").get<std::string>(), f.at("path").get<std::string>(),
+                        f.at("sha256").get<std::string>()});
+  }
+  s.seed = j.at("seed").get<std::uint64_t>();
+  s.target_steps = j.at("target_steps").get<std::uint64_t>();
+  s.burn_in = j.at("burn_in").get<std::uint64_t>();
+  s.record_every = j.at("record_every").get<std::uint64_t>();
+  s.observable_names = j.at("observables").get<std::vector<std::string>>();
+  s.checkpoints = j.at("checkpoints").get<std::uint64_t>();
+  s.finished = j.at("finished").get<bool>();
+  s.stop_reason = j.at("stop_reason").get<std::string>();
+  for (const auto& r : j.at("sessions")) {
+    s.sessions.push_back({r.at("started").get<std::string>(), r.at("ended").get<std::string>(),
+                          r.at("ranks").get<int>(), r.at("hosts").get<std::vector<std::string>>(),
+                          r.at("how_ended").get<std::string>()});
+  }
+  for (const auto& f : j.at("files")) {
+    s.files.push_back({f.at("file").get<std::string>(), f.at("segment").get<std::uint64_t>(),
+                       f.at("rank").get<int>(), f.at("host").get<std::string>()});
+  }
+  for (const auto& c : j.at("chains")) {
+    ChainEntry e;
+    e.index = c.at("index").get<std::uint64_t>();
+    e.steps = c.at("steps").get<std::uint64_t>();
+    e.records = c.at("records").get<std::uint64_t>();
+    e.counters = counters_from(c.at("counters"));
+    e.last_checkpoint = c.at("last_checkpoint").get<std::string>();
+    e.snapshot = c.at("snapshot").get<std::string>();
+    std::uint64_t total = 0;
+    for (const auto& sp : c.at("spans")) {
+      e.spans.push_back({sp.at("file").get<std::string>(), sp.at("records").get<std::uint64_t>()});
+      total += e.spans.back().records;
+    }
+    if (total != e.records) {
+      throw std::invalid_argument("chain " + std::to_string(e.index) + " lists " +
+                                  std::to_string(total) + " records in its files but claims " +
+                                  std::to_string(e.records));
+    }
+    s.chains.push_back(std::move(e));
+  }
+  return s;
+}
+
+}  // namespace
+
+std::string RunLayout::plan_file_name(std::uint64_t segment, int rank) {
+  char name[64];
+  std::snprintf(name, sizeof name, "plans/seg-%05llu-rank-%03d.h5",
+                static_cast<unsigned long long>(segment), rank);
+  return name;
+}
+
+RunState read_run_state(const RunLayout& layout) {
+  const std::string path = layout.state_file().string();
+  std::ifstream in(path, std::ios::binary);
+  if (!in) {
+    throw InputError({path, 0, ""}, "is missing, so this is not a run folder (or the run never "
+                     "reached its first checkpoint)", "give the folder that `planmill run` wrote");
+  }
+  std::stringstream text;
+  text << in.rdbuf();
+  try {
+    return from_json(json::parse(text.str()));
+  } catch (const json::exception& e) {
+    throw InputError({path, 0, ""}, std::string("is not a valid run state: ") + e.what(),
+                     "restore it from a backup; planmill replaces it only atomically");
+  } catch (const std::invalid_argument& e) {
+    throw InputError({path, 0, ""}, e.what(), "use the planmill version that wrote the run");
+  }
+}
+
+void write_run_state(const RunLayout& layout, const RunState& state) {
+  write_file_atomically(layout.state_file().string(), to_json(state).dump(1) + "\n");
+}
+
+std::string utc_now_iso8601() {
+  const auto now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  std::tm tm{};
+  gmtime_r(&now, &tm);
+  char text[32];
+  std::strftime(text, sizeof text, "%Y-%m-%dT%H:%M:%SZ", &tm);
+  return text;
+}
+
+}  // namespace planmill
