@@ -29,6 +29,7 @@ class FlipKernel final : public Kernel {
   void reset(const ChainState& state) override { boundary_.reset(state.plan); }
   StepResult step(ChainState& state, Rng& rng) override;
   [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::flip; }
+  void set_beta(double beta) noexcept override { settings_.beta = beta; }
 
  private:
   // Distinct districts other than `own` among u's neighbours, into neighbours_.

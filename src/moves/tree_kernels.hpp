@@ -41,6 +41,7 @@ class RecombinationKernel final : public Kernel {
   void reset(const ChainState&) override {}
   StepResult step(ChainState& state, Rng& rng) override;
   [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::recombination; }
+  void set_beta(double) noexcept override {}
 
  private:
   TreeProposal proposal_;
@@ -52,6 +53,7 @@ class MergeSplitKernel final : public Kernel {
   void reset(const ChainState& state) override;
   StepResult step(ChainState& state, Rng& rng) override;
   [[nodiscard]] KernelKind kind() const noexcept override { return KernelKind::merge_split; }
+  void set_beta(double beta) noexcept override { settings_.beta = beta; }
 
  private:
   // log tau of the district holding `smallest`, its smallest unit. Growing the region from a

@@ -1,6 +1,7 @@
 #pragma once
 // One chain: its state, its own random stream keyed by (run seed, chain index), the kernel, and
-// counts of every step's outcome. save()/restore() round-trip the whole chain exactly.
+// counts of every step's outcome. save()/restore() round-trip the whole chain exactly, including
+// its current beta (which parallel tempering changes between steps).
 #include <array>
 #include <memory>
 #include <string>
@@ -34,14 +35,21 @@ class Chain {
   [[nodiscard]] const ChainState& state() const noexcept { return state_; }
   [[nodiscard]] const ChainCounters& counters() const noexcept { return counters_; }
   [[nodiscard]] std::uint64_t chain_index() const noexcept { return chain_index_; }
+  // The inverse temperature the kernel uses now (ChainSetup::kernel.beta until set_beta).
+  [[nodiscard]] double beta() const noexcept { return beta_; }
+  // For tempering: takes effect from the next step. Allocates nothing.
+  void set_beta(double beta) noexcept;
 
-  // Text snapshot of the RNG, counters and plan; restore() accepts only a snapshot of a chain with
-  // the same map and district count, and throws std::invalid_argument otherwise.
+  // Text snapshot of the RNG, counters, beta and plan; restore() accepts only a snapshot of a chain
+  // with the same map and district count, and throws std::invalid_argument otherwise. Snapshots of
+  // format 1 carry no beta: restoring one sets beta back to the setup's (what they always meant).
   [[nodiscard]] std::string save() const;
   void restore(std::string_view snapshot);
 
  private:
   std::uint64_t chain_index_;
+  double setup_beta_;
+  double beta_;
   ChainState state_;
   std::unique_ptr<Kernel> kernel_;
   Rng rng_;

@@ -61,6 +61,9 @@ class Kernel {
   virtual void reset(const ChainState& state) = 0;
   virtual StepResult step(ChainState& state, Rng& rng) = 0;
   [[nodiscard]] virtual KernelKind kind() const noexcept = 0;
+  // Changes the inverse temperature between steps (parallel tempering moves a replica between
+  // rungs). Allocates nothing; recombination ignores beta.
+  virtual void set_beta(double beta) noexcept = 0;
 };
 
 [[nodiscard]] std::unique_ptr<Kernel> make_kernel(const KernelSettings& settings, const UnitGraph& graph,
