@@ -2,6 +2,7 @@
 // arrangement of posterior 1.4.0's .ess(), so that the truncation and the cap agree with it.
 #include <algorithm>
 #include <array>
+#include <bit>
 #include <cfloat>
 #include <cmath>
 #include <cstddef>
@@ -14,48 +15,54 @@
 namespace planmill::diagnose::detail {
 namespace {
 
-// FFT tables are reused while the padded length stays the same (one per thread).
+// FFT tables are reused while the padded length stays the same (one per length and thread).
 const Fft& fft_of_size(std::size_t p) {
-  thread_local std::unique_ptr<Fft> cached;
-  if (!cached || cached->size() != p) cached = std::make_unique<Fft>(p);
-  return *cached;
+  thread_local std::vector<std::unique_ptr<Fft>> cached;
+  const auto log2 = static_cast<std::size_t>(std::countr_zero(p));
+  if (cached.size() <= log2) cached.resize(log2 + 1);
+  if (!cached[log2]) cached[log2] = std::make_unique<Fft>(p);
+  return *cached[log2];
 }
 
 // Mean over chains of the autocovariance at lag t, on demand. Geyer's sequence usually stops
 // after a few lags, so the first lags are direct sums (cost n per lag and chain); a long
-// sequence (strong autocorrelation) switches to the FFT, which gives all lags at once. Both compute the same numbers:
-// acov_m(t) = (1/n) sum_{i < n-t} y_i y_{i+t}, y the chain minus its mean.
+// sequence (strong autocorrelation) switches to the FFT, which gives many lags at once. Both
+// compute the same numbers: acov_m(t) = (1/n) sum_{i < n-t} y_i y_{i+t}, y the chain minus its
+// mean.
 class MeanAutocovariance {
  public:
   explicit MeanAutocovariance(const Matrix& x)
-      : n_(x.draws), m_(x.chains), centred_(scratch()), mean_(scratch_mean()), known_(0) {
+      : n_(x.draws), m_(x.chains), centred_(scratch(0)), mean_(scratch(1)),
+        chain_mean_(scratch(2)), known_(0) {
     centred_.assign(x.values.begin(), x.values.end());
     mean_.assign(n_, 0.0);
+    chain_mean_.assign(m_, 0.0);
     for (std::size_t c = 0; c < m_; ++c) {
       double* y = centred_.data() + c * n_;
       const bool constant = std::all_of(y, y + n_, [&](double v) { return v == y[0]; });
-      long double sum = 0.0L;
-      for (std::size_t i = 0; i < n_; ++i) sum += y[i];
-      const auto mu = static_cast<double>(sum / static_cast<long double>(n_));
+      const auto mu = static_cast<double>(accurate_sum(y, n_) / static_cast<long double>(n_));
+      chain_mean_[c] = mu;
       // posterior gives a constant chain an autocovariance of exactly zero.
       for (std::size_t i = 0; i < n_; ++i) y[i] = constant ? 0.0 : y[i] - mu;
     }
   }
 
+  [[nodiscard]] const std::vector<double>& chain_means() const { return chain_mean_; }
+
   double at(std::size_t t) {
     while (known_ <= t) {
       if (known_ >= kDirectLags || decays_slowly()) {
-        all_by_fft();
-        break;
+        by_fft(t >= short_fft_lags() ? n_ : 0);
+      } else {
+        known_ += direct_block(known_);
       }
-      known_ += direct_block(known_);
     }
     return mean_[t];
   }
 
   // All lags by FFT now, for a sequence known to be long (the direct sums would be wasted).
   void compute_all() {
-    if (known_ < n_) all_by_fft();
+    if (known_ < n_) by_fft(n_);
   }
 
  private:
@@ -70,7 +77,16 @@ class MeanAutocovariance {
     return known_ >= kBlock && mean_[known_ - 1] > 0.3 * mean_[0];
   }
 
-  // Lags first .. first + kBlock - 1 in one pass; independent sums keep the pipeline full.
+  // Padding to p points makes the circular correlation the linear one for lags t <= p - n.
+  // The short transform pads only by n / 8 (for n = 50,000: 65,536 points, lags up to 15,536);
+  // a sequence that runs past that pays for the full one (p >= 2n, every lag).
+  [[nodiscard]] std::size_t short_fft_size() const { return next_power_of_two(n_ + n_ / 8); }
+  [[nodiscard]] std::size_t short_fft_lags() const {
+    return std::min(n_, short_fft_size() - n_ + 1);
+  }
+
+  // Lags first .. first + kBlock - 1 in one pass; two draws per step and eight independent
+  // sums each keep the pipeline full.
   std::size_t direct_block(std::size_t first) {
     const std::size_t count = std::min(kBlock, n_ - first);
     std::array<double, kBlock> total{};
@@ -79,9 +95,29 @@ class MeanAutocovariance {
       std::array<double, kBlock> sum{};
       std::size_t i = 0;
       if (count == kBlock) {
-        for (; i + first + kBlock <= n_; ++i) {
-          for (std::size_t k = 0; k < kBlock; ++k) sum[k] += y[i] * y[i + first + k];
+        const double* z = y + first;
+        double a0 = 0, a1 = 0, a2 = 0, a3 = 0, a4 = 0, a5 = 0, a6 = 0, a7 = 0;
+        double b0 = 0, b1 = 0, b2 = 0, b3 = 0, b4 = 0, b5 = 0, b6 = 0, b7 = 0;
+        for (; i + 1 + first + kBlock <= n_; i += 2) {
+          const double u = y[i], v = y[i + 1];
+          a0 += u * z[i];
+          a1 += u * z[i + 1];
+          a2 += u * z[i + 2];
+          a3 += u * z[i + 3];
+          a4 += u * z[i + 4];
+          a5 += u * z[i + 5];
+          a6 += u * z[i + 6];
+          a7 += u * z[i + 7];
+          b0 += v * z[i + 1];
+          b1 += v * z[i + 2];
+          b2 += v * z[i + 3];
+          b3 += v * z[i + 4];
+          b4 += v * z[i + 5];
+          b5 += v * z[i + 6];
+          b6 += v * z[i + 7];
+          b7 += v * z[i + 8];
         }
+        sum = {a0 + b0, a1 + b1, a2 + b2, a3 + b3, a4 + b4, a5 + b5, a6 + b6, a7 + b7};
       }
       for (std::size_t k = 0; k < count; ++k) {
         for (std::size_t j = i; j + first + k < n_; ++j) sum[k] += y[j] * y[j + first + k];
@@ -96,8 +132,11 @@ class MeanAutocovariance {
   // B_k = (Z_k - conj Z_{-k})/2i. The inverse transform is linear, so the chains' power spectra
   // |A|^2, each scaled so that lag 0 becomes that chain's acov(0) (as posterior scales by
   // acov(0) / raw(0), raw(0) = sum_k |A_k|^2 by Parseval), are summed first and inverted once.
-  void all_by_fft() {
-    const std::size_t p = next_power_of_two(2 * n_);
+  // The spectra stay in the FFT's bit-reversed order throughout (fft.hpp, mirror_bin).
+  // lags_needed == n_ forces the full padding; otherwise the short one.
+  void by_fft(std::size_t lags_needed) {
+    const bool full = lags_needed >= n_ || short_fft_lags() >= n_;
+    const std::size_t p = full ? next_power_of_two(2 * n_) : short_fft_size();
     const Fft& fft = fft_of_size(p);
     thread_local std::vector<double> re, im, spectrum;  // reused: no allocation after warm-up
     re.resize(p);
@@ -113,28 +152,42 @@ class MeanAutocovariance {
         std::fill(im.begin(), im.end(), 0.0);
       }
       fft.forward(re, im);
-      double total_a = 0.0, total_b = 0.0;
-      for (std::size_t k = 0; k <= p / 2; ++k) {
-        const std::size_t j = (p - k) % p;
-        const double ar = 0.5 * (re[k] + re[j]), ai = 0.5 * (im[k] - im[j]);
-        const double br = 0.5 * (im[k] + im[j]), bi = 0.5 * (re[j] - re[k]);
-        const double power_a = ar * ar + ai * ai, power_b = br * br + bi * bi;
-        const double copies = (k == j) ? 1.0 : 2.0;  // bins k and p - k carry the same power
-        total_a += copies * power_a;
-        total_b += copies * power_b;
-        re[k] = power_a;
-        im[k] = power_b;
+      // Slots 0 and 1 hold bins 0 and p / 2, each its own mirror.
+      double total_a = re[0] * re[0] + re[1] * re[1], total_b = im[0] * im[0] + im[1] * im[1];
+      re[0] *= re[0];
+      re[1] *= re[1];
+      im[0] *= im[0];
+      im[1] *= im[1];
+      for (std::size_t top = 2; top < p; top *= 2) {
+        for (std::size_t i = top; i < top + top / 2; ++i) {
+          const std::size_t j = mirror_bin(i, top);
+          const double ar = 0.5 * (re[i] + re[j]), ai = 0.5 * (im[i] - im[j]);
+          const double br = 0.5 * (im[i] + im[j]), bi = 0.5 * (re[j] - re[i]);
+          const double power_a = ar * ar + ai * ai, power_b = br * br + bi * bi;
+          total_a += 2.0 * power_a;  // bins k and p - k carry the same power
+          total_b += 2.0 * power_b;
+          re[i] = power_a;
+          im[i] = power_b;
+        }
       }
       const double scale_a = lag0_scale(c, total_a);
       const double scale_b = c + 1 < m_ ? lag0_scale(c + 1, total_b) : 0.0;
-      for (std::size_t k = 0; k <= p / 2; ++k) spectrum[k] += scale_a * re[k] + scale_b * im[k];
+      spectrum[0] += scale_a * re[0] + scale_b * im[0];
+      spectrum[1] += scale_a * re[1] + scale_b * im[1];
+      for (std::size_t top = 2; top < p; top *= 2) {
+        for (std::size_t i = top; i < top + top / 2; ++i) {
+          spectrum[i] += scale_a * re[i] + scale_b * im[i];
+        }
+      }
     }
-    for (std::size_t k = 1; k < p / 2; ++k) spectrum[p - k] = spectrum[k];
+    for (std::size_t top = 2; top < p; top *= 2) {
+      for (std::size_t i = top; i < top + top / 2; ++i) spectrum[mirror_bin(i, top)] = spectrum[i];
+    }
     std::copy(spectrum.begin(), spectrum.end(), re.begin());
     std::fill(im.begin(), im.end(), 0.0);
     fft.inverse(re, im);
-    for (std::size_t t = 0; t < n_; ++t) mean_[t] = re[t] / static_cast<double>(m_);
-    known_ = n_;
+    known_ = full ? n_ : short_fft_lags();
+    for (std::size_t t = 0; t < known_; ++t) mean_[t] = re[t] / static_cast<double>(m_);
   }
 
   // acov(0) / raw(0) for chain c, acov(0) a direct sum of squares; 0 for a constant chain.
@@ -148,18 +201,15 @@ class MeanAutocovariance {
 
   // Per-thread buffers, reused by every ESS so that no call maps fresh pages (one object alive
   // per thread at a time).
-  static std::vector<double>& scratch() {
-    thread_local std::vector<double> v;
-    return v;
-  }
-  static std::vector<double>& scratch_mean() {
-    thread_local std::vector<double> v;
-    return v;
+  static std::vector<double>& scratch(std::size_t which) {
+    thread_local std::array<std::vector<double>, 3> v;
+    return v[which];
   }
 
   std::size_t n_, m_;
   std::vector<double>& centred_;
   std::vector<double>& mean_;
+  std::vector<double>& chain_mean_;
   std::size_t known_;
 };
 
@@ -181,12 +231,7 @@ Estimate ess_of(const Matrix& x) {
   const double mean_var = acov.at(0) * static_cast<double>(n) / static_cast<double>(n - 1);
   double var_plus = mean_var * static_cast<double>(n - 1) / static_cast<double>(n);
   if (m > 1) {
-    std::vector<double> chain_mean(m);
-    for (std::size_t c = 0; c < m; ++c) {
-      long double sum = 0.0L;
-      for (double v : x.view().chain(c)) sum += v;
-      chain_mean[c] = static_cast<double>(sum / static_cast<long double>(n));
-    }
+    const std::vector<double>& chain_mean = acov.chain_means();
     long double mu = 0.0L, between = 0.0L;
     for (double v : chain_mean) mu += v;
     mu /= static_cast<long double>(m);
@@ -200,7 +245,8 @@ Estimate ess_of(const Matrix& x) {
   auto rho_at = [&](std::size_t t) { return 1.0 - (mean_var - acov.at(t)) / var_plus; };
 
   // Geyer's initial positive sequence: sum pairs rho_{2k} + rho_{2k+1} while positive, eq. (11).
-  std::vector<double> rho(n, 0.0);
+  thread_local std::vector<double> rho;  // reused per thread
+  rho.assign(n, 0.0);
   double rho_even = 1.0, rho_odd = rho_at(1);
   rho[0] = rho_even;
   rho[1] = rho_odd;

@@ -1,5 +1,6 @@
 #include "planmill/diagnose/quantity_diagnostics.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -27,24 +28,36 @@ QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   q.mean = pooled_mean(x.values);
   q.sd = pooled_sd(x.values);
 
-  const SortedDraws sorted = sort_draws(x);  // one sort serves every rank-based step
-  const Matrix bulk = bulk_scores(sorted);  // shared by bulk R-hat and bulk ESS
-  q.rhat_bulk = note(rhat_of(bulk));
-  q.rhat_folded = note(rhat_of(folded_scores(sorted)));
+  // Matrices kept per thread and refilled for each quantity: no fresh pages per call.
+  struct Workspace {
+    SortedDraws sorted;
+    Matrix split, scores, indicator;
+  };
+  thread_local Workspace w;
+  sort_draws(x, w.sorted);  // one sort serves every rank-based step
+  split_chains(x, w.split);
+
+  bulk_scores(w.sorted, w.scores);  // shared by bulk R-hat and bulk ESS
+  const Estimate rhat_bulk = rhat_of(w.scores), ess_bulk = ess_of(w.scores);
+  folded_scores(w.sorted, w.scores);
+  q.rhat_bulk = note(rhat_bulk);
+  q.rhat_folded = note(rhat_of(w.scores));
   q.rhat = std::isnan(q.rhat_bulk) || std::isnan(q.rhat_folded)
                ? kNaN
                : std::max(q.rhat_bulk, q.rhat_folded);
-  q.ess_bulk = note(ess_of(bulk));
+  q.ess_bulk = note(ess_bulk);
 
-  const Estimate ess_q05 = ess_of(indicator_at_quantile(x, sorted, 0.05));
-  const Estimate ess_q95 = ess_of(indicator_at_quantile(x, sorted, 0.95));
+  indicator_at_quantile(w.split, w.sorted, 0.05, w.indicator);
+  const Estimate ess_q05 = ess_of(w.indicator);
+  indicator_at_quantile(w.split, w.sorted, 0.95, w.indicator);
+  const Estimate ess_q95 = ess_of(w.indicator);
   q.ess_tail = note(!ess_q05.ok() ? ess_q05 : !ess_q95.ok() ? ess_q95
                     : ess_q05.value <= ess_q95.value       ? ess_q05
                                                            : ess_q95);
-  q.mcse_q05 = note(mcse_quantile_from(sorted, ess_q05, 0.05));
-  q.mcse_q95 = note(mcse_quantile_from(sorted, ess_q95, 0.95));
+  q.mcse_q05 = note(mcse_quantile_from(w.sorted, ess_q05, 0.05));
+  q.mcse_q95 = note(mcse_quantile_from(w.sorted, ess_q95, 0.95));
 
-  const Estimate ess_raw = ess_of(split_chains(x));
+  const Estimate ess_raw = ess_of(w.split);
   q.mcse_mean = note(ess_raw.ok() ? Estimate{q.sd / std::sqrt(ess_raw.value), {}} : ess_raw);
   return q;
 }

@@ -40,38 +40,39 @@ std::uint64_t sort_key(double x) {
   return (bits >> 63) != 0U ? ~bits : bits | (std::uint64_t{1} << 63);
 }
 
-// Ascending order of v by LSD radix sort on 11-bit digits, skipping digits all keys share.
-// The buffers are kept per thread (valid until the next call) to spare fresh pages per quantity.
-std::span<const std::uint32_t> ascending_order(std::span<const double> v) {
-  const std::size_t n = v.size();
-  thread_local std::vector<std::uint64_t> key, key2;
-  thread_local std::vector<std::uint32_t> idx, idx2;
-  key.resize(n);
-  key2.resize(n);
-  idx.resize(n);
-  idx2.resize(n);
-  for (std::size_t i = 0; i < n; ++i) {
-    key[i] = sort_key(v[i]);
-    idx[i] = static_cast<std::uint32_t>(i);
-  }
-  constexpr unsigned kBits = 11;
+double value_of_key(std::uint64_t key) {
+  return std::bit_cast<double>((key >> 63) != 0U ? key & ~(std::uint64_t{1} << 63) : ~key);
+}
+
+// Sorts key ascending, carrying payload along: LSD radix sort on 11-bit digits, all six digit
+// histograms counted in one pass, digits that all keys share skipped. key2 and payload2 are
+// scratch of the same size.
+void radix_sort(std::vector<std::uint64_t>& key, std::vector<std::uint32_t>& payload,
+                std::vector<std::uint64_t>& key2, std::vector<std::uint32_t>& payload2) {
+  constexpr unsigned kBits = 11, kDigits = 6;  // 6 x 11 >= 64
   constexpr std::size_t kBuckets = std::size_t{1} << kBits;
-  std::vector<std::size_t> count(kBuckets);
-  for (unsigned shift = 0; shift < 64; shift += kBits) {
-    std::fill(count.begin(), count.end(), 0);
-    for (std::size_t i = 0; i < n; ++i) ++count[(key[i] >> shift) & (kBuckets - 1)];
-    if (n == 0 || count[(key[0] >> shift) & (kBuckets - 1)] == n) continue;
-    std::size_t offset = 0;
-    for (auto& c : count) offset += std::exchange(c, offset);
+  const std::size_t n = key.size();
+  if (n == 0) return;
+  thread_local std::vector<std::uint32_t> count(kDigits * kBuckets);  // n < 2^32
+  std::fill(count.begin(), count.end(), 0U);
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::uint64_t k = key[i];
+    for (unsigned d = 0; d < kDigits; ++d) ++count[d * kBuckets + ((k >> (d * kBits)) & (kBuckets - 1))];
+  }
+  for (unsigned d = 0; d < kDigits; ++d) {
+    const unsigned shift = d * kBits;
+    std::uint32_t* c = count.data() + d * kBuckets;
+    if (c[(key[0] >> shift) & (kBuckets - 1)] == n) continue;
+    std::uint32_t offset = 0;
+    for (std::size_t b = 0; b < kBuckets; ++b) offset += std::exchange(c[b], offset);
     for (std::size_t i = 0; i < n; ++i) {
-      const std::size_t slot = count[(key[i] >> shift) & (kBuckets - 1)]++;
+      const std::uint32_t slot = c[(key[i] >> shift) & (kBuckets - 1)]++;
       key2[slot] = key[i];
-      idx2[slot] = idx[i];
+      payload2[slot] = payload[i];
     }
     key.swap(key2);
-    idx.swap(idx2);
+    payload.swap(payload2);
   }
-  return idx;
 }
 
 // The normal score of a whole rank r depends only on r and S: a table per S, filled on first use
@@ -97,9 +98,11 @@ class ScoreTable {
 };
 
 // Normal scores of values given in ascending order; ties share their average rank.
-Matrix scores_of_ascending(std::span<const double> ascending, std::span<const std::uint32_t> pos,
-                           std::size_t draws, std::size_t chains) {
-  Matrix z{std::vector<double>(draws * chains), draws, chains};
+void scores_of_ascending(std::span<const double> ascending, std::span<const std::uint32_t> pos,
+                         std::size_t draws, std::size_t chains, Matrix& z) {
+  z.values.resize(draws * chains);
+  z.draws = draws;
+  z.chains = chains;
   const std::size_t s = ascending.size();
   const double denominator = static_cast<double>(s) - 2.0 * 0.375 + 1.0;  // S + 1/4
   thread_local ScoreTable table;
@@ -117,17 +120,30 @@ Matrix scores_of_ascending(std::span<const double> ascending, std::span<const st
     for (std::size_t k = i; k <= j; ++k) z.values[pos[k]] = score;
     i = j + 1;
   }
-  return z;
+}
+
+// sum (v_i - mu)^2 in long double, four partial sums.
+long double squares_about(std::span<const double> v, long double mu) {
+  long double t[4] = {0.0L, 0.0L, 0.0L, 0.0L};
+  std::size_t i = 0;
+  for (; i + 4 <= v.size(); i += 4) {
+    for (std::size_t k = 0; k < 4; ++k) t[k] += (v[i + k] - mu) * (v[i + k] - mu);
+  }
+  for (; i < v.size(); ++i) t[0] += (v[i] - mu) * (v[i] - mu);
+  return (t[0] + t[1]) + (t[2] + t[3]);
 }
 
 // R's mean(): long double sum, then one refinement pass.
 long double r_mean(std::span<const double> v) {
-  long double s = 0.0L;
-  for (double x : v) s += x;
-  s /= static_cast<long double>(v.size());
-  long double t = 0.0L;
-  for (double x : v) t += x - s;
-  return s + t / static_cast<long double>(v.size());
+  const auto n = static_cast<long double>(v.size());
+  const long double s = accurate_sum(v.data(), v.size()) / n;
+  long double t[4] = {0.0L, 0.0L, 0.0L, 0.0L};
+  std::size_t i = 0;
+  for (; i + 4 <= v.size(); i += 4) {
+    for (std::size_t k = 0; k < 4; ++k) t[k] += v[i + k] - s;
+  }
+  for (; i < v.size(); ++i) t[0] += v[i] - s;
+  return s + ((t[0] + t[1]) + (t[2] + t[3])) / n;
 }
 
 }  // namespace
@@ -146,57 +162,102 @@ std::string_view unusable_reason(DrawMatrix x) {
   return {};
 }
 
-std::size_t split_position(std::size_t d, std::size_t c, std::size_t draws) {
-  const std::size_t half = draws / 2;
-  if (d < half) return (2 * c) * half + d;
-  if (d >= draws - half) return (2 * c + 1) * half + (d - (draws - half));
-  return kDropped;
+long double accurate_sum(const double* v, std::size_t n) {
+  long double s0 = 0.0L, s1 = 0.0L, s2 = 0.0L, s3 = 0.0L;
+  std::size_t i = 0;
+  for (; i + 4 <= n; i += 4) {
+    s0 += v[i];
+    s1 += v[i + 1];
+    s2 += v[i + 2];
+    s3 += v[i + 3];
+  }
+  for (; i < n; ++i) s0 += v[i];
+  return (s0 + s1) + (s2 + s3);
+}
+
+void split_chains(DrawMatrix x, Matrix& out) {
+  const std::size_t half = x.draws / 2;
+  out.values.resize(2 * half * x.chains);
+  out.draws = half;
+  out.chains = 2 * x.chains;
+  for (std::size_t c = 0; c < x.chains; ++c) {
+    const auto chain = x.chain(c);
+    std::copy_n(chain.begin(), half, out.values.begin() + static_cast<std::ptrdiff_t>(2 * c * half));
+    std::copy_n(chain.end() - static_cast<std::ptrdiff_t>(half), half,
+                out.values.begin() + static_cast<std::ptrdiff_t>((2 * c + 1) * half));
+  }
 }
 
 Matrix split_chains(DrawMatrix x) {
-  const std::size_t half = x.draws / 2;
-  Matrix out{std::vector<double>(2 * half * x.chains), half, 2 * x.chains};
+  Matrix out;
+  split_chains(x, out);
+  return out;
+}
+
+void sort_draws(DrawMatrix x, SortedDraws& s) {
+  const std::size_t n = x.values.size(), half = x.draws / 2;
+  s.split_draws = half;
+  s.split_chains = 2 * x.chains;
+  // Keys carry the draw's position in split_chains(x) (kDropped for a dropped middle draw), so
+  // the sorted keys give values and positions without looking the draws up again.
+  constexpr std::uint32_t kDropped = 0xFFFFFFFFU;
+  thread_local std::vector<std::uint64_t> key, key2;
+  thread_local std::vector<std::uint32_t> pos, pos2;
+  key.resize(n);
+  key2.resize(n);
+  pos.resize(n);
+  pos2.resize(n);
+  for (std::size_t i = 0; i < n; ++i) key[i] = sort_key(x.values[i]);
   for (std::size_t c = 0; c < x.chains; ++c) {
-    for (std::size_t d = 0; d < x.draws; ++d) {
-      const std::size_t p = split_position(d, c, x.draws);
-      if (p != kDropped) out.values[p] = x.at(d, c);
+    std::uint32_t* p = pos.data() + c * x.draws;
+    const auto first = static_cast<std::uint32_t>(2 * c * half);
+    const auto second = static_cast<std::uint32_t>((2 * c + 1) * half);
+    for (std::size_t d = 0; d < half; ++d) p[d] = first + static_cast<std::uint32_t>(d);
+    if (x.draws % 2 == 1) p[half] = kDropped;
+    for (std::size_t d = 0; d < half; ++d) {
+      p[x.draws - half + d] = second + static_cast<std::uint32_t>(d);
     }
   }
-  return out;
+  radix_sort(key, pos, key2, pos2);
+  s.values.resize(n);
+  for (std::size_t i = 0; i < n; ++i) s.values[i] = value_of_key(key[i]);
+  s.split_values.resize(half * s.split_chains);
+  s.split_pos.resize(half * s.split_chains);
+  for (std::size_t i = 0, k = 0; i < n; ++i) {
+    if (pos[i] == kDropped) continue;
+    s.split_values[k] = s.values[i];
+    s.split_pos[k] = pos[i];
+    ++k;
+  }
 }
 
 SortedDraws sort_draws(DrawMatrix x) {
   SortedDraws s;
-  s.split_draws = x.draws / 2;
-  s.split_chains = 2 * x.chains;
-  const auto order = ascending_order(x.values);
-  s.values.resize(order.size());
-  s.split_values.reserve(s.split_draws * s.split_chains);
-  s.split_pos.reserve(s.split_draws * s.split_chains);
-  for (std::size_t i = 0; i < order.size(); ++i) {
-    const double v = x.values[order[i]];
-    s.values[i] = v;
-    const std::size_t p = split_position(order[i] % x.draws, order[i] / x.draws, x.draws);
-    if (p == kDropped) continue;
-    s.split_values.push_back(v);
-    s.split_pos.push_back(static_cast<std::uint32_t>(p));
-  }
+  sort_draws(x, s);
   return s;
 }
 
-Matrix bulk_scores(const SortedDraws& sorted) {
-  return scores_of_ascending(sorted.split_values, sorted.split_pos, sorted.split_draws,
-                             sorted.split_chains);
+void bulk_scores(const SortedDraws& sorted, Matrix& out) {
+  scores_of_ascending(sorted.split_values, sorted.split_pos, sorted.split_draws,
+                      sorted.split_chains, out);
 }
 
-Matrix folded_scores(const SortedDraws& sorted) {
+Matrix bulk_scores(const SortedDraws& sorted) {
+  Matrix out;
+  bulk_scores(sorted, out);
+  return out;
+}
+
+void folded_scores(const SortedDraws& sorted, Matrix& out) {
   // |x - m| falls to the left of the median and rises to its right, so merging the two sides
   // outward from m sorts the folded draws without a second sort.
   const double m = median(sorted.values);
   const auto& v = sorted.split_values;
   const std::size_t s = v.size();
-  std::vector<double> folded(s);
-  std::vector<std::uint32_t> pos(s);
+  thread_local std::vector<double> folded;
+  thread_local std::vector<std::uint32_t> pos;
+  folded.resize(s);
+  pos.resize(s);
   std::size_t right = static_cast<std::size_t>(std::lower_bound(v.begin(), v.end(), m) - v.begin());
   std::size_t left = right;  // next on the left is left - 1
   for (std::size_t k = 0; k < s; ++k) {
@@ -206,21 +267,29 @@ Matrix folded_scores(const SortedDraws& sorted) {
     folded[k] = std::abs(v[i] - m);
     pos[k] = sorted.split_pos[i];
   }
-  return scores_of_ascending(folded, pos, sorted.split_draws, sorted.split_chains);
+  scores_of_ascending(folded, pos, sorted.split_draws, sorted.split_chains, out);
 }
 
-Matrix indicator_at_quantile(DrawMatrix x, const SortedDraws& sorted, double prob) {
+Matrix folded_scores(const SortedDraws& sorted) {
+  Matrix out;
+  folded_scores(sorted, out);
+  return out;
+}
+
+void indicator_at_quantile(const Matrix& split, const SortedDraws& sorted, double prob,
+                           Matrix& out) {
   const std::size_t n = sorted.values.size();
   if (prob == 1.0) prob = (static_cast<double>(n) - 0.5) / static_cast<double>(n);  // posterior
   const double q = quantile_type7(sorted.values, prob);
-  Matrix out{std::vector<double>(sorted.split_draws * sorted.split_chains), sorted.split_draws,
-             sorted.split_chains};
-  for (std::size_t c = 0; c < x.chains; ++c) {
-    for (std::size_t d = 0; d < x.draws; ++d) {
-      const std::size_t p = split_position(d, c, x.draws);
-      if (p != kDropped) out.values[p] = x.at(d, c) <= q ? 1.0 : 0.0;
-    }
-  }
+  out.values.resize(split.values.size());
+  out.draws = split.draws;
+  out.chains = split.chains;
+  for (std::size_t i = 0; i < split.values.size(); ++i) out.values[i] = split.values[i] <= q;
+}
+
+Matrix indicator_at_quantile(DrawMatrix x, const SortedDraws& sorted, double prob) {
+  Matrix out;
+  indicator_at_quantile(split_chains(x), sorted, prob, out);
   return out;
 }
 
@@ -251,12 +320,9 @@ Estimate rhat_of(const Matrix& x) {
   std::vector<double> chain_mean(m), chain_var(m);
   for (std::size_t c = 0; c < m; ++c) {
     const auto chain = x.view().chain(c);
-    long double sum = 0.0L;
-    for (double v : chain) sum += v;
-    chain_mean[c] = static_cast<double>(sum / static_cast<long double>(n));
-    long double squares = 0.0L;
-    for (double v : chain) squares += (v - chain_mean[c]) * (v - chain_mean[c]);
-    chain_var[c] = static_cast<double>(squares / static_cast<long double>(n - 1));  // s_m^2, eq. (2)
+    chain_mean[c] = static_cast<double>(accurate_sum(chain.data(), n) / static_cast<long double>(n));
+    chain_var[c] = static_cast<double>(squares_about(chain, chain_mean[c]) /
+                                       static_cast<long double>(n - 1));  // s_m^2, eq. (2)
   }
   const double grand = static_cast<double>(r_mean(chain_mean));
   long double between = 0.0L;
@@ -291,9 +357,7 @@ Estimate mcse_quantile_from(const SortedDraws& sorted, Estimate ess, double prob
 double pooled_mean(std::span<const double> v) { return static_cast<double>(r_mean(v)); }
 
 double pooled_sd(std::span<const double> v) {
-  const long double mu = r_mean(v);
-  long double squares = 0.0L;
-  for (double x : v) squares += (x - mu) * (x - mu);
+  const long double squares = squares_about(v, r_mean(v));
   return std::sqrt(static_cast<double>(squares / static_cast<long double>(v.size() - 1)));
 }
 

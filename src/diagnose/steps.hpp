@@ -26,13 +26,13 @@ struct Matrix {
 // chain, a non-finite draw, all draws equal), or empty when the draws are usable.
 [[nodiscard]] std::string_view unusable_reason(DrawMatrix x);
 
+// Every step that builds a matrix comes in two forms: returning a fresh one, or filling `out`
+// (reusing its storage, so a caller that keeps its matrices allocates nothing per quantity).
+
 // Step 1, split: chain m becomes chains 2m (first half) and 2m+1 (second half); for an odd number
 // of draws the middle draw is dropped, as posterior does.
 [[nodiscard]] Matrix split_chains(DrawMatrix x);
-
-// Where draw d of chain c lands in split_chains(x), or kDropped for a dropped middle draw.
-inline constexpr std::size_t kDropped = static_cast<std::size_t>(-1);
-[[nodiscard]] std::size_t split_position(std::size_t d, std::size_t c, std::size_t draws);
+void split_chains(DrawMatrix x, Matrix& out);
 
 // The draws sorted once and shared by every rank-based step: all draws ascending (for order
 // statistics), and the draws kept by the split, ascending, with their split positions.
@@ -44,14 +44,20 @@ struct SortedDraws {
   std::size_t split_draws = 0, split_chains = 0;
 };
 [[nodiscard]] SortedDraws sort_draws(DrawMatrix x);
+void sort_draws(DrawMatrix x, SortedDraws& out);
 
 // Step 2, rank-normalise (section 4.1): normal scores z = Phi^-1((r - 3/8) / (S + 1/4)) of the
 // pooled average ranks r of the split draws, S their number, laid out as split_chains(x).
 [[nodiscard]] Matrix bulk_scores(const SortedDraws& sorted);
+void bulk_scores(const SortedDraws& sorted, Matrix& out);
 // The same for the folded draws |x - median(x)| (median over all draws, before the split).
 [[nodiscard]] Matrix folded_scores(const SortedDraws& sorted);
-// I{x <= q}, q the type-7 prob-quantile of all draws, laid out as split_chains(x).
+void folded_scores(const SortedDraws& sorted, Matrix& out);
+// I{x <= q}, q the type-7 prob-quantile of all draws, laid out as split_chains(x); the second
+// form takes split_chains(x) itself.
 [[nodiscard]] Matrix indicator_at_quantile(DrawMatrix x, const SortedDraws& sorted, double prob);
+void indicator_at_quantile(const Matrix& split, const SortedDraws& sorted, double prob,
+                           Matrix& out);
 
 // Order statistics with R's conventions: type-7 quantile, median as mean of the middle two.
 [[nodiscard]] double quantile_type7(std::span<const double> ascending, double prob);
@@ -63,6 +69,9 @@ struct SortedDraws {
 [[nodiscard]] Estimate ess_of(const Matrix& x);
 // mcse of the prob-quantile from its ESS and the sorted draws (posterior's .mcse_quantile).
 [[nodiscard]] Estimate mcse_quantile_from(const SortedDraws& sorted, Estimate ess, double prob);
+
+// Sum in long double (as R sums), four partial sums so that the additions overlap.
+[[nodiscard]] long double accurate_sum(const double* v, std::size_t n);
 
 // Mean and sample sd (n - 1) of all draws, accumulated in long double as R does.
 [[nodiscard]] double pooled_mean(std::span<const double> v);
