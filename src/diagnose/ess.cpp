@@ -40,7 +40,7 @@ class MeanAutocovariance {
     for (std::size_t c = 0; c < m_; ++c) {
       double* y = centred_.data() + c * n_;
       const bool constant = std::all_of(y, y + n_, [&](double v) { return v == y[0]; });
-      const auto mu = static_cast<double>(accurate_sum(y, n_) / static_cast<long double>(n_));
+      const double mu = sum_of(y, n_) / static_cast<double>(n_);
       chain_mean_[c] = mu;
       // posterior gives a constant chain an autocovariance of exactly zero.
       for (std::size_t i = 0; i < n_; ++i) y[i] = constant ? 0.0 : y[i] - mu;
@@ -193,8 +193,7 @@ class MeanAutocovariance {
   // acov(0) / raw(0) for chain c, acov(0) a direct sum of squares; 0 for a constant chain.
   [[nodiscard]] double lag0_scale(std::size_t c, double raw0) const {
     const double* y = centred_.data() + c * n_;
-    double squares = 0.0;
-    for (std::size_t i = 0; i < n_; ++i) squares += y[i] * y[i];
+    const double squares = squares_about(y, n_, 0.0);
     if (squares == 0.0 || raw0 == 0.0) return 0.0;
     return squares / static_cast<double>(n_) / raw0;
   }

@@ -49,7 +49,7 @@ double value_of_key(std::uint64_t key) {
 // scratch of the same size.
 void radix_sort(std::vector<std::uint64_t>& key, std::vector<std::uint32_t>& payload,
                 std::vector<std::uint64_t>& key2, std::vector<std::uint32_t>& payload2) {
-  constexpr unsigned kBits = 11, kDigits = 6;  // 6 x 11 >= 64
+  constexpr unsigned kBits = 8, kDigits = 8;  // 8 x 8 = 64
   constexpr std::size_t kBuckets = std::size_t{1} << kBits;
   const std::size_t n = key.size();
   if (n == 0) return;
@@ -122,28 +122,24 @@ void scores_of_ascending(std::span<const double> ascending, std::span<const std:
   }
 }
 
-// sum (v_i - mu)^2 in long double, four partial sums.
-long double squares_about(std::span<const double> v, long double mu) {
-  long double t[4] = {0.0L, 0.0L, 0.0L, 0.0L};
-  std::size_t i = 0;
-  for (; i + 4 <= v.size(); i += 4) {
-    for (std::size_t k = 0; k < 4; ++k) t[k] += (v[i + k] - mu) * (v[i + k] - mu);
-  }
-  for (; i < v.size(); ++i) t[0] += (v[i] - mu) * (v[i] - mu);
-  return (t[0] + t[1]) + (t[2] + t[3]);
-}
-
 // R's mean(): long double sum, then one refinement pass.
 long double r_mean(std::span<const double> v) {
   const auto n = static_cast<long double>(v.size());
-  const long double s = accurate_sum(v.data(), v.size()) / n;
-  long double t[4] = {0.0L, 0.0L, 0.0L, 0.0L};
+  long double s0 = 0.0L, s1 = 0.0L;
   std::size_t i = 0;
-  for (; i + 4 <= v.size(); i += 4) {
-    for (std::size_t k = 0; k < 4; ++k) t[k] += v[i + k] - s;
+  for (; i + 2 <= v.size(); i += 2) {
+    s0 += v[i];
+    s1 += v[i + 1];
   }
-  for (; i < v.size(); ++i) t[0] += v[i] - s;
-  return s + ((t[0] + t[1]) + (t[2] + t[3])) / n;
+  if (i < v.size()) s0 += v[i];
+  const long double mean = (s0 + s1) / n;
+  long double t0 = 0.0L, t1 = 0.0L;
+  for (i = 0; i + 2 <= v.size(); i += 2) {
+    t0 += v[i] - mean;
+    t1 += v[i + 1] - mean;
+  }
+  if (i < v.size()) t0 += v[i] - mean;
+  return mean + (t0 + t1) / n;
 }
 
 }  // namespace
@@ -162,17 +158,30 @@ std::string_view unusable_reason(DrawMatrix x) {
   return {};
 }
 
-long double accurate_sum(const double* v, std::size_t n) {
-  long double s0 = 0.0L, s1 = 0.0L, s2 = 0.0L, s3 = 0.0L;
+double sum_of(const double* v, std::size_t n) {
+  constexpr std::size_t kParts = 8;
+  std::array<double, kParts> part{};
   std::size_t i = 0;
-  for (; i + 4 <= n; i += 4) {
-    s0 += v[i];
-    s1 += v[i + 1];
-    s2 += v[i + 2];
-    s3 += v[i + 3];
+  for (; i + kParts <= n; i += kParts) {
+    for (std::size_t k = 0; k < kParts; ++k) part[k] += v[i + k];
   }
-  for (; i < n; ++i) s0 += v[i];
-  return (s0 + s1) + (s2 + s3);
+  double tail = 0.0;
+  for (; i < n; ++i) tail += v[i];
+  return ((part[0] + part[1]) + (part[2] + part[3])) + ((part[4] + part[5]) + (part[6] + part[7])) +
+         tail;
+}
+
+double squares_about(const double* v, std::size_t n, double mu) {
+  constexpr std::size_t kParts = 8;
+  std::array<double, kParts> part{};
+  std::size_t i = 0;
+  for (; i + kParts <= n; i += kParts) {
+    for (std::size_t k = 0; k < kParts; ++k) part[k] += (v[i + k] - mu) * (v[i + k] - mu);
+  }
+  double tail = 0.0;
+  for (; i < n; ++i) tail += (v[i] - mu) * (v[i] - mu);
+  return ((part[0] + part[1]) + (part[2] + part[3])) + ((part[4] + part[5]) + (part[6] + part[7])) +
+         tail;
 }
 
 void split_chains(DrawMatrix x, Matrix& out) {
@@ -320,9 +329,9 @@ Estimate rhat_of(const Matrix& x) {
   std::vector<double> chain_mean(m), chain_var(m);
   for (std::size_t c = 0; c < m; ++c) {
     const auto chain = x.view().chain(c);
-    chain_mean[c] = static_cast<double>(accurate_sum(chain.data(), n) / static_cast<long double>(n));
-    chain_var[c] = static_cast<double>(squares_about(chain, chain_mean[c]) /
-                                       static_cast<long double>(n - 1));  // s_m^2, eq. (2)
+    chain_mean[c] = sum_of(chain.data(), n) / static_cast<double>(n);
+    chain_var[c] = squares_about(chain.data(), n, chain_mean[c]) /
+                   static_cast<double>(n - 1);  // s_m^2, eq. (2)
   }
   const double grand = static_cast<double>(r_mean(chain_mean));
   long double between = 0.0L;
@@ -357,7 +366,15 @@ Estimate mcse_quantile_from(const SortedDraws& sorted, Estimate ess, double prob
 double pooled_mean(std::span<const double> v) { return static_cast<double>(r_mean(v)); }
 
 double pooled_sd(std::span<const double> v) {
-  const long double squares = squares_about(v, r_mean(v));
+  const long double mu = r_mean(v);
+  long double s0 = 0.0L, s1 = 0.0L;
+  std::size_t i = 0;
+  for (; i + 2 <= v.size(); i += 2) {
+    s0 += (v[i] - mu) * (v[i] - mu);
+    s1 += (v[i + 1] - mu) * (v[i + 1] - mu);
+  }
+  if (i < v.size()) s0 += (v[i] - mu) * (v[i] - mu);
+  const long double squares = s0 + s1;
   return std::sqrt(static_cast<double>(squares / static_cast<long double>(v.size() - 1)));
 }
 

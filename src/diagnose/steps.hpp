@@ -70,8 +70,10 @@ void indicator_at_quantile(const Matrix& split, const SortedDraws& sorted, doubl
 // mcse of the prob-quantile from its ESS and the sorted draws (posterior's .mcse_quantile).
 [[nodiscard]] Estimate mcse_quantile_from(const SortedDraws& sorted, Estimate ess, double prob);
 
-// Sum in long double (as R sums), four partial sums so that the additions overlap.
-[[nodiscard]] long double accurate_sum(const double* v, std::size_t n);
+// Per-chain sums in double with eight partial sums (they overlap and vectorise; for these
+// lengths the rounding stays far below the 1e-6 agreement with posterior).
+[[nodiscard]] double sum_of(const double* v, std::size_t n);
+[[nodiscard]] double squares_about(const double* v, std::size_t n, double mu);  // sum (v - mu)^2
 
 // Mean and sample sd (n - 1) of all draws, accumulated in long double as R does.
 [[nodiscard]] double pooled_mean(std::span<const double> v);
