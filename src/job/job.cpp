@@ -96,6 +96,27 @@ class Section {
     return values;
   }
 
+  std::vector<double> numbers(std::string_view key) {
+    std::vector<double> values;
+    const toml::node* node = get(key);
+    if (!node) return values;
+    const toml::array* array = node->as_array();
+    if (!array) fail(key, "must be a list of numbers", "write it as [1.0, 0.5]");
+    for (const toml::node& item : *array) {
+      if (item.is_floating_point()) values.push_back(**item.as_floating_point());
+      else if (item.is_integer()) values.push_back(static_cast<double>(**item.as_integer()));
+      else fail(key, "must be a list of numbers", "write it as [1.0, 0.5]");
+    }
+    return values;
+  }
+
+  bool boolean(std::string_view key, bool fallback) {
+    const toml::node* node = get(key);
+    if (!node) return fallback;
+    if (!node->is_boolean()) fail(key, "must be true or false", "write true or false without quotes");
+    return **node->as_boolean();
+  }
+
   const toml::table* table(std::string_view key) {
     const toml::node* node = get(key);
     if (!node) return nullptr;
@@ -228,6 +249,57 @@ void read_sampler(Section& top, JobSpec& job) {
   s.reject_unknown();
 }
 
+void read_tempering(Section& top, JobSpec& job) {
+  const toml::table* table = top.table("tempering");
+  if (!table) return;
+  Section t(*table, "tempering", job.path);
+  TemperingSpec& spec = job.tempering;
+  spec.enabled = true;
+  const double target = job.sampler.beta;
+  constexpr std::int64_t kMax = std::int64_t{1} << 50;
+  spec.betas = t.numbers("betas");
+  const bool listed = t.has("betas");
+  if (listed) {
+    if (t.has("rungs") || t.has("hottest_beta"))
+      t.fail(t.has("rungs") ? "rungs" : "hottest_beta", "conflicts with tempering.betas",
+             "give either betas = [...] or rungs and hottest_beta, not both");
+    if (spec.betas.size() < 2 || spec.betas.size() > 64)
+      t.fail("betas", "must list 2 to 64 rungs, has " + std::to_string(spec.betas.size()), "list 2 to 64 betas");
+    for (std::size_t r = 0; r < spec.betas.size(); ++r) {
+      if (!std::isfinite(spec.betas[r]) || spec.betas[r] < 0.0)
+        t.fail("betas", "must hold finite numbers >= 0", "fix entry " + std::to_string(r + 1));
+      if (r > 0 && !(spec.betas[r] < spec.betas[r - 1]))
+        t.fail("betas", "must decrease strictly from the target rung", "fix entry " + std::to_string(r + 1));
+    }
+    if (spec.betas.front() != target) {
+      std::ostringstream what;
+      what << "starts at " << spec.betas.front() << ", but the target rung must have sampler.beta = " << target;
+      t.fail("betas", what.str(), "make the first entry equal to sampler.beta");
+    }
+    spec.rungs = spec.betas.size();
+  } else {
+    spec.rungs = static_cast<std::size_t>(t.integer("rungs", 0, 2, 64, true));
+    spec.hottest_beta = t.number("hottest_beta", 0.0, 0.0, 1e6, true);
+    if (!(spec.hottest_beta > 0.0 && spec.hottest_beta < target)) {
+      std::ostringstream what;
+      what << "must lie strictly between 0 and the target sampler.beta = " << target << " for a geometric ladder";
+      t.fail("hottest_beta", what.str(), "choose a smaller positive value, or list betas = [...] to reach 0");
+    }
+  }
+  spec.swap_every = static_cast<std::uint64_t>(t.integer("swap_every", 10, 1, kMax));
+  spec.tune = t.boolean("tune", false);
+  if (spec.tune && job.sampler.burn_in == 0)
+    t.fail("tune", "tuning runs during burn-in, but sampler.burn_in is 0", "set sampler.burn_in or tune = false");
+  const std::string record = t.string("record", "target");
+  if (record == "target") spec.record = TemperingRecord::target;
+  else if (record == "all") spec.record = TemperingRecord::all;
+  else t.fail("record", "unknown value '" + record + "'", "use \"target\" or \"all\"");
+  if (job.sampler.kernel == KernelKind::recombination)
+    top.fail("tempering", "tempering needs a kernel that weighs the energy by beta; recombination ignores beta",
+             "set sampler.kernel to \"merge-split\" or \"flip\", or remove [tempering]");
+  t.reject_unknown();
+}
+
 }  // namespace
 
 const char* kernel_name(KernelKind kind) noexcept {
@@ -277,10 +349,7 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
     job.verdict.ess_min = s.number("ess_min", 400.0, 1.0, 1e12);
     s.reject_unknown();
   }
-  if (top.has("tempering")) {
-    top.get("tempering");
-    top.fail("tempering", "parallel tempering is not yet available in this version", "remove the [tempering] section");
-  }
+  read_tempering(top, job);
   top.reject_unknown();
   return job;
 }

@@ -38,6 +38,21 @@ struct SamplerSpec {
   std::size_t balanced_cut_bound = 0;  // merge-split M; 0 = |U| - 1 (always exact)
 };
 
+// [tempering] (docs/tempering.md): each chain of the run becomes a ladder of replicas at inverse
+// temperatures b_0 = sampler.beta > ... > b_{R-1}. Either `betas` is listed (betas[0] must equal
+// sampler.beta), or rungs and hottest_beta give a geometric ladder.
+enum class TemperingRecord { target, all };
+
+struct TemperingSpec {
+  bool enabled = false;            // the section is present
+  std::size_t rungs = 0;           // replicas per ladder (= betas.size() when betas is listed)
+  double hottest_beta = 0.0;       // geometric ladder's hottest rung (0 < hottest < target)
+  std::vector<double> betas;       // listed ladder, target first, strictly decreasing; else empty
+  std::uint64_t swap_every = 10;   // steps between swap rounds
+  bool tune = false;               // adapt inner rungs during burn-in, then freeze
+  TemperingRecord record = TemperingRecord::target;  // record the target rung, or every rung
+};
+
 struct OutputSpec {
   std::string dir;  // resolved relative to the job file
   double checkpoint_seconds = 300.0;
@@ -56,6 +71,7 @@ struct JobSpec {
   std::string start = "random";  // or a resolved plan CSV path
   RulesSpec rules;
   SamplerSpec sampler;
+  TemperingSpec tempering;
   OutputSpec output;
   VerdictSpec verdict;
 };
