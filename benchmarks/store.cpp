@@ -1,8 +1,10 @@
 // Ensemble store cost on the benchmark state (`synth` 10,000 units, 100 districts, seed 7, ±5%):
-// a recombination chain recording every 1, 10 or 100 steps into an ensemble file. One iteration =
-// one chain step (plus a record every `interval` steps). Counters: bytes of file per recorded plan
-// (after flush, HDF5 overhead included), encoded bytes per record before deflate, and bits per unit
-// per recorded plan. BM_ChainOnly is the same chain without recording, for the relative write cost.
+// a recombination chain recording every 1 to 10,000 steps into an ensemble file that carries the
+// unit adjacency. One iteration = one chain step (plus a record every `interval` steps).
+// Counters: file bytes per recorded plan (after flush, leaving out the fixed cost of a file:
+// header, unit adjacency, HDF5 metadata, counter fixed_file_bytes), encoded bytes per record
+// before deflate, and bits per unit per recorded plan. BM_ChainOnly is the same chain without
+// recording, for the relative write cost; BM_GraphRecord times the self-contained record kind.
 //   build/benchmarks/bench_store --benchmark_min_time=3
 #include <benchmark/benchmark.h>
 #include <unistd.h>
@@ -64,18 +66,33 @@ void BM_ChainOnly(benchmark::State& bench) {
   bench.SetItemsProcessed(bench.iterations());
 }
 
+// Size of an ensemble file holding the header, the unit adjacency and an empty chain: the fixed
+// cost of a file, left out of the bytes per record.
+double empty_file_bytes(const State& s, const fs::path& path) {
+  {
+    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)});
+    (void)writer.add_chain(0, {"cut_edges", "max_population_deviation"});
+    writer.flush();
+  }
+  const auto bytes = static_cast<double>(fs::file_size(path));
+  fs::remove(path);
+  return bytes;
+}
+
 void BM_ChainRecording(benchmark::State& bench) {
   const State& s = benchmark_state();
   const auto interval = static_cast<std::uint64_t>(bench.range(0));
   Chain chain = make_chain(s);
   const fs::path path =
       fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()) + ".h5");
+  const double fixed_bytes = empty_file_bytes(s, path);
   std::uint64_t records = 0;
   std::uint64_t encoded = 0;
   {
     EnsembleWriterOptions options;
     options.full_every = static_cast<std::size_t>(bench.range(1));
-    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, ""}, options);
+    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)},
+                          options);
     const std::size_t h = writer.add_chain(0, {"cut_edges", "max_population_deviation"});
     std::uint64_t step = 0;
     for (auto _ : bench) {
@@ -93,23 +110,54 @@ void BM_ChainRecording(benchmark::State& bench) {
   }
   const auto file_bytes = static_cast<double>(fs::file_size(path));
   fs::remove(path);
-  const double per_record = records ? file_bytes / static_cast<double>(records) : 0.0;
+  const double per_record = records ? (file_bytes - fixed_bytes) / static_cast<double>(records) : 0;
   bench.SetItemsProcessed(bench.iterations());
   bench.counters["records"] = static_cast<double>(records);
+  bench.counters["fixed_file_bytes"] = fixed_bytes;
   bench.counters["file_bytes_per_record"] = per_record;
   bench.counters["encoded_bytes_per_record"] =
       records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
   bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph.unit_count());
 }
 
+// Encoding and decoding one plan of the chain as a graph record (the self-contained kind).
+void BM_GraphRecord(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  Chain chain = make_chain(s);
+  const UnitAdjacency adjacency = unit_adjacency(s.graph);
+  ChainEncoder encoder(s.graph.unit_count(), 100, &adjacency);
+  std::vector<std::uint8_t> out;
+  std::vector<DistrictIndex> decoded(s.graph.unit_count());
+  const bool decode = bench.range(0) == 1;
+  for (auto _ : bench) {
+    out.clear();
+    encoder.encode_graph(chain.state().plan.assignment(), out);
+    if (decode)
+      benchmark::DoNotOptimize(decode_record(RecordKind::graph, out, 1, 100, decoded, &adjacency));
+  }
+  bench.counters["bytes"] = static_cast<double>(out.size());
+}
+
+BENCHMARK(BM_GraphRecord)->ArgName("decode")->Arg(0)->Arg(1)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ChainOnly)->Unit(benchmark::kMicrosecond);
-// Args: recording interval, full plan every K records (1 = full plans only, for comparison).
+// Args: recording interval, self-contained plan every K records (1 = self-contained only).
 BENCHMARK(BM_ChainRecording)
     ->ArgNames({"interval", "full_every"})
     ->Args({1, 64})
     ->Args({10, 64})
     ->Args({100, 64})
     ->Args({100, 1})
+    ->Unit(benchmark::kMicrosecond);
+// Long intervals: enough steps for 100 and 40 records.
+BENCHMARK(BM_ChainRecording)
+    ->ArgNames({"interval", "full_every"})
+    ->Args({1000, 64})
+    ->Iterations(100000)
+    ->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_ChainRecording)
+    ->ArgNames({"interval", "full_every"})
+    ->Args({10000, 64})
+    ->Iterations(400000)
     ->Unit(benchmark::kMicrosecond);
 
 }  // namespace

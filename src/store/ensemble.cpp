@@ -121,6 +121,36 @@ std::vector<hsize_t> dims_of(hid_t dset, const std::string& path) {
   return dims;
 }
 
+template <typename T>
+void write_column(hid_t group, const char* name, hid_t file_type, hid_t mem_type,
+                  const std::vector<T>& values, int deflate, const std::string& path) {
+  const hsize_t chunk[1] = {std::clamp<hsize_t>(values.size(), 1, 1 << 16)};
+  H5Dataset d = create_stream(group, name, file_type, chunk, deflate, true, path);
+  append_rows(d.get(), mem_type, values.data(), 0, values.size(), 1, false, path,
+              (std::string("writing ") + name).c_str());
+}
+
+void write_adjacency(hid_t root, const UnitAdjacency& adjacency, const std::string& path) {
+  H5Group g =
+      checked<H5Group>(H5Gcreate2(root, "unit_adjacency", H5P_DEFAULT, H5P_DEFAULT, H5P_DEFAULT),
+                       path, "creating group unit_adjacency");
+  write_column(g.get(), "offsets", H5T_STD_U64LE, H5T_NATIVE_UINT64, adjacency.offsets, 6, path);
+  write_column(g.get(), "neighbors", H5T_STD_U32LE, H5T_NATIVE_UINT32, adjacency.neighbors, 6,
+               path);
+}
+
+template <typename T>
+std::vector<T> read_column(hid_t group, const char* name, hid_t mem_type, const std::string& path) {
+  H5Dataset d = checked<H5Dataset>(H5Dopen2(group, name, H5P_DEFAULT), path,
+                                   (std::string("opening unit_adjacency/") + name).c_str());
+  const auto dims = dims_of(d.get(), path);
+  if (dims.size() != 1) throw StoreError(path, "reading unit_adjacency", "not a 1-D dataset");
+  std::vector<T> values(dims[0]);
+  read_rows(d.get(), mem_type, values.data(), 0, dims[0], 1, false, path,
+            (std::string("reading unit_adjacency/") + name).c_str());
+  return values;
+}
+
 }  // namespace
 
 // ---------------------------------------------------------------------------------------- writer
@@ -131,10 +161,9 @@ struct EnsembleWriter::Impl {
     H5Group group;
     H5Dataset bytes, records, observables;
     std::size_t observable_count = 0;
-    std::vector<DistrictIndex> previous;
-    std::vector<DistrictIndex> scratch;  // for encode_delta
-    std::uint64_t record_count = 0;      // recorded so far, written or buffered
-    std::uint64_t byte_count = 0;        // encoded bytes so far, written or buffered
+    std::unique_ptr<ChainEncoder> encoder;
+    std::uint64_t record_count = 0;  // recorded so far, written or buffered
+    std::uint64_t byte_count = 0;    // encoded bytes so far, written or buffered
     std::uint64_t written_records = 0, written_bytes = 0;
     std::vector<std::uint8_t> byte_buffer;
     std::vector<std::uint64_t> record_buffer;
@@ -177,6 +206,9 @@ EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& he
   if (m.options.full_every == 0) m.options.full_every = 1;
   if (m.options.chunk_bytes == 0) m.options.chunk_bytes = 1 << 16;
   m.width = label_width(header.district_count);
+  if (!header.adjacency.empty() && !header.adjacency.valid_for(header.unit_count))
+    throw std::invalid_argument("EnsembleWriter: the unit adjacency does not fit " +
+                                std::to_string(header.unit_count) + " units");
   H5PropList fapl =
       checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
   check(H5Pset_fapl_sec2(fapl.get()), path, "choosing the serial file driver");
@@ -191,6 +223,7 @@ EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& he
   const std::uint64_t full_every = m.options.full_every;
   write_attribute(root, "full_every", H5T_STD_U64LE, &full_every, path);
   write_string_attribute(root, "job_text", header.job_text, path);
+  if (!header.adjacency.empty()) write_adjacency(root, header.adjacency, path);
 }
 
 EnsembleWriter::~EnsembleWriter() {
@@ -233,6 +266,8 @@ std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
     for (const auto& s : names) p.push_back(s.c_str());
     check(H5Awrite(attr.get(), t.get(), p.data()), path, "writing observable names");
   }
+  c.encoder = std::make_unique<ChainEncoder>(m.header.unit_count, m.header.district_count,
+                                             &m.header.adjacency);
   m.chains.push_back(std::move(c));
   set_counters(m.chains.size() - 1, {});
   return m.chains.size() - 1;
@@ -250,17 +285,16 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
     throw std::invalid_argument("EnsembleWriter::record: wrong number of observables");
   const std::size_t before = c.byte_buffer.size();
   RecordKind kind = RecordKind::full;
-  if (c.record_count % m.options.full_every == 0) {
-    encode_full(plan, m.width, c.byte_buffer);
-  } else {
-    kind =
-        encode_delta(c.previous, plan, m.width, m.header.district_count, c.byte_buffer, c.scratch);
+  try {
+    kind = c.encoder->encode(plan, c.record_count % m.options.full_every == 0, c.byte_buffer);
+  } catch (...) {
+    c.byte_buffer.resize(before);
+    throw;
   }
   const std::uint64_t length = c.byte_buffer.size() - before;
   c.record_buffer.insert(c.record_buffer.end(),
                          {step, c.byte_count, length, static_cast<std::uint64_t>(kind)});
   c.observable_buffer.insert(c.observable_buffer.end(), observables.begin(), observables.end());
-  c.previous.assign(plan.begin(), plan.end());
   c.byte_count += length;
   ++c.record_count;
   if (c.byte_buffer.size() >= m.options.chunk_bytes ||
@@ -339,7 +373,7 @@ EnsembleReader::EnsembleReader(const std::string& path) : impl_(std::make_unique
                            "opening the ensemble file");
   const hid_t root = m.file.get();
   m.version = read_scalar_attribute<std::int64_t>(root, "format_version", H5T_NATIVE_INT64, path);
-  if (m.version != kEnsembleFormatVersion)
+  if (m.version < 1 || m.version > kEnsembleFormatVersion)
     throw StoreError(path, "reading format_version",
                      "version " + std::to_string(m.version) + ", this planmill reads " +
                          std::to_string(kEnsembleFormatVersion));
@@ -349,6 +383,17 @@ EnsembleReader::EnsembleReader(const std::string& path) : impl_(std::make_unique
       read_scalar_attribute<std::uint64_t>(root, "district_count", H5T_NATIVE_UINT64, path);
   m.header.job_text = read_string_attribute(root, "job_text", path);
   m.width = label_width(m.header.district_count);
+  if (H5Lexists(root, "unit_adjacency", H5P_DEFAULT) > 0) {
+    H5Group g = checked<H5Group>(H5Gopen2(root, "unit_adjacency", H5P_DEFAULT), path,
+                                 "opening group unit_adjacency");
+    m.header.adjacency.offsets =
+        read_column<std::uint64_t>(g.get(), "offsets", H5T_NATIVE_UINT64, path);
+    m.header.adjacency.neighbors =
+        read_column<std::uint32_t>(g.get(), "neighbors", H5T_NATIVE_UINT32, path);
+    if (!m.header.adjacency.valid_for(m.header.unit_count))
+      throw StoreError(path, "reading unit_adjacency",
+                       "not a CSR adjacency of " + std::to_string(m.header.unit_count) + " units");
+  }
   H5G_info_t info;
   check(H5Gget_info(root, &info), path, "listing chains");
   for (hsize_t i = 0; i < info.nlinks; ++i) {
@@ -390,10 +435,12 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
   const std::string where = chain_group_name(chain) + " record " + std::to_string(record);
   if (record >= records) throw std::out_of_range("EnsembleReader::read_plan: no " + where);
   std::size_t first = record;
-  while (first > 0 &&
-         index[first * kIndexColumns + 3] != static_cast<std::uint64_t>(RecordKind::full))
-    --first;
-  if (index[first * kIndexColumns + 3] != static_cast<std::uint64_t>(RecordKind::full))
+  auto self_contained = [&](std::size_t r) {
+    const std::uint64_t kind = index[r * kIndexColumns + 3];
+    return kind < kRecordKindCount && is_self_contained(static_cast<RecordKind>(kind));
+  };
+  while (first > 0 && !self_contained(first)) --first;
+  if (!self_contained(first))
     throw StoreError(m.path, "reading " + where, "no full plan before it");
   const std::uint64_t begin = index[first * kIndexColumns + 1];
   const std::uint64_t end = index[record * kIndexColumns + 1] + index[record * kIndexColumns + 2];
@@ -409,10 +456,11 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
   std::vector<DistrictIndex> plan(m.header.unit_count);
   for (std::size_t r = first; r <= record; ++r) {
     const std::uint64_t* row = &index[r * kIndexColumns];
-    if (row[1] < begin || row[1] + row[2] > end || row[3] > 3)
+    if (row[1] < begin || row[1] + row[2] > end || row[3] >= kRecordKindCount)
       throw StoreError(m.path, "reading " + where, "inconsistent plan_records");
     const std::span<const std::uint8_t> b(bytes.data() + (row[1] - begin), row[2]);
-    if (!decode_record(static_cast<RecordKind>(row[3]), b, m.width, m.header.district_count, plan))
+    if (!decode_record(static_cast<RecordKind>(row[3]), b, m.width, m.header.district_count, plan,
+                       &m.header.adjacency))
       throw StoreError(m.path, "reading " + where,
                        "record " + std::to_string(r) + " does not decode");
   }
@@ -485,7 +533,8 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
       const std::uint64_t* row = &index[r * kIndexColumns];
       const std::uint64_t expected_offset =
           r ? index[(r - 1) * kIndexColumns + 1] + index[(r - 1) * kIndexColumns + 2] : 0;
-      const bool ok = row[3] <= 3 && row[1] == expected_offset && (r > 0 || row[3] == 0) &&
+      const bool ok = row[3] < kRecordKindCount && row[1] == expected_offset &&
+                      (r > 0 || is_self_contained(static_cast<RecordKind>(row[3]))) &&
                       (r == 0 || row[0] >= index[(r - 1) * kIndexColumns]);
       if (!ok) consistent = r;
     }
@@ -542,14 +591,14 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
       for (std::size_t r = 0; r < consistent; ++r) {
         const std::uint64_t* row = &index[r * kIndexColumns];
         const auto kind = static_cast<RecordKind>(row[3]);
-        if (kind == RecordKind::full) {
+        if (is_self_contained(kind)) {
           close_bad(r);
           have_plan = false;
         }
-        bool ok = good[r] && (have_plan || kind == RecordKind::full);
+        bool ok = good[r] && (have_plan || is_self_contained(kind));
         if (ok)
           ok = decode_record(kind, std::span<const std::uint8_t>(bytes.data() + row[1], row[2]),
-                             m.width, m.header.district_count, plan);
+                             m.width, m.header.district_count, plan, &m.header.adjacency);
         have_plan = ok;
         if (!ok && bad_from == records) bad_from = r;
       }

@@ -106,14 +106,16 @@ TEST(PlanCodec, PairChangeIsSmall) {
   for (std::size_t u = 150; u < 250; u += 3)
     after[u] = after[u] == 1 ? 2 : 1;  // scattered, two districts
   std::vector<std::uint8_t> out;
-  std::vector<DistrictIndex> scratch;
-  EXPECT_EQ(encode_delta(before, after, 1, 100, out, scratch), RecordKind::pair);
+  ChainEncoder encoder(before.size(), 100, nullptr);
+  EXPECT_EQ(encoder.encode(before, true, out), RecordKind::full);
+  out.clear();
+  EXPECT_EQ(encoder.encode(after, false, out), RecordKind::pair);
   EXPECT_EQ(out.size(), 2u + 200u / 8u);  // two labels + one bit per unit of districts 1 and 2
   std::vector<DistrictIndex> plan = before;
   ASSERT_TRUE(decode_record(RecordKind::pair, out, 1, 100, plan));
   EXPECT_EQ(plan, after);
   out.clear();
-  EXPECT_EQ(encode_delta(after, after, 1, 100, out, scratch), RecordKind::unchanged);
+  EXPECT_EQ(encoder.encode(after, false, out), RecordKind::unchanged);
   EXPECT_TRUE(out.empty());
 }
 

@@ -13,12 +13,16 @@
 
 namespace planmill {
 
-inline constexpr std::int64_t kEnsembleFormatVersion = 1;
+// 2: optional /unit_adjacency and graph records (kind 4). Version 1 files are still read.
+inline constexpr std::int64_t kEnsembleFormatVersion = 2;
 
 struct EnsembleHeader {
   std::size_t unit_count = 0;
   std::size_t district_count = 0;
   std::string job_text;  // the job file as the user wrote it
+  // Unit adjacency (e.g. unit_adjacency(graph)); when given, plans are range-coded against it
+  // (graph records), about half the size of the other kinds for plans far apart.
+  UnitAdjacency adjacency;
 };
 
 struct EnsembleWriterOptions {
@@ -45,6 +49,7 @@ class EnsembleWriter {
   std::size_t add_chain(std::uint64_t chain_index,
                         const std::vector<std::string>& observable_names);
   // Appends one recorded plan (labels 0..k-1 per unit) with its observables (one per name).
+  // Exact whatever the plan; throws std::invalid_argument on a wrong size or label.
   void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
               std::span<const double> observables);
   void set_counters(std::size_t chain, const StoredCounters& counters);

@@ -1,6 +1,8 @@
 #pragma once
-// Byte encoding of one recorded plan relative to the previous one (docs/format.md, "Record kinds").
-// Labels are 1 byte when the district count is at most 255, else 2 bytes little-endian.
+// Byte encoding of one recorded plan, alone or relative to the previous one (docs/format.md,
+// "Record kinds"). Labels are 1 byte when the district count is at most 255, else 2 bytes
+// little-endian. ChainEncoder is the writer's side: it keeps the previous plan and every buffer,
+// so that encoding a record allocates nothing once warm.
 #include <cstdint>
 #include <span>
 #include <vector>
@@ -8,6 +10,8 @@
 #include "planmill/base/ids.hpp"
 
 namespace planmill {
+
+class UnitGraph;
 
 enum class RecordKind : std::uint8_t {
   full = 0,       // every label, in unit order
@@ -17,25 +21,76 @@ enum class RecordKind : std::uint8_t {
   // length*2 + f, and the label only when f = 1; f = 0 means the label given to the last run
   // (of this record) that started on a unit of the same old district.
   runs = 3,
+  // Every label, range-coded unit by unit with the labels of already coded neighbours as the
+  // prediction (needs the unit adjacency of the file).
+  graph = 4,
 };
+inline constexpr std::uint64_t kRecordKindCount = 5;
+
+// Records of these kinds decode without the previous plan.
+[[nodiscard]] constexpr bool is_self_contained(RecordKind kind) noexcept {
+  return kind == RecordKind::full || kind == RecordKind::graph;
+}
 
 [[nodiscard]] inline std::size_t label_width(std::size_t district_count) noexcept {
   return district_count <= 255 ? 1 : 2;
 }
 
-// Appends the full plan to `out`.
+// Unit adjacency in CSR form: the neighbours of u are neighbors[offsets[u] .. offsets[u+1]).
+// Empty offsets = no adjacency known (graph records are then never written).
+struct UnitAdjacency {
+  std::vector<std::uint64_t> offsets;
+  std::vector<std::uint32_t> neighbors;
+  [[nodiscard]] bool empty() const noexcept { return offsets.empty(); }
+  // offsets has units + 1 entries, starts at 0, never decreases, ends at neighbors.size(), and
+  // every neighbour is a unit index.
+  [[nodiscard]] bool valid_for(std::size_t units) const noexcept;
+};
+[[nodiscard]] UnitAdjacency unit_adjacency(const UnitGraph& graph);
+
+// Appends the full plan to `out` (kind full).
 void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
                  std::vector<std::uint8_t>& out);
-// Appends the cheapest encoding of `next` given `previous` and returns its kind. `previous` and
-// `next` have the same size; `scratch` (k entries) is reused between calls.
-RecordKind encode_delta(std::span<const DistrictIndex> previous,
-                        std::span<const DistrictIndex> next, std::size_t width,
-                        std::size_t district_count, std::vector<std::uint8_t>& out,
-                        std::vector<DistrictIndex>& scratch);
-// Applies one record to `plan` in place (for full records `plan` is overwritten). Returns false,
-// leaving `plan` unspecified, when the bytes do not form a valid record of that kind.
+
+// Applies one record to `plan` in place (self-contained kinds overwrite it). Returns false,
+// leaving `plan` unspecified, when the bytes do not form a valid record of that kind (graph
+// records also fail without a valid adjacency).
 [[nodiscard]] bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes,
                                  std::size_t width, std::size_t district_count,
-                                 std::span<DistrictIndex> plan);
+                                 std::span<DistrictIndex> plan,
+                                 const UnitAdjacency* adjacency = nullptr);
+
+class ChainEncoder {
+ public:
+  // `adjacency` (may be null or empty) must outlive the encoder.
+  ChainEncoder(std::size_t unit_count, std::size_t district_count, const UnitAdjacency* adjacency);
+
+  // Appends the encoding of `plan` to `out` and returns its kind: a self-contained kind when
+  // `self_contained` (or for the first plan), else the smallest of the delta kinds and graph.
+  RecordKind encode(std::span<const DistrictIndex> plan, bool self_contained,
+                    std::vector<std::uint8_t>& out);
+  // Appends the graph encoding of `plan` (needs an adjacency), independent of previous plans.
+  void encode_graph(std::span<const DistrictIndex> plan, std::vector<std::uint8_t>& out);
+
+ private:
+  RecordKind encode_delta(std::span<const DistrictIndex> next, std::vector<std::uint8_t>& out);
+  void take_whole(std::span<const DistrictIndex> plan);
+
+  std::size_t n_, k_, width_;
+  const UnitAdjacency* adjacency_;
+  UnitAdjacency lower_;  // neighbours v < u of each unit u
+  bool have_previous_ = false;
+  std::vector<DistrictIndex> previous_;
+  std::vector<std::uint32_t> label_size_;  // units per label in previous_
+  std::vector<std::uint32_t> changed_;     // units that differ, of the record being encoded
+  std::vector<DistrictIndex> guess_;       // per old label, for runs
+  std::vector<std::uint8_t> trial_;        // graph encoding tried against a delta
+  // Graph coder state.
+  std::vector<std::uint16_t> probabilities_;
+  std::vector<std::uint32_t> tree_;       // Fenwick tree over recency positions of labels
+  std::vector<std::uint32_t> position_;   // per label
+  std::vector<DistrictIndex> candidate_;  // per unit: distinct labels of coded neighbours
+  std::vector<std::uint32_t> candidate_count_;
+};
 
 }  // namespace planmill
