@@ -52,9 +52,23 @@ Plans random_sequence(std::size_t units, std::size_t k, std::size_t count, std::
   return plans;
 }
 
+// Units on a strip 10 wide, neighbours across and along.
+UnitAdjacency strip_adjacency(std::size_t units) {
+  UnitAdjacency a;
+  a.offsets.push_back(0);
+  for (std::size_t u = 0; u < units; ++u) {
+    for (std::size_t v : {u - 10, u - 1, u + 1, u + 10})
+      if (v < units) a.neighbors.push_back(static_cast<std::uint32_t>(v));
+    a.offsets.push_back(a.neighbors.size());
+  }
+  return a;
+}
+
 void write_file(const fs::path& path, std::size_t units, std::size_t k,
-                const std::vector<Plans>& chains, EnsembleWriterOptions options = {}) {
-  EnsembleWriter writer(path.string(), {units, k, "name = \"test\"\n"}, options);
+                const std::vector<Plans>& chains, EnsembleWriterOptions options = {},
+                UnitAdjacency adjacency = {}) {
+  EnsembleWriter writer(path.string(), {units, k, "name = \"test\"\n", std::move(adjacency)},
+                        options);
   for (std::size_t c = 0; c < chains.size(); ++c) {
     const std::size_t h = writer.add_chain(c, {"index", "first_label"});
     for (std::size_t r = 0; r < chains[c].size(); ++r) {
@@ -67,13 +81,17 @@ void write_file(const fs::path& path, std::size_t units, std::size_t k,
   writer.flush();
 }
 
-void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every,
-                       std::uint32_t seed) {
+void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every, std::uint32_t seed,
+                       bool with_adjacency = false) {
   const fs::path path = temp_file("round_trip_" + std::to_string(seed));
   const std::vector<Plans> chains = {random_sequence(units, k, 300, seed),
                                      random_sequence(units, k, 77, seed + 1)};
-  write_file(path, units, k, chains, {full_every, 512, 4});
+  const UnitAdjacency adjacency = with_adjacency ? strip_adjacency(units) : UnitAdjacency{};
+  write_file(path, units, k, chains, {full_every, 512, 4}, adjacency);
   EnsembleReader reader(path.string());
+  EXPECT_EQ(reader.format_version(), kEnsembleFormatVersion);
+  EXPECT_EQ(reader.header().adjacency.offsets, adjacency.offsets);
+  EXPECT_EQ(reader.header().adjacency.neighbors, adjacency.neighbors);
   EXPECT_EQ(reader.header().unit_count, units);
   EXPECT_EQ(reader.header().district_count, k);
   EXPECT_EQ(reader.header().job_text, "name = \"test\"\n");
@@ -98,6 +116,34 @@ TEST(EnsembleStore, RoundTripUint8Labels) { expect_round_trip(500, 12, 64, 1); }
 TEST(EnsembleStore, RoundTripEveryRecordFull) { expect_round_trip(200, 7, 1, 2); }
 TEST(EnsembleStore, RoundTripUint16Labels) { expect_round_trip(600, 300, 16, 3); }
 TEST(EnsembleStore, RoundTripLargeK) { expect_round_trip(70000, 40000, 5, 4); }
+TEST(EnsembleStore, RoundTripWithAdjacency) { expect_round_trip(500, 12, 64, 5, true); }
+TEST(EnsembleStore, RoundTripWithAdjacencyEveryRecordSelfContained) {
+  expect_round_trip(300, 7, 1, 6, true);
+}
+TEST(EnsembleStore, RoundTripWithAdjacencyManyLabels) {
+  expect_round_trip(3000, 1000, 16, 7, true);
+}
+
+TEST(EnsembleStore, WrongAdjacencyOrLabelIsRefused) {
+  const fs::path path = temp_file("refused");
+  UnitAdjacency bad = strip_adjacency(50);
+  EXPECT_THROW(EnsembleWriter(path.string(), {60, 3, "", bad}), std::invalid_argument);
+  {
+    EnsembleWriter writer(path.string(), {50, 3, "", bad});
+    const std::size_t h = writer.add_chain(0, {});
+    std::vector<DistrictIndex> plan(50, 2);
+    writer.record(h, 0, plan, {});
+    plan[7] = 3;
+    EXPECT_THROW(writer.record(h, 1, plan, {}), std::invalid_argument);
+    plan[7] = 1;
+    writer.record(h, 2, plan, {});
+  }
+  EnsembleReader reader(path.string());
+  ASSERT_EQ(reader.record_count(0), 2u);
+  EXPECT_EQ(reader.read_plan(0, 1)[7], 1);
+  EXPECT_TRUE(reader.verify().empty());
+  fs::remove(path);
+}
 
 TEST(PlanCodec, PairChangeIsSmall) {
   std::vector<DistrictIndex> before(10000), after;

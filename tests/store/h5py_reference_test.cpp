@@ -1,6 +1,7 @@
 // Reference check against h5py + numpy (Debian python3-h5py, python3-numpy via /usr/bin/python3):
-// an independent Python reader, written from docs/format.md alone, decodes every recorded plan and
-// reads the observables table; both must equal planmill's own EnsembleReader exactly.
+// an independent Python reader, written from docs/format.md alone (range decoder included),
+// decodes every recorded plan and reads the observables table; both must equal planmill's own
+// EnsembleReader exactly.
 #include <gtest/gtest.h>
 #include <unistd.h>
 
@@ -43,6 +44,62 @@ def varint(b, i):
             return v, i
         shift += 7
 
+lower = None  # per unit: its neighbours v < u, from /unit_adjacency (docs/format.md)
+if "unit_adjacency" in f:
+    offsets = f["unit_adjacency/offsets"][...]
+    neighbors = f["unit_adjacency/neighbors"][...]
+    lower = [[int(v) for v in neighbors[offsets[u]:offsets[u + 1]] if v < u] for u in range(n)]
+
+class RangeDecoder:
+    def __init__(self, b):
+        self.b, self.at = b, 5
+        self.range, self.code = 0xFFFFFFFF, int.from_bytes(bytes(b[:5]), "big")
+    def normalize(self):
+        while self.range < 1 << 24:
+            self.range = (self.range << 8) & 0xFFFFFFFF
+            self.code = ((self.code << 8) | int(self.b[self.at])) & 0xFFFFFFFF
+            self.at += 1
+    def bit(self, p, i):
+        bound = (self.range >> 11) * p[i]
+        if self.code < bound:
+            self.range, p[i], bit = bound, p[i] + ((2048 - p[i]) >> 5), 0
+        else:
+            self.code, self.range, p[i], bit = self.code - bound, self.range - bound, p[i] - (p[i] >> 5), 1
+        self.normalize()
+        return bit
+    def direct(self):
+        self.range >>= 1
+        bit = int(self.code >= self.range)
+        if bit:
+            self.code -= self.range
+        self.normalize()
+        return bit
+
+def graph_plan(b):
+    rc, p, plan, latest, prev = RangeDecoder(b), [1024] * 86, [0] * n, {}, -1
+    for u in range(n):
+        count = {}
+        for v in lower[u]:
+            count[plan[v]] = count.get(plan[v], 0) + 1
+        cands = sorted(count, key=lambda d: (-count[d], d))
+        label = None
+        for i, d in enumerate(cands):
+            ctx = (((min(len(cands), 3) - 1) * 3 + min(i, 2)) * 3 + min(count[d], 3) - 1) * 2
+            if rc.bit(p, ctx + (d == prev)):
+                label = d
+                break
+        if label is None:
+            g, length, m = 54 + (16 if cands else 0), 1, 1
+            while rc.bit(p, g + length - 1):
+                length += 1
+            for _ in range(length - 1):
+                m = 2 * m + rc.direct()
+            rest = sorted((d for d in range(k) if d not in count), key=lambda d: (-latest.get(d, -1), d))
+            label = rest[m - 1]
+        plan[u], latest[label], prev = label, u, label
+    assert rc.at == len(b)
+    return np.array(plan, dtype=np.int64)
+
 for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g[6:])):
     g = f[name]
     chain = name[6:]
@@ -53,10 +110,13 @@ for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g
     records = g["plan_records"][...]
     data = g["plan_bytes"][...]
     plan = None
+    out.write("kinds %s %s\n" % (chain, " ".join(str(int((records[:, 3] == c).sum())) for c in range(5))))
     for step, offset, length, kind in records:
         b = data[offset:offset + length]
         if kind == 0:
             plan = (b.view("<u2") if w == 2 else b).astype(np.int64)
+        elif kind == 4:
+            plan = graph_plan(b)
         elif kind == 2:
             a, c = label(b, 0), label(b, w)
             members = np.flatnonzero((plan == a) | (plan == c))
@@ -77,14 +137,31 @@ for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g
         out.write("plan %s %d %s\n" % (chain, step, " ".join(str(x) for x in plan)))
 )PY";
 
-void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
+// Grid of `width` columns in row-major unit order, for files that carry a unit adjacency.
+UnitAdjacency grid_adjacency(std::size_t units, std::size_t width) {
+  UnitAdjacency a;
+  a.offsets.push_back(0);
+  for (std::size_t u = 0; u < units; ++u) {
+    if (u >= width) a.neighbors.push_back(static_cast<std::uint32_t>(u - width));
+    if (u % width) a.neighbors.push_back(static_cast<std::uint32_t>(u - 1));
+    if ((u + 1) % width && u + 1 < units) a.neighbors.push_back(static_cast<std::uint32_t>(u + 1));
+    if (u + width < units) a.neighbors.push_back(static_cast<std::uint32_t>(u + width));
+    a.offsets.push_back(a.neighbors.size());
+  }
+  return a;
+}
+
+void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
+                        bool with_adjacency = false) {
   const std::string tag = std::to_string(getpid()) + "_" + std::to_string(seed);
   const fs::path file = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".h5");
   const fs::path script = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".py");
   const fs::path output = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".txt");
   std::mt19937 rng(seed);
   {
-    EnsembleWriter writer(file.string(), {units, k, "job"}, {8, 256, 4});
+    EnsembleHeader header{units, k, "job"};
+    if (with_adjacency) header.adjacency = grid_adjacency(units, 20);
+    EnsembleWriter writer(file.string(), header, {8, 256, 4});
     for (std::uint64_t c : {0u, 3u}) {
       const std::size_t h = writer.add_chain(c, {"mean_label", "noise"});
       std::vector<DistrictIndex> plan(units);
@@ -118,7 +195,13 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
     std::string what;
     std::uint64_t chain = 0;
     fields >> what >> chain;
-    if (what == "obs") {
+    if (what == "kinds") {
+      std::size_t count[5] = {};
+      for (auto& c : count) fields >> c;
+      // Self-contained records are graph records exactly when the file has an adjacency.
+      EXPECT_EQ(count[4] > 0, with_adjacency) << line;
+      EXPECT_EQ(count[0] > 0, !with_adjacency) << line;
+    } else if (what == "obs") {
       std::string name;
       fields >> name;
       const auto names = reader.observable_names(chain);
@@ -157,6 +240,11 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed) {
 
 TEST(EnsembleH5py, PlansAndObservablesMatchUint8) { check_against_h5py(400, 9, 21); }
 TEST(EnsembleH5py, PlansAndObservablesMatchUint16) { check_against_h5py(700, 320, 22); }
+// Graph records (kind 4), range-coded against the grid adjacency stored in the file; 600 labels
+// take the encoder's other way of ranking labels.
+TEST(EnsembleH5py, GraphRecordsMatchUint8) { check_against_h5py(400, 9, 23, true); }
+TEST(EnsembleH5py, GraphRecordsMatchUint16) { check_against_h5py(700, 320, 24, true); }
+TEST(EnsembleH5py, GraphRecordsMatchManyLabels) { check_against_h5py(700, 600, 25, true); }
 
 }  // namespace
 }  // namespace planmill
