@@ -23,6 +23,7 @@ struct LadderLawCase {
   std::vector<double> betas;
   std::uint64_t swap_every = 5;
   bool wrong_swap_sign = false;
+  bool tune = false;  // tune the ladder during the burn-in
   std::uint64_t samples = 10000;
   std::uint64_t thin = 0;  // ladder steps between records; 0 = about 25 accepted target moves
   std::uint64_t seed = 11;
@@ -81,14 +82,15 @@ inline LadderLawResult check_ladder_law(const LadderLawCase& c) {
   }
   result.thin = thin;
 
-  // 3. The ladder, recorded on its target rung after a burn-in of 100 records.
+  // 3. The ladder, recorded on its target rung after a burn-in of 100 recording intervals.
   LadderSetup setup;
   setup.chain = ChainSetup{c.graph.get(), c.rules, c.kernel, c.seed, 0};
   setup.betas = c.betas;
   setup.swap_every = c.swap_every;
   setup.wrong_swap_sign = c.wrong_swap_sign;
   Ladder ladder(setup, {start_plan});
-  ladder.run(100 * thin);
+  if (c.tune) ladder.tune(100 * thin);
+  else ladder.run(100 * thin);
   std::vector<std::uint64_t> seen(table.plans.size(), 0);
   for (std::uint64_t n = 0; n < c.samples; ++n) {
     ladder.run(thin);

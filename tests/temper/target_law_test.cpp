@@ -71,6 +71,13 @@ TEST(TargetLaw, MergeSplitLadderOfFourRungs) {
   expect_pass(test::check_ladder_law(merge_split_case({0.8, 0.5, 0.25, 0.0})));
 }
 
+TEST(TargetLaw, TunedFlipLadderOfFourRungs) {
+  // Tuned during burn-in from a badly spaced start, then frozen: the samples still follow the law.
+  auto c = flip_case({1.0, 0.95, 0.9, 0.0});
+  c.tune = true;
+  expect_pass(test::check_ladder_law(c));
+}
+
 // The same checks with exp(-(b_r - b_{r+1})(E_r - E_{r+1})) in place of the right ratio: the
 // target rung then collects high-energy plans, and the check must turn red.
 TEST(TargetLawPower, FlipLadderWithTheWrongSwapSignFails) {
