@@ -240,7 +240,16 @@ struct GraphModel {
     DistrictIndex previous = kNoDistrict;
     for (std::size_t u = 0; u < n; ++u) {
       std::size_t c = 0;
-      for (std::uint64_t e = offsets[u]; e < offsets[u + 1]; ++e) {
+      std::uint64_t e = offsets[u];
+      const std::uint64_t e_end = offsets[u + 1];
+      if (e < e_end) {
+        // Usually every coded neighbour has one label: count that stretch without searching.
+        cand[0] = plan[neighbors[e]];
+        cnt[0] = 1;
+        c = 1;
+        while (++e < e_end && plan[neighbors[e]] == cand[0]) ++cnt[0];
+      }
+      for (; e < e_end; ++e) {
         const DistrictIndex d = plan[neighbors[e]];
         std::size_t j = 0;
         while (j < c && cand[j] != d) ++j;
@@ -354,6 +363,14 @@ std::size_t max_degree(const UnitAdjacency& adjacency) {
   for (std::size_t u = 0; u + 1 < adjacency.offsets.size(); ++u)
     most = std::max<std::size_t>(most, adjacency.offsets[u + 1] - adjacency.offsets[u]);
   return most;
+}
+
+// Whether one of 64 labels is a or b, written so that it vectorises.
+bool has_either(const DistrictIndex* labels, DistrictIndex a, DistrictIndex b) {
+  std::uint16_t hits = 0;
+  for (int i = 0; i < 64; ++i)
+    hits = static_cast<std::uint16_t>(hits + (labels[i] == a) + (labels[i] == b));
+  return hits != 0;
 }
 
 }  // namespace
@@ -527,13 +544,20 @@ RecordKind ChainEncoder::encode_delta(std::span<const DistrictIndex> next,
   put_label(b, width_, out);
   std::uint8_t byte = 0;
   int bit = 0;
-  for (std::size_t u = 0; u < n; ++u) {
-    if (previous[u] != a && previous[u] != b) continue;
-    if (next[u] == b) byte = static_cast<std::uint8_t>(byte | (1u << bit));
-    if (++bit == 8) {
-      out.push_back(byte);
-      byte = 0;
-      bit = 0;
+  // Districts are compact in unit order: skip blocks without a member of a or b with a check
+  // the compiler vectorises, and look at single units only inside blocks that have one.
+  constexpr std::size_t kBlock = 64;
+  for (std::size_t base = 0; base < n; base += kBlock) {
+    const std::size_t end = std::min(n, base + kBlock);
+    if (end - base == kBlock && !has_either(previous.data() + base, a, b)) continue;
+    for (std::size_t u = base; u < end; ++u) {
+      if (previous[u] != a && previous[u] != b) continue;
+      if (next[u] == b) byte = static_cast<std::uint8_t>(byte | (1u << bit));
+      if (++bit == 8) {
+        out.push_back(byte);
+        byte = 0;
+        bit = 0;
+      }
     }
   }
   if (bit) out.push_back(byte);
