@@ -31,14 +31,16 @@ void check_betas(std::span<const double> betas) {
 }
 
 double LadderStatistics::swap_acceptance(std::size_t pair) const noexcept {
-  return swap_attempts[pair] ? static_cast<double>(swap_accepts[pair]) / static_cast<double>(swap_attempts[pair])
-                             : std::numeric_limits<double>::quiet_NaN();
+  return swap_attempts[pair]
+             ? static_cast<double>(swap_accepts[pair]) / static_cast<double>(swap_attempts[pair])
+             : std::numeric_limits<double>::quiet_NaN();
 }
 
 double LadderStatistics::time_fraction(std::size_t replica, std::size_t rung) const noexcept {
   std::uint64_t total = 0;
   for (std::size_t r = 0; r < rungs; ++r) total += steps_on_rung[replica * rungs + r];
-  return total ? static_cast<double>(steps_on_rung[replica * rungs + rung]) / static_cast<double>(total)
+  return total ? static_cast<double>(steps_on_rung[replica * rungs + rung]) /
+                     static_cast<double>(total)
                : std::numeric_limits<double>::quiet_NaN();
 }
 
@@ -97,8 +99,10 @@ void Ladder::step() {
   for (std::size_t r = 0; r < rungs; ++r) {
     const std::uint32_t i = replica_on_rung_[r];
     ++stats_.steps_on_rung[i * rungs + r];
-    if (heading_[i] == kUp) ++stats_.up_steps[r];
-    else if (heading_[i] == kDown) ++stats_.down_steps[r];
+    if (heading_[i] == kUp)
+      ++stats_.up_steps[r];
+    else if (heading_[i] == kDown)
+      ++stats_.down_steps[r];
   }
 }
 
@@ -121,7 +125,8 @@ void Ladder::swap() {
 }
 
 void Ladder::apply_betas() noexcept {
-  for (std::size_t i = 0; i < replicas_.size(); ++i) replicas_[i].set_beta(betas_[rung_of_replica_[i]]);
+  for (std::size_t i = 0; i < replicas_.size(); ++i)
+    replicas_[i].set_beta(betas_[rung_of_replica_[i]]);
 }
 
 void Ladder::track_ends() noexcept {
@@ -152,13 +157,15 @@ void Ladder::reset_statistics() {
 // the "communication barrier" of Syed et al., JRSS-B 84 (2022) 321 [from memory]): Lambda grows
 // by the rejection rate of each pair, and the new betas sit at equal steps of Lambda, interpolated
 // linearly in beta. The ends stay fixed and the order is kept (every step of Lambda is > 0).
-void Ladder::respace(std::span<const std::uint64_t> attempts, std::span<const std::uint64_t> accepts) {
+void Ladder::respace(std::span<const std::uint64_t> attempts,
+                     std::span<const std::uint64_t> accepts) {
   const std::size_t rungs = betas_.size();
   if (rungs < 3) return;
   std::vector<double> lambda(rungs, 0.0);
   for (std::size_t r = 0; r + 1 < rungs; ++r) {
     if (attempts[r] == 0) return;  // too few swap rounds in this block to say anything
-    const double rejection = 1.0 - static_cast<double>(accepts[r]) / static_cast<double>(attempts[r]);
+    const double rejection =
+        1.0 - static_cast<double>(accepts[r]) / static_cast<double>(attempts[r]);
     lambda[r + 1] = lambda[r] + std::max(rejection, 1e-3);
   }
   std::vector<double> next = betas_;
@@ -209,7 +216,8 @@ void read_all(std::istream& in, std::vector<std::uint64_t>& v) {
 std::string Ladder::save() const {
   std::ostringstream out;
   const std::size_t rungs = betas_.size();
-  out << "planmill-ladder 1\n" << ladder_index_ << ' ' << rungs << ' ' << steps_ << ' ' << swap_rounds_ << ' '
+  out << "planmill-ladder 1\n"
+      << ladder_index_ << ' ' << rungs << ' ' << steps_ << ' ' << swap_rounds_ << ' '
       << (tuned_ ? 1 : 0) << '\n';
   for (double b : betas_) out << std::bit_cast<std::uint64_t>(b) << ' ';
   out << '\n';
@@ -239,7 +247,8 @@ void Ladder::restore(std::string_view snapshot) {
   std::size_t rungs = 0;
   int tuned = 0;
   in >> magic >> version >> index >> rungs >> steps >> rounds >> tuned;
-  if (!in || magic != "planmill-ladder" || version != 1) throw std::invalid_argument("not a planmill ladder snapshot");
+  if (!in || magic != "planmill-ladder" || version != 1)
+    throw std::invalid_argument("not a planmill ladder snapshot");
   if (index != ladder_index_ || rungs != betas_.size())
     throw std::invalid_argument("ladder snapshot is for another ladder index or rung count");
   std::vector<double> betas(rungs);
@@ -272,7 +281,8 @@ void Ladder::restore(std::string_view snapshot) {
   check_betas(betas);
   std::vector<std::uint8_t> seen(rungs, 0);
   for (auto i : on_rung) {
-    if (i >= rungs || seen[i]) throw std::invalid_argument("ladder snapshot has a bad rung assignment");
+    if (i >= rungs || seen[i])
+      throw std::invalid_argument("ladder snapshot has a bad rung assignment");
     seen[i] = 1;
   }
   std::vector<std::string> chains(rungs);

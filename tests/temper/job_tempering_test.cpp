@@ -14,19 +14,23 @@ namespace {
 std::string job_text(const std::string& sampler, const std::string& tempering) {
   return "[map]\nunits = \"u.csv\"\nadjacency = \"a.csv\"\nid = \"unit\"\npopulation = \"pop\"\n"
          "[districts]\ncount = 3\n"
-         "[sampler]\n" + sampler + "\n" + tempering;
+         "[sampler]\n" +
+         sampler + "\n" + tempering;
 }
 
-const std::string kSampler = "kernel = \"flip\"\nbeta = 2.0\nsteps = 1000\nburn_in = 100\nchains = 3\nseed = 9";
+const std::string kSampler =
+    "kernel = \"flip\"\nbeta = 2.0\nsteps = 1000\nburn_in = 100\nchains = 3\nseed = 9";
 
 TEST(TemperingSection, AbsentMeansNoTempering) {
   EXPECT_FALSE(parse_job_text(job_text(kSampler, ""), "job.toml").tempering.enabled);
 }
 
 TEST(TemperingSection, GeometricLadderFromRungsAndHottestBeta) {
-  const JobSpec job = parse_job_text(
-      job_text(kSampler, "[tempering]\nrungs = 5\nhottest_beta = 0.02\nswap_every = 7\ntune = true\nrecord = \"all\"\n"),
-      "job.toml");
+  const JobSpec job =
+      parse_job_text(job_text(kSampler,
+                              "[tempering]\nrungs = 5\nhottest_beta = 0.02\nswap_every = 7\ntune = "
+                              "true\nrecord = \"all\"\n"),
+                     "job.toml");
   const TemperingSpec& t = job.tempering;
   EXPECT_TRUE(t.enabled);
   EXPECT_EQ(t.rungs, 5u);
@@ -46,7 +50,8 @@ TEST(TemperingSection, GeometricLadderFromRungsAndHottestBeta) {
 }
 
 TEST(TemperingSection, ListedBetasDefaults) {
-  const JobSpec job = parse_job_text(job_text(kSampler, "[tempering]\nbetas = [2.0, 1, 0.25, 0]\n"), "job.toml");
+  const JobSpec job =
+      parse_job_text(job_text(kSampler, "[tempering]\nbetas = [2.0, 1, 0.25, 0]\n"), "job.toml");
   EXPECT_EQ(job.tempering.rungs, 4u);
   EXPECT_EQ(ladder_betas(job), (std::vector<double>{2.0, 1.0, 0.25, 0.0}));
   EXPECT_EQ(job.tempering.swap_every, 10u);
@@ -82,29 +87,44 @@ TEST_P(BadTemperingSection, IsAnInputErrorWithItsLine) {
 INSTANTIATE_TEST_SUITE_P(
     Cases, BadTemperingSection,
     ::testing::Values(
-        BadTempering{"unknown key", kSampler, "[tempering]\nrungs = 4\nhottest_beta = 0.1\nladders = 2\n", 3,
+        BadTempering{"unknown key", kSampler,
+                     "[tempering]\nrungs = 4\nhottest_beta = 0.1\nladders = 2\n", 3,
                      "'tempering.ladders': unknown key"},
-        BadTempering{"rungs missing", kSampler, "[tempering]\nhottest_beta = 0.1\n", 0, "'tempering.rungs'"},
-        BadTempering{"one rung", kSampler, "[tempering]\nrungs = 1\nhottest_beta = 0.1\n", 1, "'tempering.rungs'"},
-        BadTempering{"hottest above target", kSampler, "[tempering]\nrungs = 4\nhottest_beta = 3.0\n", 2,
+        BadTempering{"rungs missing", kSampler, "[tempering]\nhottest_beta = 0.1\n", 0,
+                     "'tempering.rungs'"},
+        BadTempering{"one rung", kSampler, "[tempering]\nrungs = 1\nhottest_beta = 0.1\n", 1,
+                     "'tempering.rungs'"},
+        BadTempering{"hottest above target", kSampler,
+                     "[tempering]\nrungs = 4\nhottest_beta = 3.0\n", 2,
                      "strictly between 0 and the target"},
-        BadTempering{"hottest zero", kSampler, "[tempering]\nrungs = 4\nhottest_beta = 0\n", 2, "list betas"},
-        BadTempering{"both forms", kSampler, "[tempering]\nbetas = [2.0, 1.0]\nrungs = 2\n", 2, "conflicts"},
+        BadTempering{"hottest zero", kSampler, "[tempering]\nrungs = 4\nhottest_beta = 0\n", 2,
+                     "list betas"},
+        BadTempering{"both forms", kSampler, "[tempering]\nbetas = [2.0, 1.0]\nrungs = 2\n", 2,
+                     "conflicts"},
         BadTempering{"betas not decreasing", kSampler, "[tempering]\nbetas = [2.0, 1.0, 1.0]\n", 1,
                      "decrease strictly"},
-        BadTempering{"betas not numbers", kSampler, "[tempering]\nbetas = [2.0, \"hot\"]\n", 1, "list of numbers"},
+        BadTempering{"betas not numbers", kSampler, "[tempering]\nbetas = [2.0, \"hot\"]\n", 1,
+                     "list of numbers"},
         BadTempering{"first beta not the target", kSampler, "[tempering]\nbetas = [1.0, 0.5]\n", 1,
                      "sampler.beta = 2"},
-        BadTempering{"swap_every zero", kSampler, "[tempering]\nrungs = 3\nhottest_beta = 0.5\nswap_every = 0\n", 3,
+        BadTempering{"swap_every zero", kSampler,
+                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\nswap_every = 0\n", 3,
                      "'tempering.swap_every'"},
-        BadTempering{"tune not boolean", kSampler, "[tempering]\nrungs = 3\nhottest_beta = 0.5\ntune = \"yes\"\n", 3,
+        BadTempering{"tune not boolean", kSampler,
+                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\ntune = \"yes\"\n", 3,
                      "true or false"},
-        BadTempering{"tune without burn-in", "kernel = \"flip\"\nbeta = 2.0\nsteps = 1000\nburn_in = 0\nchains = 3\nseed = 9",
-                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\ntune = true\n", 3, "burn_in is 0"},
-        BadTempering{"record", kSampler, "[tempering]\nrungs = 3\nhottest_beta = 0.5\nrecord = \"hot\"\n", 3,
+        BadTempering{
+            "tune without burn-in",
+            "kernel = \"flip\"\nbeta = 2.0\nsteps = 1000\nburn_in = 0\nchains = 3\nseed = 9",
+            "[tempering]\nrungs = 3\nhottest_beta = 0.5\ntune = true\n", 3, "burn_in is 0"},
+        BadTempering{"record", kSampler,
+                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\nrecord = \"hot\"\n", 3,
                      "\"target\" or \"all\""},
-        BadTempering{"recombination", "kernel = \"recombination\"\nbeta = 2.0\nsteps = 1000\nburn_in = 100\nchains = 3\nseed = 9",
-                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\n", 0, "recombination ignores beta"}),
+        BadTempering{"recombination",
+                     "kernel = \"recombination\"\nbeta = 2.0\nsteps = 1000\nburn_in = 100\nchains "
+                     "= 3\nseed = 9",
+                     "[tempering]\nrungs = 3\nhottest_beta = 0.5\n", 0,
+                     "recombination ignores beta"}),
     [](const auto& info) {
       std::string name = info.param.name;
       for (char& ch : name)

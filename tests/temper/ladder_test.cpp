@@ -1,12 +1,13 @@
 // The ladder: geometric rungs, statistics worked out by hand, exact save/restore, the pure swap
 // round reproducing the ladder from separately held chains, tuning, and beta in chain snapshots.
+#include "planmill/temper/ladder.hpp"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
 #include <cstdio>
 
 #include "planmill/seed/seed_plan.hpp"
-#include "planmill/temper/ladder.hpp"
 #include "small_graphs.hpp"
 
 namespace planmill {
@@ -18,7 +19,8 @@ TEST(GeometricBetas, EqualRatiosAndExactEnds) {
   EXPECT_EQ(b.front(), 2.0);
   EXPECT_EQ(b.back(), 0.02);
   // Ratio (0.02 / 2)^(1/4) = 0.01^(1/4) = 10^(-1/2).
-  for (std::size_t r = 1; r < b.size(); ++r) EXPECT_NEAR(b[r] / b[r - 1], 1.0 / std::sqrt(10.0), 1e-12);
+  for (std::size_t r = 1; r < b.size(); ++r)
+    EXPECT_NEAR(b[r] / b[r - 1], 1.0 / std::sqrt(10.0), 1e-12);
   EXPECT_THROW((void)geometric_betas(1.0, 0.0, 4), std::invalid_argument);
   EXPECT_THROW((void)geometric_betas(1.0, 2.0, 4), std::invalid_argument);
   EXPECT_THROW((void)geometric_betas(1.0, 0.5, 1), std::invalid_argument);
@@ -118,7 +120,8 @@ TEST_P(LadderKinds, SaveRestoreMidRunEqualsAnUninterruptedLadder) {
   EXPECT_EQ(resumed.save(), original.save());
 }
 
-INSTANTIATE_TEST_SUITE_P(Kernels, LadderKinds, ::testing::Values(KernelKind::merge_split, KernelKind::flip));
+INSTANTIATE_TEST_SUITE_P(Kernels, LadderKinds,
+                         ::testing::Values(KernelKind::merge_split, KernelKind::flip));
 
 TEST(Ladder, RejectsASnapshotOfAnotherLadder) {
   Fixture f;
@@ -155,11 +158,13 @@ TEST(Ladder, SwapRoundOverSeparateChainsReproducesTheLadder) {
     ladder.step();
     for (auto& c : chains) c.step();
     if (step % setup.swap_every != 0) continue;
-    for (std::size_t r = 0; r < 4; ++r) energy[r] = chains[on_rung[r]].state().rules.energy(chains[on_rung[r]].state().plan);
+    for (std::size_t r = 0; r < 4; ++r)
+      energy[r] = chains[on_rung[r]].state().rules.energy(chains[on_rung[r]].state().plan);
     (void)swap_round({setup.betas, round++}, energy, on_rung, accepted, swap_rng);
     for (std::size_t r = 0; r < 4; ++r) chains[on_rung[r]].set_beta(setup.betas[r]);
   }
-  for (std::size_t i = 0; i < 4; ++i) EXPECT_TRUE(chains[i].state().plan == ladder.replica(i).state().plan) << i;
+  for (std::size_t i = 0; i < 4; ++i)
+    EXPECT_TRUE(chains[i].state().plan == ladder.replica(i).state().plan) << i;
   for (std::size_t r = 0; r < 4; ++r) EXPECT_EQ(on_rung[r], ladder.replica_on(r));
   EXPECT_GT(ladder.statistics().swap_accepts[0], 0u);
 }
@@ -193,8 +198,10 @@ TEST(Ladder, TuningEqualisesNeighbourAcceptanceAndFreezes) {
     std::printf("  %s: betas", what);
     for (double b : l.betas()) std::printf(" %.3f", b);
     std::printf(", acceptance");
-    for (std::size_t r = 0; r + 1 < l.rungs(); ++r) std::printf(" %.3f", l.statistics().swap_acceptance(r));
-    std::printf(", round trips %llu\n", static_cast<unsigned long long>(l.statistics().round_trips));
+    for (std::size_t r = 0; r + 1 < l.rungs(); ++r)
+      std::printf(" %.3f", l.statistics().swap_acceptance(r));
+    std::printf(", round trips %llu\n",
+                static_cast<unsigned long long>(l.statistics().round_trips));
   };
   show("untuned", untuned);
   show("tuned", tuned);
@@ -223,7 +230,8 @@ TEST(ChainBeta, SnapshotCarriesBetaAndFormatOneMeansTheSetupBeta) {
   std::string old = a.save();
   const auto header_end = old.find('\n', old.find('\n') + 1);
   std::string header = old.substr(0, header_end);
-  header = "planmill-chain 1" + header.substr(header.find('\n'), header.rfind(' ') - header.find('\n'));
+  header =
+      "planmill-chain 1" + header.substr(header.find('\n'), header.rfind(' ') - header.find('\n'));
   Chain c(s, f.start());
   c.set_beta(3.0);
   c.restore(header + old.substr(header_end));

@@ -89,17 +89,22 @@ inline LadderLawResult check_ladder_law(const LadderLawCase& c) {
   setup.swap_every = c.swap_every;
   setup.wrong_swap_sign = c.wrong_swap_sign;
   Ladder ladder(setup, {start_plan});
-  if (c.tune) ladder.tune(100 * thin);
-  else ladder.run(100 * thin);
+  if (c.tune)
+    ladder.tune(100 * thin);
+  else
+    ladder.run(100 * thin);
   std::vector<std::uint64_t> seen(table.plans.size(), 0);
   for (std::uint64_t n = 0; n < c.samples; ++n) {
     ladder.run(thin);
     const auto it = index.find(canonical(ladder.on_rung(0).state().plan.assignment(), c.districts));
-    if (it == index.end()) ++result.invalid;
-    else ++seen[it->second];
+    if (it == index.end())
+      ++result.invalid;
+    else
+      ++seen[it->second];
   }
   for (std::size_t r = 0; r + 1 < ladder.rungs(); ++r)
-    result.lowest_pair_acceptance = std::min(result.lowest_pair_acceptance, ladder.statistics().swap_acceptance(r));
+    result.lowest_pair_acceptance =
+        std::min(result.lowest_pair_acceptance, ladder.statistics().swap_acceptance(r));
 
   // 4. Chi-square (pooling expected counts below 5) and total variation.
   const auto total = static_cast<double>(c.samples);

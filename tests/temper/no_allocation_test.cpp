@@ -49,8 +49,8 @@ TEST_P(NoAllocation, LadderStepsAfterWarmUp) {
   EXPECT_GT(ladder.statistics().swap_accepts[0], 0u);
 }
 
-INSTANTIATE_TEST_SUITE_P(Kernels, NoAllocation, ::testing::Values(KernelKind::flip, KernelKind::merge_split));
+INSTANTIATE_TEST_SUITE_P(Kernels, NoAllocation,
+                         ::testing::Values(KernelKind::flip, KernelKind::merge_split));
 
 }  // namespace
 }  // namespace planmill
-

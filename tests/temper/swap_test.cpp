@@ -1,12 +1,12 @@
 // The swap round on its own: the acceptance probability against the formula of METHODS.md
 // section 4 (Hukushima & Nemoto 1996), the always-accepted case, which pairs each round proposes,
 // and a fixed use of the random stream.
+#include "planmill/temper/swap.hpp"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
 #include <vector>
-
-#include "planmill/temper/swap.hpp"
 
 namespace planmill {
 namespace {

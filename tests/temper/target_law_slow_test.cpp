@@ -56,14 +56,16 @@ TEST_P(SlowTargetLaw, MatchesTheExactLaw) {
   const auto [which, seed] = GetParam();
   const auto r = test::check_ladder_law(make_case(cases().at(which), seed));
   std::printf("  %s, seed %llu: TV %.4f (independent draws %.4f), p %.3g\n", cases()[which].name,
-              static_cast<unsigned long long>(seed), r.total_variation, r.noise_total_variation, r.p_value);
+              static_cast<unsigned long long>(seed), r.total_variation, r.noise_total_variation,
+              r.p_value);
   EXPECT_EQ(r.invalid, 0u);
   EXPECT_GE(r.p_value, kSelftestMinPValue);
   EXPECT_LE(r.total_variation, 2.0 * r.noise_total_variation);
 }
 
 INSTANTIATE_TEST_SUITE_P(Cases, SlowTargetLaw,
-                         ::testing::Combine(::testing::Range<std::size_t>(0, 5), ::testing::Values(1u, 2u, 3u)));
+                         ::testing::Combine(::testing::Range<std::size_t>(0, 5),
+                                            ::testing::Values(1u, 2u, 3u)));
 
 }  // namespace
 }  // namespace planmill

@@ -42,22 +42,26 @@ test::LadderLawCase merge_split_case(std::vector<double> betas) {
 }
 
 void report(const test::LadderLawResult& r) {
-  std::printf("  %zu plans, thin %llu: TV %.4f (independent draws: %.4f), p %.3g, lowest swap acceptance %.2f\n",
-              r.valid_plans, static_cast<unsigned long long>(r.thin), r.total_variation, r.noise_total_variation,
-              r.p_value, r.lowest_pair_acceptance);
+  std::printf(
+      "  %zu plans, thin %llu: TV %.4f (independent draws: %.4f), p %.3g, lowest swap acceptance "
+      "%.2f\n",
+      r.valid_plans, static_cast<unsigned long long>(r.thin), r.total_variation,
+      r.noise_total_variation, r.p_value, r.lowest_pair_acceptance);
 }
 
 void expect_pass(const test::LadderLawResult& r) {
   report(r);
   EXPECT_EQ(r.invalid, 0u);
-  EXPECT_GE(r.p_value, kSelftestMinPValue) << "TV " << r.total_variation << " (noise " << r.noise_total_variation
-                                           << "), thin " << r.thin;
+  EXPECT_GE(r.p_value, kSelftestMinPValue) << "TV " << r.total_variation << " (noise "
+                                           << r.noise_total_variation << "), thin " << r.thin;
   EXPECT_LE(r.total_variation, 2.0 * r.noise_total_variation) << "p " << r.p_value;
   // Swaps must really happen, or the check says nothing about them.
   EXPECT_GT(r.lowest_pair_acceptance, 0.05);
 }
 
-TEST(TargetLaw, FlipLadderOfTwoRungs) { expect_pass(test::check_ladder_law(flip_case({1.0, 0.3}))); }
+TEST(TargetLaw, FlipLadderOfTwoRungs) {
+  expect_pass(test::check_ladder_law(flip_case({1.0, 0.3})));
+}
 
 TEST(TargetLaw, FlipLadderOfFourRungs) {
   expect_pass(test::check_ladder_law(flip_case(geometric_betas(1.0, 0.1, 4))));

@@ -45,7 +45,7 @@ struct LadderSetup {
 struct LadderStatistics {
   std::size_t rungs = 0;
   std::vector<std::uint64_t> swap_attempts, swap_accepts;  // per pair (r, r+1), r = 0..R-2
-  std::vector<std::uint64_t> steps_on_rung;  // [replica * rungs + rung]
+  std::vector<std::uint64_t> steps_on_rung;                // [replica * rungs + rung]
   // Katzgraber et al. (2006): per rung, steps spent there by replicas whose last end visited was
   // the target ("up": on their way to the hottest rung) or the hottest ("down").
   std::vector<std::uint64_t> up_steps, down_steps;
@@ -92,9 +92,13 @@ class Ladder {
   [[nodiscard]] std::uint64_t swap_rounds() const noexcept { return swap_rounds_; }
   [[nodiscard]] std::uint64_t ladder_index() const noexcept { return ladder_index_; }
   [[nodiscard]] const Chain& replica(std::size_t i) const { return replicas_.at(i); }
-  [[nodiscard]] const Chain& on_rung(std::size_t rung) const { return replicas_.at(replica_on_rung_.at(rung)); }
+  [[nodiscard]] const Chain& on_rung(std::size_t rung) const {
+    return replicas_.at(replica_on_rung_.at(rung));
+  }
   [[nodiscard]] std::size_t replica_on(std::size_t rung) const { return replica_on_rung_.at(rung); }
-  [[nodiscard]] std::size_t rung_of(std::size_t replica) const { return rung_of_replica_.at(replica); }
+  [[nodiscard]] std::size_t rung_of(std::size_t replica) const {
+    return rung_of_replica_.at(replica);
+  }
   [[nodiscard]] const LadderStatistics& statistics() const noexcept { return stats_; }
 
   // Text snapshot of every replica, the rung assignment, the betas, the swap stream and the
@@ -126,7 +130,7 @@ class Ladder {
   std::uint64_t steps_ = 0, swap_rounds_ = 0;
   bool tuned_ = false;
   LadderStatistics stats_;
-  std::vector<std::uint8_t> heading_;     // per replica
+  std::vector<std::uint8_t> heading_;      // per replica
   std::vector<std::uint64_t> trip_start_;  // per replica: step its current round trip began
 };
 
