@@ -1,19 +1,19 @@
-// planmill diagnose --traces FILE.csv: convergence diagnostics per quantity and a verdict.
-// Exit status: 0 pass, 3 fail, 2 bad input.
-#include <cmath>
-#include <cstdio>
+// planmill diagnose: convergence diagnostics per quantity and a verdict, either of a run dir
+// (every observable across its chains; the result also goes into RUNDIR/manifest.json) or of a
+// long trace CSV (--traces). Exit status: 0 pass, 3 fail, 2 bad input.
 #include <filesystem>
-#include <fstream>
 #include <iostream>
+#include <memory>
 #include <nlohmann/json.hpp>
 #include <string>
-#include <unistd.h>
 
 #include "cli/commands.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/diagnose/trace_csv.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/io/atomic_file.hpp"
+#include "planmill/manifest/manifest.hpp"
+#include "planmill/manifest/run_diagnostics.hpp"
 
 namespace planmill::cli {
 namespace {
@@ -24,42 +24,9 @@ struct DiagnoseOptions {
   std::string json;
   double rhat_max = 1.01;
   double ess_min = 400.0;
+  bool rhat_max_given = false, ess_min_given = false;
   std::size_t burn_in = 0;
 };
-
-std::string cell(double v, const char* format) {
-  if (std::isnan(v)) return "NaN";
-  char buffer[64];
-  std::snprintf(buffer, sizeof buffer, format, v);
-  return buffer;
-}
-
-void print_table(const diagnose::Verdict& verdict, std::ostream& out) {
-  std::vector<std::vector<std::string>> rows{
-      {"quantity", "rhat", "ess_bulk", "ess_tail", "mcse_mean", "mean", "sd", "note"}};
-  for (const auto& q : verdict.table) {
-    rows.push_back({q.name, cell(q.rhat, "%.4f"), cell(q.ess_bulk, "%.0f"), cell(q.ess_tail, "%.0f"),
-                    cell(q.mcse_mean, "%.3g"), cell(q.mean, "%.6g"), cell(q.sd, "%.4g"), q.note});
-  }
-  std::vector<std::size_t> width(rows[0].size(), 0);
-  for (const auto& r : rows) {
-    for (std::size_t i = 0; i < r.size(); ++i) width[i] = std::max(width[i], r[i].size());
-  }
-  for (const auto& r : rows) {
-    std::string line;
-    for (std::size_t i = 0; i < r.size(); ++i) {
-      const std::size_t pad = width[i] - r[i].size();
-      if (i == 0 || i + 1 == r.size()) {
-        line += r[i] + std::string(i + 1 == r.size() ? 0 : pad, ' ');  // text left-aligned
-      } else {
-        line += std::string(pad, ' ') + r[i];  // numbers right-aligned
-      }
-      if (i + 1 < r.size()) line += "  ";
-    }
-    while (!line.empty() && line.back() == ' ') line.pop_back();
-    out << line << "\n";
-  }
-}
 
 nlohmann::json to_json(const diagnose::Verdict& verdict, const DiagnoseOptions& o) {
   auto number = [](double v) { return std::isnan(v) ? nlohmann::json(nullptr) : nlohmann::json(v); };
@@ -85,46 +52,77 @@ nlohmann::json to_json(const diagnose::Verdict& verdict, const DiagnoseOptions& 
           {"failures", failures}};
 }
 
-// Write to a temporary file beside the target, then rename: readers never see half a file.
-int run_diagnose(const DiagnoseOptions& o) {
-  if (o.traces.empty()) {
-    if (!o.run_dir.empty()) {
-      std::cerr << "planmill: error: 'diagnose RUNDIR' is not yet available in this version; "
-                   "use --traces FILE.csv\n";
-    } else {
-      std::cerr << "planmill: error: diagnose needs --traces FILE.csv\n";
-    }
-    return 2;
-  }
-  if (!o.run_dir.empty()) {
-    throw InputError({o.run_dir, 0, {}}, "give either a run dir or --traces, not both");
-  }
+void check_thresholds(const DiagnoseOptions& o) {
   if (!(o.rhat_max > 1.0)) throw InputError({{}, 0, "--rhat-max"}, "must be greater than 1");
   if (!(o.ess_min >= 0.0)) throw InputError({{}, 0, "--ess-min"}, "must not be negative");
+}
 
+int diagnose_trace_file(const DiagnoseOptions& o) {
   const diagnose::Traces traces = diagnose::read_traces(o.traces, o.burn_in);
   std::vector<diagnose::QuantityDiagnostics> table;
   table.reserve(traces.quantity_names.size());
   for (std::size_t q = 0; q < traces.quantity_names.size(); ++q) {
     table.push_back(diagnose::diagnose_quantity(traces.quantity_names[q], traces.matrix(q)));
   }
-  const auto verdict = diagnose::judge(std::move(table), {o.rhat_max, o.ess_min});
+  const diagnose::VerdictRule rule{o.rhat_max, o.ess_min};
+  const auto verdict = diagnose::judge(std::move(table), rule);
 
   std::cout << traces.chain_labels.size() << " chains x " << traces.draws << " draws, "
             << traces.quantity_names.size() << " quantities (burn-in " << o.burn_in << ")\n";
-  print_table(verdict, std::cout);
-  if (verdict.pass) {
-    std::cout << "verdict: pass (R-hat < " << o.rhat_max << ", bulk and tail ESS > " << o.ess_min
-              << " for every quantity)\n";
-  } else {
-    std::cout << "verdict: fail (" << verdict.failures.size() << " of " << verdict.table.size()
-              << " quantities)\n";
-    for (const auto& f : verdict.failures) {
-      std::cout << "  " << f.name << ": " << f.problem << "\n    -> " << f.suggestion << "\n";
-    }
-  }
+  print_verdict_table(verdict, std::cout);
+  print_verdict(verdict, rule, std::cout);
   if (!o.json.empty()) write_file_atomically(o.json, to_json(verdict, o).dump(2) + "\n");
   return verdict.pass ? 0 : 3;
+}
+
+int diagnose_run_dir(const DiagnoseOptions& o) {
+  if (!std::filesystem::is_directory(o.run_dir)) {
+    throw InputError({o.run_dir, 0, {}}, "is not a folder",
+                     "give the run dir that 'planmill run' wrote, or --traces FILE.csv");
+  }
+  const RunReader reader(o.run_dir);
+  const auto problems = reader.verify();
+  RunVerdictRule rule;
+  if (o.rhat_max_given && o.ess_min_given) {
+    rule = {{o.rhat_max, o.ess_min}, "command line"};
+  } else {
+    rule = verdict_rule_of_run(reader);
+    if (o.rhat_max_given) rule.rule.rhat_max = o.rhat_max;
+    if (o.ess_min_given) rule.rule.ess_min = o.ess_min;
+    if (o.rhat_max_given || o.ess_min_given) rule.source = "command line and " + rule.source;
+  }
+  RunDiagnostics d = diagnose_run(reader, rule.rule, {.burn_in = o.burn_in, .problems = problems});
+  d.rule_source = rule.source;
+
+  std::cout << d.chains.size() << " chains x " << d.draws << " draws, "
+            << reader.observable_names().size() << " observables (records after the run's burn-in of "
+            << reader.state().burn_in << " steps; --burn-in " << o.burn_in << " more records)\n"
+            << "thresholds: R-hat < " << d.rule.rhat_max << ", ESS > " << d.rule.ess_min << " ("
+            << d.rule_source << ")\n";
+  for (const auto& note : d.notes) std::cout << "note: " << note << "\n";
+  for (const auto& l : d.left_out) std::cout << "left out: chain " << l.chain << ": " << l.why << "\n";
+  print_verdict_table(d.verdict, std::cout);
+  print_verdict(d.verdict, d.rule, std::cout);
+  if (!d.left_out.empty()) {
+    std::cout << "verdict: fail (" << d.left_out.size()
+              << " chain(s) left out because their records are damaged; see planmill merge)\n";
+  }
+  write_manifest_diagnostics(reader, problems, d);
+  std::cout << "diagnostics written to " << reader.layout().manifest().string() << "\n";
+  if (!o.json.empty()) write_file_atomically(o.json, diagnostics_to_json(d).dump(2) + "\n");
+  return d.pass() ? 0 : 3;
+}
+
+int run_diagnose(const DiagnoseOptions& o) {
+  if (o.traces.empty() && o.run_dir.empty()) {
+    throw InputError({{}, 0, {}}, "diagnose needs a run dir or --traces FILE.csv",
+                     "e.g. planmill diagnose runs/demo");
+  }
+  if (!o.traces.empty() && !o.run_dir.empty()) {
+    throw InputError({o.run_dir, 0, {}}, "give either a run dir or --traces, not both");
+  }
+  check_thresholds(o);
+  return o.traces.empty() ? diagnose_run_dir(o) : diagnose_trace_file(o);
 }
 
 }  // namespace
@@ -132,13 +130,19 @@ int run_diagnose(const DiagnoseOptions& o) {
 void add_diagnose_command(CLI::App& app, Action& action) {
   auto options = std::make_shared<DiagnoseOptions>();
   auto* sub = app.add_subcommand("diagnose", "convergence diagnostics (R-hat, ESS, MCSE) and a verdict");
-  sub->add_option("rundir", options->run_dir, "run dir (not yet available; use --traces)");
+  sub->add_option("rundir", options->run_dir, "run dir: every observable across its chains");
   sub->add_option("--traces", options->traces, "long trace CSV: chain,draw,<quantity>...");
   sub->add_option("--json", options->json, "also write the table and verdict as JSON");
-  sub->add_option("--rhat-max", options->rhat_max, "pass only if R-hat < X (default 1.01)");
-  sub->add_option("--ess-min", options->ess_min, "pass only if bulk and tail ESS > N (default 400)");
-  sub->add_option("--burn-in", options->burn_in, "drop the first D draws of every chain");
-  sub->callback([&action, options] { action = [options] { return run_diagnose(*options); }; });
+  auto* rhat = sub->add_option("--rhat-max", options->rhat_max,
+                               "pass only if R-hat < X (default: the job's [verdict], else 1.01)");
+  auto* ess = sub->add_option("--ess-min", options->ess_min,
+                              "pass only if bulk and tail ESS > N (default: the job's [verdict], else 400)");
+  sub->add_option("--burn-in", options->burn_in, "drop the first D draws (records) of every chain");
+  sub->callback([&action, options, rhat, ess] {
+    options->rhat_max_given = rhat->count() > 0;
+    options->ess_min_given = ess->count() > 0;
+    action = [options] { return run_diagnose(*options); };
+  });
 }
 
 }  // namespace planmill::cli

@@ -1,0 +1,31 @@
+#pragma once
+// The manifest of a run folder (RUNDIR/manifest.json, docs/manifest.md): provenance (versions,
+// job and input hashes, sessions), an index of chains and plan files with their checksums and
+// integrity, totals, and the convergence diagnostics. Built from the committed run state, the
+// plan files and the input files as they are now; written atomically.
+#include <cstdint>
+#include <nlohmann/json.hpp>
+#include <vector>
+
+#include "planmill/manifest/run_diagnostics.hpp"
+#include "planmill/run/run_reader.hpp"
+
+namespace planmill {
+
+inline constexpr std::int64_t kManifestSchemaVersion = 1;
+
+// `problems` is reader.verify(); `diagnostics` goes in as the "diagnostics" section.
+[[nodiscard]] nlohmann::json build_manifest(const RunReader& reader,
+                                            const std::vector<ChainProblem>& problems,
+                                            const RunDiagnostics& diagnostics);
+
+// Replaces RUNDIR/manifest.json atomically (a reader sees the old or the new file, never half).
+void write_manifest(const RunLayout& layout, const nlohmann::json& manifest);
+
+// Replaces only the "diagnostics" section of RUNDIR/manifest.json; when there is no manifest of
+// this schema version yet (or it cannot be parsed), builds and writes the whole manifest.
+// Returns true when a whole new manifest was written.
+bool write_manifest_diagnostics(const RunReader& reader, const std::vector<ChainProblem>& problems,
+                                const RunDiagnostics& diagnostics);
+
+}  // namespace planmill
