@@ -143,20 +143,20 @@ BENCHMARK(BM_ChainOnly)->Unit(benchmark::kMicrosecond);
 // Args: recording interval, self-contained plan every K records (1 = self-contained only).
 BENCHMARK(BM_ChainRecording)
     ->ArgNames({"interval", "full_every"})
-    ->Args({1, 64})
-    ->Args({10, 64})
-    ->Args({100, 64})
+    ->Args({1, 128})
+    ->Args({10, 128})
+    ->Args({100, 128})
     ->Args({100, 1})
     ->Unit(benchmark::kMicrosecond);
 // Long intervals: enough steps for 100 and 40 records.
 BENCHMARK(BM_ChainRecording)
     ->ArgNames({"interval", "full_every"})
-    ->Args({1000, 64})
+    ->Args({1000, 128})
     ->Iterations(100000)
     ->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ChainRecording)
     ->ArgNames({"interval", "full_every"})
-    ->Args({10000, 64})
+    ->Args({10000, 128})
     ->Iterations(400000)
     ->Unit(benchmark::kMicrosecond);
 

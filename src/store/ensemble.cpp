@@ -429,21 +429,34 @@ std::vector<std::uint64_t> EnsembleReader::record_steps(std::uint64_t chain) con
 
 std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
                                                      std::size_t record) const {
+  std::vector<DistrictIndex> plan;
+  for_each_plan(chain, record, record, [&](std::size_t, std::span<const DistrictIndex> p) {
+    plan.assign(p.begin(), p.end());
+  });
+  return plan;
+}
+
+void EnsembleReader::for_each_plan(
+    std::uint64_t chain, std::size_t first, std::size_t last,
+    const std::function<void(std::size_t, std::span<const DistrictIndex>)>& visit) const {
   const Impl& m = *impl_;
   const auto& index = m.index(chain);
   const std::size_t records = index.size() / kIndexColumns;
-  const std::string where = chain_group_name(chain) + " record " + std::to_string(record);
-  if (record >= records) throw std::out_of_range("EnsembleReader::read_plan: no " + where);
-  std::size_t first = record;
+  const std::string where =
+      chain_group_name(chain) + " records " + std::to_string(first) + ".." + std::to_string(last);
+  if (first > last || last >= records)
+    throw std::out_of_range("EnsembleReader: no " + where + " (" + std::to_string(records) +
+                            " records)");
+  std::size_t start = first;
   auto self_contained = [&](std::size_t r) {
     const std::uint64_t kind = index[r * kIndexColumns + 3];
     return kind < kRecordKindCount && is_self_contained(static_cast<RecordKind>(kind));
   };
-  while (first > 0 && !self_contained(first)) --first;
-  if (!self_contained(first))
-    throw StoreError(m.path, "reading " + where, "no full plan before it");
-  const std::uint64_t begin = index[first * kIndexColumns + 1];
-  const std::uint64_t end = index[record * kIndexColumns + 1] + index[record * kIndexColumns + 2];
+  while (start > 0 && !self_contained(start)) --start;
+  if (!self_contained(start))
+    throw StoreError(m.path, "reading " + where, "no self-contained plan before it");
+  const std::uint64_t begin = index[start * kIndexColumns + 1];
+  const std::uint64_t end = index[last * kIndexColumns + 1] + index[last * kIndexColumns + 2];
   if (end < begin) throw StoreError(m.path, "reading " + where, "inconsistent plan_records");
   H5Group g = m.group(chain);
   H5Dataset d = m.dataset(g, "plan_bytes");
@@ -454,7 +467,7 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
   read_rows(d.get(), H5T_NATIVE_UINT8, bytes.data(), begin, end - begin, 1, false, m.path,
             ("reading plan_bytes for " + where).c_str());
   std::vector<DistrictIndex> plan(m.header.unit_count);
-  for (std::size_t r = first; r <= record; ++r) {
+  for (std::size_t r = start; r <= last; ++r) {
     const std::uint64_t* row = &index[r * kIndexColumns];
     if (row[1] < begin || row[1] + row[2] > end || row[3] >= kRecordKindCount)
       throw StoreError(m.path, "reading " + where, "inconsistent plan_records");
@@ -463,8 +476,8 @@ std::vector<DistrictIndex> EnsembleReader::read_plan(std::uint64_t chain,
                        &m.header.adjacency))
       throw StoreError(m.path, "reading " + where,
                        "record " + std::to_string(r) + " does not decode");
+    if (r >= first) visit(r, plan);
   }
-  return plan;
 }
 
 std::vector<std::string> EnsembleReader::observable_names(std::uint64_t chain) const {

@@ -100,6 +100,17 @@ void expect_round_trip(std::size_t units, std::size_t k, std::size_t full_every,
     ASSERT_EQ(reader.record_count(c), chains[c].size());
     for (std::size_t r = 0; r < chains[c].size(); ++r)
       ASSERT_EQ(reader.read_plan(c, r), chains[c][r]) << r;
+    std::size_t next = 3;
+    reader.for_each_plan(
+        c, 3, chains[c].size() - 1, [&](std::size_t r, std::span<const DistrictIndex> plan) {
+          ASSERT_EQ(r, next++);
+          ASSERT_TRUE(
+              std::equal(plan.begin(), plan.end(), chains[c][r].begin(), chains[c][r].end()))
+              << r;
+        });
+    EXPECT_EQ(next, chains[c].size());
+    EXPECT_THROW(reader.for_each_plan(c, 0, chains[c].size(), [](auto, auto) {}),
+                 std::out_of_range);
     EXPECT_EQ(reader.observable_names(c), (std::vector<std::string>{"index", "first_label"}));
     const auto obs = reader.read_observables(c);
     ASSERT_EQ(obs.size(), 2 * chains[c].size());

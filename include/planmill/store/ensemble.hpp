@@ -3,6 +3,7 @@
 // plans in compact form, a table of observables per recorded plan and the step-outcome counters.
 // Layout in docs/format.md. Every HDF5 failure throws StoreError (store/hdf5_handle.hpp).
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <span>
 #include <string>
@@ -26,7 +27,7 @@ struct EnsembleHeader {
 };
 
 struct EnsembleWriterOptions {
-  std::size_t full_every = 64;        // a full plan every this many records of a chain
+  std::size_t full_every = 128;       // a self-contained record every this many records of a chain
   std::size_t chunk_bytes = 1 << 16;  // chunk size of the byte stream; buffered until a chunk fills
   int deflate_level = 4;
 };
@@ -86,6 +87,11 @@ class EnsembleReader {
   // Plan of record r: decoded from the nearest preceding full plan.
   [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain_index,
                                                      std::size_t record) const;
+  // Calls visit(record, plan) for records first..last in order, decoding each record once: the
+  // way to read many plans (read_plan starts again from a self-contained record every time).
+  void for_each_plan(
+      std::uint64_t chain_index, std::size_t first, std::size_t last,
+      const std::function<void(std::size_t, std::span<const DistrictIndex>)>& visit) const;
   [[nodiscard]] std::vector<std::string> observable_names(std::uint64_t chain_index) const;
   // Row-major records x observables.
   [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain_index) const;
