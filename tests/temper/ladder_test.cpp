@@ -8,6 +8,7 @@
 #include <cstdio>
 
 #include "planmill/seed/seed_plan.hpp"
+#include "planmill/temper/ladder_summary.hpp"
 #include "small_graphs.hpp"
 
 namespace planmill {
@@ -74,6 +75,15 @@ TEST(LadderStatistics, RoundTripsWorkedOutByHand) {
   // "down" (Katzgraber et al. 2006's f(T) is 1 at the coldest and 0 at the hottest end).
   EXPECT_DOUBLE_EQ(s.up_fraction(0), 1.0);
   EXPECT_DOUBLE_EQ(s.up_fraction(1), 0.0);
+
+  const auto summary = ladder_summary(ladder);
+  EXPECT_EQ(summary["round_trips"], 499u);
+  EXPECT_DOUBLE_EQ(summary["mean_round_trip_steps"].get<double>(), 1995.0 / 499.0);
+  EXPECT_EQ(summary["pairs"][0]["accepted"], 500u);
+  EXPECT_EQ(summary["time_on_rung"][1][1], 0.5);
+  EXPECT_EQ(summary["betas"], (std::vector<double>{1.0, 0.5}));
+  Ladder fresh(f.setup(KernelKind::flip, {1.0, 0.5}, 1), {f.start()});
+  EXPECT_TRUE(ladder_summary(fresh)["pairs"][0]["acceptance"].is_null());  // nothing measured yet
 }
 
 TEST(LadderStatistics, TimeFractionsSumToOneAndRungsKeepTheirBetas) {

@@ -91,6 +91,7 @@ class Ladder {
   [[nodiscard]] std::uint64_t steps() const noexcept { return steps_; }
   [[nodiscard]] std::uint64_t swap_rounds() const noexcept { return swap_rounds_; }
   [[nodiscard]] std::uint64_t ladder_index() const noexcept { return ladder_index_; }
+  [[nodiscard]] std::uint64_t swap_every() const noexcept { return swap_every_; }
   [[nodiscard]] const Chain& replica(std::size_t i) const { return replicas_.at(i); }
   [[nodiscard]] const Chain& on_rung(std::size_t rung) const {
     return replicas_.at(replica_on_rung_.at(rung));
