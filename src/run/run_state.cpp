@@ -164,6 +164,16 @@ void write_run_state(const RunLayout& layout, const RunState& state) {
   write_file_atomically(layout.state_file().string(), to_json(state).dump(1) + "\n");
 }
 
+std::string encode_run_state(const RunState& state) { return to_json(state).dump(); }
+
+RunState decode_run_state(std::string_view text) {
+  try {
+    return from_json(json::parse(text));
+  } catch (const json::exception& e) {
+    throw std::invalid_argument(std::string("malformed run state: ") + e.what());
+  }
+}
+
 std::string utc_now_iso8601() {
   const auto now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
   std::tm tm{};

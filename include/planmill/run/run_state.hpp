@@ -14,6 +14,7 @@
 #include <filesystem>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "planmill/store/ensemble.hpp"
@@ -96,6 +97,11 @@ struct RunState {
 [[nodiscard]] RunState read_run_state(const RunLayout& layout);
 // Atomic replace (io/atomic_file.hpp).
 void write_run_state(const RunLayout& layout, const RunState& state);
+
+// The same JSON as text, e.g. to send a state (or the part of it one rank knows) between ranks.
+[[nodiscard]] std::string encode_run_state(const RunState& state);
+// Throws std::invalid_argument on malformed text.
+[[nodiscard]] RunState decode_run_state(std::string_view text);
 
 [[nodiscard]] std::string utc_now_iso8601();
 

@@ -1,0 +1,705 @@
+#include "planmill/run/runner.hpp"
+
+#include <fcntl.h>
+#include <mpi.h>
+#include <spdlog/spdlog.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cctype>
+#include <chrono>
+#include <csignal>
+#include <cstdio>
+#include <filesystem>
+#include <memory>
+#include <stdexcept>
+#include <vector>
+
+#include "planmill/base/error.hpp"
+#include "planmill/chain/chain.hpp"
+#include "planmill/diagnose/verdict.hpp"
+#include "planmill/io/atomic_file.hpp"
+#include "planmill/io/file_hash.hpp"
+#include "planmill/job/kernel_settings.hpp"
+#include "planmill/job/loaded_job.hpp"
+#include "planmill/run/observables.hpp"
+#include "planmill/run/run_reader.hpp"
+#include "planmill/run/run_state.hpp"
+#include "planmill/seed/seed_plan.hpp"
+#include "planmill/store/ensemble.hpp"
+#include "planmill/version.hpp"
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+using Clock = std::chrono::steady_clock;
+
+volatile std::sig_atomic_t g_stop_requested = 0;
+volatile std::sig_atomic_t g_checkpoint_requested = 0;
+extern "C" void on_stop_signal(int /*signal*/) { g_stop_requested = 1; }
+extern "C" void on_checkpoint_signal(int /*signal*/) { g_checkpoint_requested = 1; }
+
+// Seed plans draw from their own streams, apart from the chains' (keyed by the chain index).
+constexpr std::uint64_t kSeedPlanStreamBase = 1ULL << 62;
+
+struct World {
+  int rank = 0, size = 1;
+  [[nodiscard]] bool root() const { return rank == 0; }
+};
+
+World world() {
+  World w;
+  MPI_Comm_rank(MPI_COMM_WORLD, &w.rank);
+  MPI_Comm_size(MPI_COMM_WORLD, &w.size);
+  return w;
+}
+
+std::string broadcast_string(std::string text, const World& w) {
+  std::uint64_t size = text.size();
+  MPI_Bcast(&size, 1, MPI_UINT64_T, 0, MPI_COMM_WORLD);
+  text.resize(size);
+  MPI_Bcast(text.data(), static_cast<int>(size), MPI_CHAR, 0, MPI_COMM_WORLD);
+  (void)w;
+  return text;
+}
+
+// On rank 0: every rank's text, by rank; elsewhere: empty.
+std::vector<std::string> gather_strings(const std::string& mine, const World& w) {
+  const int size = static_cast<int>(mine.size());
+  std::vector<int> sizes(static_cast<std::size_t>(w.size)), offsets(sizes.size());
+  MPI_Gather(&size, 1, MPI_INT, sizes.data(), 1, MPI_INT, 0, MPI_COMM_WORLD);
+  std::string all;
+  if (w.root()) {
+    int total = 0;
+    for (std::size_t r = 0; r < sizes.size(); ++r) offsets[r] = total, total += sizes[r];
+    all.resize(static_cast<std::size_t>(total));
+  }
+  MPI_Gatherv(mine.data(), size, MPI_CHAR, all.data(), sizes.data(), offsets.data(), MPI_CHAR, 0,
+              MPI_COMM_WORLD);
+  std::vector<std::string> out;
+  if (w.root()) {
+    for (std::size_t r = 0; r < sizes.size(); ++r) {
+      out.push_back(all.substr(static_cast<std::size_t>(offsets[r]), static_cast<std::size_t>(sizes[r])));
+    }
+  }
+  return out;
+}
+
+// Runs `work` on rank 0 and shares how it went: a problem there ends every rank (rank 0 throws
+// the real error, the others RunFailedElsewhere).
+template <class Work>
+void on_root_then_agree(const World& w, Work&& work) {
+  int status = 0;
+  std::exception_ptr error;
+  if (w.root()) {
+    try {
+      work();
+    } catch (const InputError&) {
+      status = 2, error = std::current_exception();
+    } catch (const InfeasibleError&) {
+      status = 2, error = std::current_exception();
+    } catch (...) {
+      status = 1, error = std::current_exception();
+    }
+  }
+  MPI_Bcast(&status, 1, MPI_INT, 0, MPI_COMM_WORLD);
+  if (error) std::rethrow_exception(error);
+  if (status != 0) throw RunFailedElsewhere{status};
+}
+
+// Every rank does `work`; if any rank fails, all stop (the failing ones rethrow their error).
+template <class Work>
+void everywhere_then_agree(Work&& work) {
+  int status = 0;
+  std::exception_ptr error;
+  try {
+    work();
+  } catch (const InputError&) {
+    status = 2, error = std::current_exception();
+  } catch (const InfeasibleError&) {
+    status = 2, error = std::current_exception();
+  } catch (...) {
+    status = 1, error = std::current_exception();
+  }
+  int worst = 0;
+  MPI_Allreduce(&status, &worst, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
+  if (error) std::rethrow_exception(error);
+  if (worst != 0) throw RunFailedElsewhere{worst};
+}
+
+std::string host_name() {
+  char name[MPI_MAX_PROCESSOR_NAME] = {};
+  int length = 0;
+  MPI_Get_processor_name(name, &length);
+  return {name, static_cast<std::size_t>(length)};
+}
+
+void fsync_path(const fs::path& path) {
+  const int fd = ::open(path.c_str(), O_RDONLY);
+  if (fd < 0) throw std::runtime_error("cannot open " + path.string() + " to flush it to disk");
+  const int rc = ::fsync(fd);
+  ::close(fd);
+  if (rc != 0) throw std::runtime_error("cannot flush " + path.string() + " to disk");
+}
+
+std::string make_run_id(const std::string& job_text, std::uint64_t seed) {
+  const std::string now = utc_now_iso8601();
+  std::string stamp;
+  for (const char c : now) {
+    if (std::isdigit(static_cast<unsigned char>(c))) stamp.push_back(c);
+  }
+  const auto salt = std::chrono::system_clock::now().time_since_epoch().count();
+  return "run-" + stamp + "-" +
+         sha256_hex(job_text + std::to_string(seed) + std::to_string(salt)).substr(0, 8);
+}
+
+StoredCounters stored(const ChainCounters& c) {
+  return {c.steps, c.outcomes[static_cast<std::size_t>(StepResult::accepted)],
+          c.outcomes[static_cast<std::size_t>(StepResult::rejected)],
+          c.outcomes[static_cast<std::size_t>(StepResult::no_cut)],
+          c.outcomes[static_cast<std::size_t>(StepResult::invalid)]};
+}
+
+std::string duration_text(double seconds) {
+  if (!(seconds >= 0) || seconds > 1e8) return "?";
+  const auto s = static_cast<long long>(seconds + 0.5);
+  char text[32];
+  if (s >= 3600) {
+    std::snprintf(text, sizeof text, "%lldh%02lldm", s / 3600, (s / 60) % 60);
+  } else if (s >= 60) {
+    std::snprintf(text, sizeof text, "%lldm%02llds", s / 60, s % 60);
+  } else {
+    std::snprintf(text, sizeof text, "%llds", s);
+  }
+  return text;
+}
+
+// Plan files of segments the state does not list: left by a session that was killed before its
+// checkpoint, they hold nothing that counts, and their names will be written again.
+void remove_unlisted_plan_files(const RunLayout& layout, const RunState& state) {
+  if (!fs::exists(layout.plans_dir())) return;
+  for (const auto& entry : fs::directory_iterator(layout.plans_dir())) {
+    const std::string name = "plans/" + entry.path().filename().string();
+    if (name.rfind("plans/seg-", 0) != 0 || entry.path().extension() != ".h5") continue;
+    const bool listed = std::any_of(state.files.begin(), state.files.end(),
+                                    [&](const PlanFileEntry& f) { return f.file == name; });
+    if (!listed) {
+      spdlog::info("removing {}: written after the last checkpoint, replaced by this session",
+                   name);
+      fs::remove(entry.path());
+    }
+  }
+}
+
+struct LocalChain {
+  std::unique_ptr<Chain> chain;
+  ChainEntry entry;                      // as last committed
+  std::size_t handle = SIZE_MAX;         // in the open writer; SIZE_MAX: none yet this segment
+  std::uint64_t segment_records = 0;     // recorded since the last checkpoint
+};
+
+class ChainRunner {
+ public:
+  ChainRunner(const RunOptions& options, World w) : options_(options), w_(w) {}
+
+  RunOutcome run() {
+    prepare();
+    if (state_.finished && !options_.until_converged) {
+      RunOutcome out = outcome(RunEnd::nothing_to_do, Clock::now(), 0);
+      out.summary = "the run in " + out.run_dir + " has finished already; nothing to do";
+      return out;
+    }
+    build_chains();
+    return loop();
+  }
+
+ private:
+  // ---- setup ----
+  void prepare() {
+    everywhere_then_agree([&] {
+      loaded_ = std::make_unique<LoadedJob>(load_and_check_job(options_.job_path));
+      rules_ = make_rule_set(loaded_->job.rules, loaded_->graph, options_.job_path);
+    });
+    const JobSpec& job = loaded_->job;
+    const std::string dir = options_.output_dir ? *options_.output_dir : job.output.dir;
+    layout_ = RunLayout{dir};
+    const std::vector<std::string> hosts = gather_strings(host_name(), w_);
+    std::string encoded;
+    on_root_then_agree(w_, [&] {
+      if (dir.empty()) {
+        throw InputError({options_.job_path, 0, "output.dir"}, "names no output folder",
+                         "set [output] dir in the job file or give --output DIR");
+      }
+      RunState state = options_.resume ? resumed_state() : new_state();
+      if (!state.finished || options_.until_converged) {
+        state.sessions.push_back({utc_now_iso8601(), "", w_.size, hosts, ""});
+        write_run_state(layout_, state);
+      }
+      encoded = encode_run_state(state);
+    });
+    state_ = decode_run_state(broadcast_string(encoded, w_));
+    segment_ = state_.checkpoints;
+    names_ = state_.observable_names;
+    row_.assign(names_.size(), 0.0);
+    if (w_.root()) {
+      for (const auto& warning : loaded_->report.warnings) spdlog::warn("{}", warning);
+      if (state_.chains.size() < static_cast<std::size_t>(w_.size)) {
+        spdlog::warn("{} chains on {} ranks: {} ranks have nothing to do", state_.chains.size(),
+                     w_.size, static_cast<std::size_t>(w_.size) - state_.chains.size());
+      }
+    }
+  }
+
+  RunState new_state() {
+    const JobSpec& job = loaded_->job;
+    if (fs::exists(layout_.state_file())) {
+      throw InputError({layout_.state_file().string(), 0, ""}, "already holds a run",
+                       "add --resume to continue it, or choose another folder with --output");
+    }
+    fs::create_directories(layout_.plans_dir());
+    RunState fresh;
+    remove_unlisted_plan_files(layout_, fresh);  // a first session killed before its checkpoint
+    write_file_atomically(layout_.job_copy().string(), job.text);
+    RunState s;
+    s.run_id = make_run_id(job.text, job.sampler.seed);
+    s.planmill_version = kVersion;
+    s.git_commit = kGitCommit;
+    s.job_path = options_.job_path;
+    s.job_sha256 = sha256_hex(job.text);
+    s.inputs.push_back({"job", options_.job_path, s.job_sha256});
+    s.inputs.push_back({"units", job.map.units_path, sha256_file_hex(job.map.units_path)});
+    s.inputs.push_back(
+        {"adjacency", job.map.adjacency_path, sha256_file_hex(job.map.adjacency_path)});
+    if (loaded_->start) s.inputs.push_back({"start plan", job.start, sha256_file_hex(job.start)});
+    s.seed = job.sampler.seed;
+    s.target_steps = job.sampler.steps;
+    s.burn_in = job.sampler.burn_in;
+    s.record_every = job.sampler.record_every;
+    s.observable_names = observable_names(loaded_->graph, rules_);
+    for (std::uint64_t c = 0; c < job.sampler.chains; ++c) {
+      ChainEntry entry;
+      entry.index = c;
+      s.chains.push_back(std::move(entry));
+    }
+    return s;
+  }
+
+  RunState resumed_state() {
+    RunState s = read_run_state(layout_);
+    if (s.job_sha256 != sha256_hex(loaded_->job.text)) {
+      throw InputError({options_.job_path, 0, ""},
+                       "differs from the job this run started with (" +
+                           layout_.job_copy().string() + ")",
+                       "resume with the same job file, or start a new run with --output");
+    }
+    for (const auto& input : s.inputs) {
+      if (input.role == "job") continue;
+      if (!fs::exists(input.path) || sha256_file_hex(input.path) != input.sha256) {
+        throw InputError({input.path, 0, ""},
+                         "has changed since the run started (its SHA-256 differs)",
+                         "restore the " + input.role + " file the run started with");
+      }
+    }
+    remove_unlisted_plan_files(layout_, s);
+    return s;
+  }
+
+  void build_chains() {
+    everywhere_then_agree([&] {
+      const JobSpec& job = loaded_->job;
+      const KernelSettings kernel = make_kernel_settings(job);
+      for (const auto& entry : state_.chains) {
+        if (entry.index % static_cast<std::uint64_t>(w_.size) != static_cast<std::uint64_t>(w_.rank)) {
+          continue;
+        }
+        LocalChain local;
+        local.entry = entry;
+        ChainSetup setup{&loaded_->graph, rules_, kernel, state_.seed, entry.index};
+        if (!entry.snapshot.empty()) {
+          local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
+          local.chain->restore(entry.snapshot);
+        } else {
+          local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
+        }
+        chains_.push_back(std::move(local));
+      }
+    });
+  }
+
+  Plan start_plan(std::uint64_t chain_index) {
+    if (loaded_->start) return *loaded_->start;
+    Rng rng = make_stream(state_.seed, kSeedPlanStreamBase + chain_index);
+    return random_seed_plan(loaded_->graph, loaded_->job.districts, rules_, rng);
+  }
+
+  // ---- the loop ----
+  enum Field : std::size_t {
+    kStop, kCheckpointSignal, kCheckpointDue, kNextRound, kStepsThisRound, kAccepted, kRecords,
+    kRemaining, kProgressDue, kStepsTotal, kFieldCount
+  };
+
+  RunOutcome loop() {
+    std::uint64_t round_steps = 16;
+    auto last_checkpoint = Clock::now();
+    auto last_progress = Clock::now();
+    std::uint64_t steps_at_last_progress = total_steps_local();
+    std::uint64_t steps_since_commit = 0;
+    const auto started = Clock::now();
+    const std::uint64_t steps_at_start = total_steps_local();
+    while (true) {
+      const auto round_start = Clock::now();
+      const std::uint64_t done = step_round(round_steps);
+      steps_since_commit += done;
+      std::uint64_t mine[kFieldCount] = {};
+      mine[kStop] = g_stop_requested ? 1 : 0;
+      mine[kCheckpointSignal] = g_checkpoint_requested ? 1 : 0;
+      mine[kStepsThisRound] = done;
+      mine[kAccepted] = accepted_local();
+      mine[kRecords] = records_local();
+      mine[kRemaining] = remaining_local();
+      mine[kStepsTotal] = total_steps_local();
+      if (w_.root()) {
+        const auto now = Clock::now();
+        const double seconds = std::chrono::duration<double>(now - last_checkpoint).count();
+        mine[kCheckpointDue] = seconds >= loaded_->job.output.checkpoint_seconds ? 1 : 0;
+        mine[kProgressDue] =
+            options_.progress &&
+                    std::chrono::duration<double>(now - last_progress).count() >= options_.progress_seconds
+                ? 1
+                : 0;
+        // Aim at rounds of about a second: short enough to answer a signal promptly.
+        const double round_seconds = std::chrono::duration<double>(now - round_start).count();
+        const double scale = round_seconds > 0 ? std::clamp(1.0 / round_seconds, 0.5, 2.0) : 2.0;
+        mine[kNextRound] = std::clamp<std::uint64_t>(
+            static_cast<std::uint64_t>(static_cast<double>(round_steps) * scale), 1, 1'000'000);
+      }
+      std::uint64_t all[kFieldCount] = {};
+      MPI_Allreduce(mine, all, kFieldCount, MPI_UINT64_T, MPI_SUM, MPI_COMM_WORLD);
+      round_steps = all[kNextRound];
+      if (all[kProgressDue]) {
+        report_progress(all, steps_at_last_progress, last_progress);
+        last_progress = Clock::now();
+        steps_at_last_progress = total_steps_local();
+      }
+      const bool stop = all[kStop] > 0;
+      const bool reached = all[kRemaining] == 0;
+      const bool checkpoint = stop || reached || all[kCheckpointSignal] > 0 || all[kCheckpointDue] > 0;
+      if (checkpoint && (steps_since_commit > 0 || stop || (reached && !state_.finished))) {
+        g_checkpoint_requested = 0;
+        const bool final = stop || (reached && !options_.until_converged);
+        commit(final, stop ? "checkpointed on signal" : (reached ? "finished" : ""));
+        last_checkpoint = Clock::now();
+        steps_since_commit = 0;
+        if (all[kCheckpointSignal] > 0 && w_.root()) spdlog::info("checkpoint on SIGUSR1 written");
+      }
+      if (stop) return outcome(RunEnd::stopped_on_signal, started, steps_at_start);
+      if (reached) {
+        if (!options_.until_converged) {
+            return outcome(RunEnd::finished, started, steps_at_start);
+        }
+        const RunEnd verdict = judge_block();
+        if (verdict != RunEnd::finished) return outcome(verdict, started, steps_at_start);
+      }
+    }
+  }
+
+  std::uint64_t step_round(std::uint64_t round_steps) {
+    std::uint64_t done = 0;
+    for (auto& local : chains_) {
+      Chain& chain = *local.chain;
+      const std::uint64_t target = state_.target_steps;
+      const std::uint64_t steps = chain.counters().steps;
+      if (steps >= target) continue;
+      const std::uint64_t n = std::min(round_steps, target - steps);
+      for (std::uint64_t i = 0; i < n; ++i) {
+        chain.step();
+        const std::uint64_t s = chain.counters().steps;
+        if (s > state_.burn_in && s % state_.record_every == 0) record(local, s);
+      }
+      done += n;
+    }
+    return done;
+  }
+
+  void record(LocalChain& local, std::uint64_t step) {
+    if (!writer_) {
+      writer_file_ = RunLayout::plan_file_name(segment_, w_.rank);
+      if (header_.unit_count == 0) {
+        header_.unit_count = loaded_->graph.unit_count();
+        header_.district_count = loaded_->job.districts;
+        header_.job_text = loaded_->job.text;
+        header_.adjacency = unit_adjacency(loaded_->graph);
+      }
+      writer_ = std::make_unique<EnsembleWriter>(layout_.resolve(writer_file_).string(), header_);
+    }
+    if (local.handle == SIZE_MAX) local.handle = writer_->add_chain(local.entry.index, names_);
+    compute_observables(loaded_->graph, local.chain->state(), row_);
+    writer_->record(local.handle, step, local.chain->state().plan.assignment(), row_);
+    ++local.segment_records;
+  }
+
+  // Closes this rank's plan file, then rank 0 commits every rank's chains in one atomic write.
+  void commit(bool final, const std::string& how_ended) {
+    RunState part;
+    everywhere_then_agree([&] {
+      if (writer_) {
+        for (auto& local : chains_) {
+          if (local.handle != SIZE_MAX) writer_->set_counters(local.handle, stored(local.chain->counters()));
+        }
+        writer_.reset();  // closes the HDF5 file
+        fsync_path(layout_.resolve(writer_file_));
+        part.files.push_back({writer_file_, segment_, w_.rank, host_name()});
+      }
+      const std::string now = utc_now_iso8601();
+      for (auto& local : chains_) {
+        ChainEntry& e = local.entry;
+        e.steps = local.chain->counters().steps;
+        e.counters = stored(local.chain->counters());
+        e.snapshot = local.chain->save();
+        e.last_checkpoint = now;
+        if (local.segment_records > 0) {
+          e.spans.push_back({writer_file_, local.segment_records});
+          e.records += local.segment_records;
+        }
+        local.segment_records = 0;
+        local.handle = SIZE_MAX;
+        part.chains.push_back(e);
+      }
+    });
+    const auto parts = gather_strings(encode_run_state(part), w_);
+    std::string encoded;
+    on_root_then_agree(w_, [&] {
+      fsync_path(layout_.plans_dir());
+      for (const auto& text : parts) {
+        const RunState from_rank = decode_run_state(text);
+        for (const auto& f : from_rank.files) state_.files.push_back(f);
+        for (const auto& c : from_rank.chains) {
+          auto it = std::find_if(state_.chains.begin(), state_.chains.end(),
+                                 [&](const ChainEntry& e) { return e.index == c.index; });
+          *it = c;
+        }
+      }
+      state_.checkpoints = segment_ + 1;
+      state_.finished = final && how_ended == "finished";
+      state_.stop_reason = how_ended;
+      if (final || !how_ended.empty()) {
+        state_.sessions.back().ended = utc_now_iso8601();
+        state_.sessions.back().how_ended = how_ended;
+      }
+      write_run_state(layout_, state_);
+      encoded = encode_run_state(state_);
+    });
+    state_ = decode_run_state(broadcast_string(encoded, w_));
+    ++segment_;
+  }
+
+  // After a block of --until-converged: diagnose the committed records on rank 0 and either stop
+  // or extend every chain's target by one more block.
+  RunEnd judge_block() {
+    std::uint64_t decision[2] = {0, state_.target_steps};  // 0 go on, 1 converged, 2 budget spent
+    std::string summary;
+    on_root_then_agree(w_, [&] {
+      const diagnose::Verdict verdict = diagnose_committed();
+      const std::uint64_t block = std::max<std::uint64_t>(
+          loaded_->job.sampler.steps - loaded_->job.sampler.burn_in, state_.record_every);
+      if (verdict.pass) {
+        decision[0] = 1;
+      } else if (state_.target_steps >= options_.max_steps) {
+        decision[0] = 2;
+      } else {
+        decision[1] = std::min(options_.max_steps, state_.target_steps + block);
+      }
+      for (const auto& f : verdict.failures) {
+        summary += "\n  " + f.name + ": " + f.problem;
+      }
+      if (decision[0] == 0) {
+        spdlog::info("verdict after {} steps per chain: not yet ({} failing){}; going on to {}",
+                     state_.target_steps, verdict.failures.size(), summary, decision[1]);
+      }
+    });
+    MPI_Bcast(decision, 2, MPI_UINT64_T, 0, MPI_COMM_WORLD);
+    verdict_summary_ = summary;
+    if (decision[0] == 0) {
+      state_.target_steps = decision[1];
+      return RunEnd::finished;  // meaning: go on
+    }
+    const bool converged = decision[0] == 1;
+    on_root_then_agree(w_, [&] {
+      state_.finished = true;
+      state_.stop_reason = converged ? "converged" : "step budget spent before convergence";
+      state_.sessions.back().ended = utc_now_iso8601();
+      state_.sessions.back().how_ended = state_.stop_reason;
+      write_run_state(layout_, state_);
+    });
+    return converged ? RunEnd::converged : RunEnd::budget_spent;
+  }
+
+  diagnose::Verdict diagnose_committed() const {
+    RunReader reader(layout_.root.string());
+    const auto chains = reader.chains();
+    std::size_t draws = SIZE_MAX;
+    std::vector<std::vector<double>> rows;
+    for (const auto c : chains) {
+      rows.push_back(reader.read_observables(c));
+      draws = std::min(draws, reader.record_count(c));
+    }
+    const std::size_t width = names_.size();
+    std::vector<diagnose::QuantityDiagnostics> table;
+    std::vector<double> matrix(draws * chains.size());
+    for (std::size_t j = 0; j < width; ++j) {
+      for (std::size_t c = 0; c < chains.size(); ++c) {
+        for (std::size_t d = 0; d < draws; ++d) matrix[c * draws + d] = rows[c][d * width + j];
+      }
+      table.push_back(diagnose::diagnose_quantity(names_[j], {matrix, draws, chains.size()}));
+    }
+    const diagnose::VerdictRule rule{loaded_->job.verdict.rhat_max, loaded_->job.verdict.ess_min};
+    return diagnose::judge(std::move(table), rule);
+  }
+
+  // ---- progress ----
+  void report_progress(const std::uint64_t* all, std::uint64_t steps_before,
+                       Clock::time_point since) {
+    const double seconds = std::chrono::duration<double>(Clock::now() - since).count();
+    const std::uint64_t mine = total_steps_local() - steps_before;
+    std::vector<std::uint64_t> per_rank(static_cast<std::size_t>(w_.size));
+    MPI_Gather(&mine, 1, MPI_UINT64_T, per_rank.data(), 1, MPI_UINT64_T, 0, MPI_COMM_WORLD);
+    if (!w_.root()) return;
+    std::uint64_t sum = 0;
+    std::string ranks;
+    for (const auto n : per_rank) {
+      sum += n;
+      if (w_.size > 1) ranks += (ranks.empty() ? "" : " + ") + rate_text(static_cast<double>(n) / seconds);
+    }
+    const double rate = static_cast<double>(sum) / seconds;
+    const double total = static_cast<double>(all[kStepsTotal] + all[kRemaining]);
+    const double fraction = total > 0 ? static_cast<double>(all[kStepsTotal]) / total : 1.0;
+    const double acceptance =
+        all[kStepsTotal] ? static_cast<double>(all[kAccepted]) / static_cast<double>(all[kStepsTotal]) : 0;
+    char line[512];
+    std::snprintf(line, sizeof line, "%llu plans recorded, %s steps/s%s%s%s, acceptance %.1f%%, %s left",
+                  static_cast<unsigned long long>(all[kRecords]), rate_text(rate).c_str(),
+                  ranks.empty() ? "" : " (", ranks.c_str(), ranks.empty() ? "" : " per rank)",
+                  100.0 * acceptance,
+                  duration_text(static_cast<double>(all[kRemaining]) / rate).c_str());
+    if (::isatty(STDERR_FILENO)) {
+      constexpr int kWidth = 24;
+      const int filled = static_cast<int>(fraction * kWidth);
+      std::fprintf(stderr, "\r[%.*s%.*s] %3.0f%% %s\033[K", filled, "########################",
+                   kWidth - filled, "------------------------", 100.0 * fraction, line);
+      std::fflush(stderr);
+      bar_shown_ = true;
+    } else {
+      spdlog::info("{:.0f}% {}", 100.0 * fraction, line);
+    }
+  }
+
+  static std::string rate_text(double rate) {
+    char text[32];
+    if (rate >= 1e6) {
+      std::snprintf(text, sizeof text, "%.2fM", rate / 1e6);
+    } else if (rate >= 1e4) {
+      std::snprintf(text, sizeof text, "%.1fk", rate / 1e3);
+    } else {
+      std::snprintf(text, sizeof text, "%.0f", rate);
+    }
+    return text;
+  }
+
+  RunOutcome outcome(RunEnd end, Clock::time_point started, std::uint64_t steps_at_start) {
+    if (bar_shown_) std::fprintf(stderr, "\n");
+    RunOutcome out;
+    out.end = end;
+    out.run_dir = layout_.root.string();
+    for (const auto& c : state_.chains) out.records += c.records, out.steps += c.steps;
+    const double seconds = std::chrono::duration<double>(Clock::now() - started).count();
+    const std::uint64_t stepped = total_steps_global() - steps_at_start_global(steps_at_start);
+    char line[256];
+    std::snprintf(line, sizeof line, "%zu chains on %d ranks: %llu plans recorded, %llu steps in %s",
+                  state_.chains.size(), w_.size, static_cast<unsigned long long>(out.records),
+                  static_cast<unsigned long long>(stepped), duration_text(seconds).c_str());
+    out.summary = line;
+    if (end == RunEnd::stopped_on_signal) {
+      out.summary += "\nstopped on a signal after a checkpoint; continue with: planmill run " +
+                     options_.job_path + " --output " + out.run_dir + " --resume";
+    } else if (end == RunEnd::converged) {
+      out.summary += "\nconverged: every observable passes the verdict";
+    } else if (end == RunEnd::budget_spent) {
+      out.summary += "\nnot converged within --max-steps " + std::to_string(options_.max_steps) +
+                     " steps per chain; failing:" + verdict_summary_ +
+                     "\n  run longer, start more chains, or use tempering";
+    }
+    return out;
+  }
+
+  std::uint64_t steps_at_start_global(std::uint64_t local) const {
+    std::uint64_t all = 0;
+    MPI_Allreduce(&local, &all, 1, MPI_UINT64_T, MPI_SUM, MPI_COMM_WORLD);
+    return all;
+  }
+  std::uint64_t total_steps_global() const { return steps_at_start_global(total_steps_local()); }
+  std::uint64_t total_steps_local() const {
+    std::uint64_t n = 0;
+    for (const auto& c : chains_) n += c.chain->counters().steps;
+    return n;
+  }
+  std::uint64_t accepted_local() const {
+    std::uint64_t n = 0;
+    for (const auto& c : chains_) n += c.chain->counters().outcomes[0];
+    return n;
+  }
+  std::uint64_t records_local() const {
+    std::uint64_t n = 0;
+    for (const auto& c : chains_) n += c.entry.records + c.segment_records;
+    return n;
+  }
+  std::uint64_t remaining_local() const {
+    std::uint64_t n = 0;
+    for (const auto& c : chains_) {
+      const std::uint64_t s = c.chain->counters().steps;
+      n += s < state_.target_steps ? state_.target_steps - s : 0;
+    }
+    return n;
+  }
+
+  RunOptions options_;
+  World w_;
+  std::unique_ptr<LoadedJob> loaded_;
+  RuleSet rules_;
+  RunLayout layout_;
+  RunState state_;
+  std::uint64_t segment_ = 0;
+  std::vector<std::string> names_;
+  std::vector<double> row_;
+  std::vector<LocalChain> chains_;
+  EnsembleHeader header_;
+  std::unique_ptr<EnsembleWriter> writer_;
+  std::string writer_file_;
+  std::string verdict_summary_;
+  bool bar_shown_ = false;
+};
+
+}  // namespace
+
+void install_run_signal_handlers() {
+  struct sigaction stop {};
+  stop.sa_handler = on_stop_signal;
+  sigemptyset(&stop.sa_mask);
+  sigaction(SIGTERM, &stop, nullptr);
+  sigaction(SIGINT, &stop, nullptr);
+  struct sigaction checkpoint {};
+  checkpoint.sa_handler = on_checkpoint_signal;
+  sigemptyset(&checkpoint.sa_mask);
+  sigaction(SIGUSR1, &checkpoint, nullptr);
+}
+
+RunOutcome run_job(const RunOptions& options) {
+  if (options.until_converged && options.max_steps == 0) {
+    throw InputError({"", 0, "--max-steps"}, "--until-converged needs a step budget",
+                     "add --max-steps N (steps per chain, burn-in included)");
+  }
+  ChainRunner runner(options, world());
+  return runner.run();
+}
+
+}  // namespace planmill

@@ -1,0 +1,242 @@
+// `planmill run` end to end under real OpenMPI: determinism over rank counts, checkpoint and
+// resume after SIGKILL and SIGTERM, bad input. Each test starts `mpiexec -n R planmill run`.
+#include <gtest/gtest.h>
+#include <signal.h>
+#include <spawn.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <sstream>
+#include <string>
+#include <thread>
+#include <vector>
+
+#include "planmill/run/run_reader.hpp"
+
+extern char** environ;
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+
+fs::path scratch(const std::string& name) {
+  const auto dir = fs::temp_directory_path() / ("planmill-run-test-" + name);
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  return dir;
+}
+
+int shell(const std::string& command) {
+  const int raw = std::system(command.c_str());
+  return WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+}
+
+// A small invented state (planmill synth) and a job over it.
+fs::path write_job(const fs::path& dir, const std::string& sampler, double checkpoint_seconds = 300) {
+  const std::string synth = std::string(PLANMILL_BINARY) + " synth --units 200 --districts 4 --seed 5 --out " +
+                            (dir / "state").string() + " >/dev/null";
+  EXPECT_EQ(shell(synth), 0);
+  const fs::path job = dir / "state" / "job.toml";
+  std::ofstream(job, std::ios::app) << "[sampler]\n"
+                                    << sampler << "\n[output]\ncheckpoint_seconds = "
+                                    << checkpoint_seconds << "\n";
+  return job;
+}
+
+std::string mpiexec(int ranks) {
+  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  return "mpiexec --oversubscribe -n " + std::to_string(ranks) + " ";
+}
+
+int run(int ranks, const fs::path& job, const fs::path& out, const std::string& extra = "") {
+  return shell(mpiexec(ranks) + PLANMILL_BINARY + " run " + job.string() + " --output " + out.string() +
+               " --quiet " + extra + " >" + out.string() + ".log 2>&1");
+}
+
+// Every recorded plan, step and observable of every chain must be identical.
+void expect_same_records(const fs::path& a, const fs::path& b) {
+  RunReader x(a.string()), y(b.string());
+  ASSERT_EQ(x.chains(), y.chains());
+  for (const auto c : x.chains()) {
+    ASSERT_EQ(x.record_count(c), y.record_count(c)) << "chain " << c;
+    EXPECT_EQ(x.record_steps(c), y.record_steps(c)) << "chain " << c;
+    EXPECT_EQ(x.read_observables(c), y.read_observables(c)) << "chain " << c;
+    for (std::uint64_t r = 0; r < x.record_count(c); ++r) {
+      if (x.read_plan(c, r) != y.read_plan(c, r)) {
+        ADD_FAILURE() << "chain " << c << " record " << r << " differs between " << a << " and " << b;
+        return;
+      }
+    }
+  }
+  EXPECT_TRUE(x.verify().empty());
+  EXPECT_TRUE(y.verify().empty());
+}
+
+TEST(Run, RecordsTheSamePlansWhateverTheNumberOfRanks) {
+  const auto dir = scratch("ranks");
+  const auto job = write_job(dir, "chains = 5\nsteps = 1500\nburn_in = 100\nrecord_every = 7\nseed = 9");
+  ASSERT_EQ(run(1, job, dir / "r1"), 0);
+  {
+    RunReader one((dir / "r1").string());
+    ASSERT_EQ(one.chains().size(), 5U);
+    // Records at steps s in (100, 1500] with s % 7 == 0: 214 - 14 = 200 per chain.
+    EXPECT_EQ(one.record_count(3), 200U);
+    EXPECT_EQ(one.record_steps(3).front(), 105U);
+    EXPECT_TRUE(one.state().finished);
+    EXPECT_EQ(one.state().sessions.back().ranks, 1);
+  }
+  for (const int ranks : {2, 3, 4}) {
+    const auto out = dir / ("r" + std::to_string(ranks));
+    ASSERT_EQ(run(ranks, job, out), 0) << "ranks " << ranks;
+    EXPECT_EQ(RunReader(out.string()).state().sessions.back().ranks, ranks);
+    expect_same_records(dir / "r1", out);
+  }
+}
+
+TEST(Run, DifferentSeedsGiveDifferentPlans) {
+  const auto dir = scratch("seeds");
+  const auto a = write_job(dir, "chains = 1\nsteps = 200\nseed = 1");
+  ASSERT_EQ(run(1, a, dir / "a"), 0);
+  std::string text;
+  {
+    std::ifstream in(a);
+    text.assign(std::istreambuf_iterator<char>(in), {});
+  }
+  std::ofstream(dir / "state" / "job2.toml") << text.replace(text.find("seed = 1"), 8, "seed = 2");
+  ASSERT_EQ(run(1, dir / "state" / "job2.toml", dir / "b"), 0);
+  RunReader x((dir / "a").string()), y((dir / "b").string());
+  EXPECT_NE(x.read_plan(0, 199), y.read_plan(0, 199));
+}
+
+pid_t spawn_run(int ranks, const fs::path& job, const fs::path& out) {
+  const std::string command = "exec " + mpiexec(ranks) + PLANMILL_BINARY + " run " + job.string() +
+                              " --output " + out.string() + " --quiet >" + out.string() + ".log 2>&1";
+  const char* argv[] = {"/bin/sh", "-c", command.c_str(), nullptr};
+  pid_t pid = 0;
+  EXPECT_EQ(posix_spawn(&pid, "/bin/sh", nullptr, nullptr, const_cast<char**>(argv), environ), 0);
+  return pid;
+}
+
+std::vector<pid_t> children_of(pid_t parent) {
+  std::vector<pid_t> out;
+  for (const auto& entry : fs::directory_iterator("/proc")) {
+    const std::string name = entry.path().filename().string();
+    if (name.find_first_not_of("0123456789") != std::string::npos) continue;
+    std::ifstream stat(entry.path() / "stat");
+    std::string line;
+    std::getline(stat, line);
+    const auto close = line.rfind(')');
+    if (close == std::string::npos) continue;
+    std::istringstream rest(line.substr(close + 2));
+    char state = 0;
+    pid_t ppid = 0;
+    rest >> state >> ppid;
+    if (ppid == parent) out.push_back(std::stoi(name));
+  }
+  return out;
+}
+
+std::uint64_t committed_checkpoints(const fs::path& out) {
+  try {
+    return read_run_state(RunLayout{out}).checkpoints;
+  } catch (...) {
+    return 0;  // not written yet, or caught mid-rename
+  }
+}
+
+bool still_running(pid_t pid) {
+  siginfo_t info{};
+  return ::waitid(P_PID, static_cast<id_t>(pid), &info, WEXITED | WNOHANG | WNOWAIT) == 0 &&
+         info.si_pid == 0;  // WNOWAIT: leave the exit status for wait_exit()
+}
+
+// Waits until done(), or until the launched run ends, or for at most `seconds`.
+bool wait_for(const std::function<bool()>& done, pid_t launcher, double seconds) {
+  const auto end = std::chrono::steady_clock::now() + std::chrono::duration<double>(seconds);
+  while (std::chrono::steady_clock::now() < end) {
+    if (done()) return true;
+    if (!still_running(launcher)) return false;
+    std::this_thread::sleep_for(std::chrono::milliseconds(50));
+  }
+  return done();
+}
+
+int wait_exit(pid_t pid) {
+  int status = 0;
+  waitpid(pid, &status, 0);
+  return WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
+}
+
+// Long enough to be interrupted after a checkpoint (1 s apart), short enough for the suite.
+constexpr const char* kLongSampler = "chains = 4\nsteps = 300000\nburn_in = 1000\nrecord_every = 50\nseed = 3";
+
+TEST(Run, ResumeAfterSigkillOfOneRankEqualsAnUninterruptedRun) {
+  const auto dir = scratch("sigkill");
+  const auto job = write_job(dir, kLongSampler, 1.0);
+  const auto out = dir / "killed";
+  const pid_t launcher = spawn_run(2, job, out);
+  ASSERT_TRUE(wait_for([&] { return committed_checkpoints(out) >= 2; }, launcher, 120)) << "no checkpoint";
+  const auto ranks = children_of(launcher);
+  ASSERT_FALSE(ranks.empty());
+  ::kill(ranks.back(), SIGKILL);
+  EXPECT_NE(wait_exit(launcher), 0);
+  const RunState interrupted = read_run_state(RunLayout{out});
+  ASSERT_FALSE(interrupted.finished) << "the run ended before the kill; make it longer";
+  EXPECT_EQ(interrupted.sessions.back().ended, "");
+
+  ASSERT_EQ(run(2, job, out, "--resume"), 0);
+  const RunState resumed = read_run_state(RunLayout{out});
+  EXPECT_TRUE(resumed.finished);
+  EXPECT_EQ(resumed.sessions.size(), 2U);
+  ASSERT_EQ(run(2, job, dir / "straight"), 0);
+  expect_same_records(dir / "straight", out);
+}
+
+TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterruptedRun) {
+  const auto dir = scratch("sigterm");
+  const auto job = write_job(dir, kLongSampler, 300.0);
+  const auto out = dir / "stopped";
+  const pid_t launcher = spawn_run(2, job, out);
+  // Wait until rank 1 has recorded plans: the chains are under way.
+  ASSERT_TRUE(wait_for([&] { return fs::exists(out / "plans" / "seg-00000-rank-001.h5"); }, launcher, 120));
+  std::this_thread::sleep_for(std::chrono::milliseconds(500));
+  for (const pid_t rank : children_of(launcher)) ::kill(rank, SIGTERM);
+  EXPECT_EQ(wait_exit(launcher), 4) << "a rank stopped on SIGTERM exits with 4 (resumable)";
+  const RunState stopped = read_run_state(RunLayout{out});
+  ASSERT_FALSE(stopped.finished);
+  EXPECT_EQ(stopped.stop_reason, "checkpointed on signal");
+  EXPECT_GT(stopped.chains[0].records, 0U);
+
+  ASSERT_EQ(run(3, job, out, "--resume"), 0);  // a different rank count is fine
+  ASSERT_EQ(run(1, job, dir / "straight"), 0);
+  expect_same_records(dir / "straight", out);
+  EXPECT_EQ(run(2, job, out, "--resume"), 0) << "resuming a finished run has nothing to do";
+}
+
+TEST(Run, RefusesToOverwriteARunAndToResumeWithAChangedJob) {
+  const auto dir = scratch("refuse");
+  const auto job = write_job(dir, "chains = 2\nsteps = 100");
+  ASSERT_EQ(run(1, job, dir / "out"), 0);
+  const std::string before = [&] {
+    std::ifstream in(dir / "out" / "run-state.json");
+    return std::string(std::istreambuf_iterator<char>(in), {});
+  }();
+  EXPECT_EQ(run(2, job, dir / "out"), 2);
+  std::ofstream(job, std::ios::app) << "# changed\n";
+  EXPECT_EQ(run(2, job, dir / "out", "--resume"), 2);
+  std::ifstream in(dir / "out" / "run-state.json");
+  EXPECT_EQ(std::string(std::istreambuf_iterator<char>(in), {}), before) << "the run was touched";
+  std::ifstream log(dir / "out.log");
+  const std::string message(std::istreambuf_iterator<char>(log), {});
+  EXPECT_NE(message.find("differs from the job this run started with"), std::string::npos) << message;
+}
+
+}  // namespace
+}  // namespace planmill
