@@ -1,9 +1,68 @@
+// planmill export RUNDIR --out DIR: observables and chosen plans as CSV (docs/export.md).
+// Exit status: 0 done, 2 bad input (nothing written), 3 some chains damaged and left out.
+#include <iostream>
+#include <map>
+#include <string>
+
 #include "cli/commands.hpp"
+#include "planmill/export/export.hpp"
 
 namespace planmill::cli {
+namespace {
+
+struct ExportArgs {
+  ExportOptions options;
+  std::string plans, chains, layout = "files";
+};
+
+int run_export(ExportArgs& args) {
+  ExportOptions& o = args.options;
+  if (!args.plans.empty()) o.plans.records = parse_record_list(args.plans, "--plans");
+  if (!args.chains.empty()) {
+    o.plans.chains_given = true;
+    o.plans.chains = parse_chain_list(args.chains, "--chains");
+  }
+  static const std::map<std::string, PlanLayout> layouts{
+      {"files", PlanLayout::files}, {"wide", PlanLayout::wide}, {"both", PlanLayout::both}};
+  o.layout = layouts.at(args.layout);
+  const ExportResult result = export_run(o);
+  for (const std::string& w : result.warnings) std::cerr << "planmill: warning: " << w << "\n";
+  std::cout << "wrote " << result.observable_rows << " observable rows and " << result.plans
+            << " plans to " << o.out_dir << "\n";
+  for (const ChainProblem& p : result.left_out) {
+    std::cerr << "planmill: chain " << p.chain_index << ", records " << p.first_record << "-";
+    if (p.last_record == UINT64_MAX) {
+      std::cerr << "end";
+    } else {
+      std::cerr << p.last_record;
+    }
+    std::cerr << ": " << p.what << "; chain " << p.chain_index << " left out of the export\n";
+  }
+  return result.left_out.empty() ? 0 : 3;
+}
+
+}  // namespace
 
 void add_export_command(CLI::App& app, Action& action) {
-  add_pending_command(app, action, "export", "write chosen plans and observables as CSV");
+  auto args = std::make_shared<ExportArgs>();
+  auto* sub = app.add_subcommand("export", "write a run's observables and chosen plans as CSV");
+  sub->add_option("run_dir", args->options.run_dir, "run folder")->required();
+  sub->add_option("--out", args->options.out_dir, "folder to write into (created or reused)")
+      ->required();
+  sub->add_option("--plans", args->plans, "plans to write, as CHAIN:RECORD,... (records from 0)");
+  sub->add_option("--every", args->options.plans.every,
+                  "write records 0, N, 2N, ... of every chain (or of the --chains)")
+      ->check(CLI::PositiveNumber);
+  sub->add_option("--chains", args->chains,
+                  "chains for --every, as 0,2,5-7; alone: every record of these chains");
+  sub->add_option("--plan-layout", args->layout,
+                  "files: one CSV per plan; wide: one CSV, a column per plan; both")
+      ->check(CLI::IsMember({"files", "wide", "both"}));
+  sub->add_option("--map-units", args->options.units_path,
+                  "unit table giving the unit ids (default: the one the run's job names)");
+  sub->add_option("--map-id-column", args->options.id_column,
+                  "id column of the unit table (default: the job's map.id)");
+  sub->callback([&action, args] { action = [args] { return run_export(*args); }; });
 }
 
 }  // namespace planmill::cli

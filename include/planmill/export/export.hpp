@@ -1,0 +1,77 @@
+#pragma once
+// `planmill export`: a run's observables and chosen plans as plain CSV for R, Python and GIS users
+// (docs/export.md). Everything the user asked for is checked before the first file is written, so
+// a bad choice (a chain or record that does not exist, a map that cannot be found) writes nothing.
+// Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
+// the other chains are still exported.
+#include <cstdint>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "planmill/run/run_reader.hpp"
+
+namespace planmill {
+
+struct RecordRef {
+  std::uint64_t chain = 0;
+  std::uint64_t record = 0;  // 0-based within the chain, in record order
+  friend auto operator<=>(const RecordRef&, const RecordRef&) = default;
+};
+
+// Which recorded plans to write. Nothing set = no plans (observables only).
+struct PlanChoice {
+  std::vector<RecordRef> records;       // named one by one
+  std::uint64_t every = 0;              // records 0, N, 2N, ... of each chosen chain; 0 = off
+  bool chains_given = false;            // `chains` restricts `every`; alone it takes every record
+  std::vector<std::uint64_t> chains;
+};
+
+enum class PlanLayout { files, wide, both };
+
+struct ExportOptions {
+  std::string run_dir;
+  std::string out_dir;
+  PlanChoice plans;
+  PlanLayout layout = PlanLayout::files;
+  std::string units_path;  // unit table overriding the job's map.units; empty = the job's
+  std::string id_column;   // overriding the job's map.id; empty = the job's
+};
+
+struct ExportResult {
+  std::vector<std::string> written;      // files written, relative to out_dir
+  std::vector<ChainProblem> left_out;    // damaged chains, not exported
+  std::vector<std::string> warnings;     // one line each
+  std::uint64_t observable_rows = 0;
+  std::uint64_t plans = 0;
+};
+
+// "3:120,0:5" -> {{3,120},{0,5}}. InputError (key `option`) on anything else.
+[[nodiscard]] std::vector<RecordRef> parse_record_list(std::string_view text,
+                                                       const std::string& option);
+// "0,2,5-7" -> {0,2,5,6,7}. InputError (key `option`) on anything else.
+[[nodiscard]] std::vector<std::uint64_t> parse_chain_list(std::string_view text,
+                                                          const std::string& option);
+
+// The chosen records, ascending and without repeats. InputError naming the first chain or record
+// that the run does not have.
+[[nodiscard]] std::vector<RecordRef> choose_records(const RunReader& run, const PlanChoice& choice);
+
+// Unit ids in map order (the unit table's row order, as load_unit_graph builds it).
+// InputError naming the file when it is missing, lacks the column, or repeats or omits an id.
+[[nodiscard]] std::vector<std::string> read_unit_ids(const std::string& units_path,
+                                                     const std::string& id_column);
+
+// A number as written to the CSVs: shortest text that reads back to the same double; NA for NaN,
+// Inf and -Inf for infinities (what R's read.csv and pandas read as such).
+[[nodiscard]] std::string csv_number(double value);
+
+// File names inside out_dir.
+[[nodiscard]] std::string observables_file_name();
+[[nodiscard]] std::string plan_file_name(const RecordRef& ref);  // plans/chain-C-record-R.csv
+[[nodiscard]] std::string wide_file_name();
+[[nodiscard]] std::string wide_column_name(const RecordRef& ref);  // cC_rR
+
+[[nodiscard]] ExportResult export_run(const ExportOptions& options);
+
+}  // namespace planmill

@@ -1,0 +1,209 @@
+// export_run: check every choice, read what is needed, then write each file atomically.
+#include <charconv>
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <iterator>
+#include <set>
+#include <sstream>
+
+#include "planmill/base/error.hpp"
+#include "planmill/export/export.hpp"
+#include "planmill/graph/unit_graph.hpp"
+#include "planmill/io/atomic_file.hpp"
+#include "planmill/io/csv.hpp"
+#include "planmill/io/file_hash.hpp"
+#include "planmill/io/plan_csv.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/plan/plan.hpp"
+#include "planmill/store/hdf5_handle.hpp"
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+
+std::string read_text(const fs::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
+}
+
+// The unit ids of the run's map, from --map-units / --map-id-column or the job the run copied.
+std::vector<std::string> run_unit_ids(const RunReader& run, const ExportOptions& o,
+                                      ExportResult& result) {
+  std::string units_path = o.units_path, id_column = o.id_column;
+  if (units_path.empty() || id_column.empty()) {
+    const fs::path job_copy = run.layout().job_copy();
+    if (!fs::is_regular_file(job_copy)) {
+      throw InputError({job_copy.string(), 0, ""},
+                       "the run folder has no copy of its job, so its map is unknown",
+                       "give the unit table with --map-units FILE and --map-id-column NAME");
+    }
+    // Relative paths in the job are relative to the job file as it was given to `planmill run`.
+    const std::string& given = run.state().job_path;
+    const JobSpec job = parse_job_text(read_text(job_copy), given.empty() ? job_copy.string() : given);
+    if (units_path.empty()) {
+      units_path = job.map.units_path;
+      if (!fs::is_regular_file(units_path)) {
+        throw InputError({job_copy.string(), 0, "map.units"},
+                         "names unit table '" + units_path + "' (relative to the job file as given, '" +
+                             given + "'), which is not there",
+                         "run export from the folder the run was started in, or give the table "
+                         "with --map-units FILE");
+      }
+    }
+    if (id_column.empty()) id_column = job.map.id_column;
+  }
+  std::vector<std::string> ids = read_unit_ids(units_path, id_column);
+  if (run.unit_count() != 0 && ids.size() != run.unit_count()) {
+    throw InputError({units_path, 0, ""},
+                     "has " + std::to_string(ids.size()) + " units but the run's plans have " +
+                         std::to_string(run.unit_count()),
+                     "give the unit table the run used with --map-units FILE");
+  }
+  for (const InputFileEntry& input : run.state().inputs) {
+    if (input.role != "units" || input.sha256.empty()) continue;
+    if (sha256_file_hex(units_path) != input.sha256) {
+      result.warnings.push_back("unit table " + units_path +
+                                " differs from the one the run started with (SHA-256 " +
+                                input.sha256.substr(0, 12) + "...); check that its rows are in the same order");
+    }
+  }
+  return ids;
+}
+
+struct ChainRows {
+  std::uint64_t chain;
+  std::vector<std::uint64_t> steps;
+  std::vector<double> values;  // records x observables
+};
+
+bool left_out(const std::set<std::uint64_t>& bad, std::uint64_t chain) { return bad.count(chain) > 0; }
+
+void leave_out(ExportResult& result, std::set<std::uint64_t>& bad, std::uint64_t chain,
+               std::uint64_t records, const std::string& what) {
+  if (!bad.insert(chain).second) return;
+  result.left_out.push_back({chain, 0, records == 0 ? 0 : records - 1, what});
+}
+
+}  // namespace
+
+std::string csv_number(double value) {
+  if (std::isnan(value)) return "NA";
+  if (std::isinf(value)) return value > 0 ? "Inf" : "-Inf";
+  char buffer[32];
+  const auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value);
+  return {buffer, end};
+}
+
+std::string observables_file_name() { return "observables.csv"; }
+std::string wide_file_name() { return "plans-wide.csv"; }
+std::string plan_file_name(const RecordRef& ref) {
+  return "plans/chain-" + std::to_string(ref.chain) + "-record-" + std::to_string(ref.record) + ".csv";
+}
+std::string wide_column_name(const RecordRef& ref) {
+  return "c" + std::to_string(ref.chain) + "_r" + std::to_string(ref.record);
+}
+
+ExportResult export_run(const ExportOptions& o) {
+  ExportResult result;
+  const RunReader run(o.run_dir);
+  // Everything that can be the user's mistake is checked before anything is written.
+  const std::vector<RecordRef> chosen = choose_records(run, o.plans);
+  std::vector<std::string> ids;
+  if (!chosen.empty()) ids = run_unit_ids(run, o, result);
+
+  std::set<std::uint64_t> bad;
+  for (const ChainProblem& p : run.verify()) {
+    if (bad.insert(p.chain_index).second) result.left_out.push_back(p);
+  }
+  const std::vector<std::string>& names = run.observable_names();
+  std::vector<ChainRows> rows;
+  for (std::uint64_t chain : run.chains()) {
+    if (left_out(bad, chain)) continue;
+    try {
+      ChainRows r{chain, run.record_steps(chain), run.read_observables(chain)};
+      if (r.values.size() != r.steps.size() * names.size()) {
+        throw StoreError(run.layout().state_file().string(), "reading observables",
+                         "the observable table does not have one row per record");
+      }
+      rows.push_back(std::move(r));
+    } catch (const StoreError& e) {
+      leave_out(result, bad, chain, run.record_count(chain), e.what());
+    }
+  }
+
+  // Plans, labelled with the map's unit ids through the plan CSV writer.
+  UnitGraph id_graph;
+  if (!ids.empty()) {
+    UnitGraphBuilder builder;
+    for (const std::string& id : ids) (void)builder.add_unit(id, 0);
+    id_graph = std::move(builder).build();
+  }
+  std::vector<std::pair<RecordRef, std::vector<DistrictIndex>>> plans;
+  for (const RecordRef& ref : chosen) {
+    if (left_out(bad, ref.chain)) continue;
+    try {
+      plans.emplace_back(ref, run.read_plan(ref.chain, ref.record));
+    } catch (const StoreError& e) {
+      leave_out(result, bad, ref.chain, run.record_count(ref.chain), e.what());
+    }
+  }
+  std::erase_if(plans, [&](const auto& p) { return left_out(bad, p.first.chain); });
+  std::erase_if(rows, [&](const ChainRows& r) { return left_out(bad, r.chain); });
+
+  const fs::path out(o.out_dir);
+  std::error_code ec;
+  fs::create_directories(out, ec);
+  if (!fs::is_directory(out)) {
+    throw InputError({o.out_dir, 0, "--out"}, "cannot create the output folder: " + ec.message(),
+                     "give a folder that can be written");
+  }
+  const auto write = [&](const std::string& name, std::string_view text) {
+    write_file_atomically((out / name).string(), text);
+    result.written.push_back(name);
+  };
+
+  std::string table = "chain,record,step";
+  for (const std::string& name : names) table += "," + csv_field(name);
+  table += '\n';
+  for (const ChainRows& r : rows) {
+    for (std::size_t record = 0; record < r.steps.size(); ++record) {
+      table += std::to_string(r.chain) + ',' + std::to_string(record) + ',' +
+               std::to_string(r.steps[record]);
+      for (std::size_t j = 0; j < names.size(); ++j) {
+        table += ',';
+        table += csv_number(r.values[record * names.size() + j]);
+      }
+      table += '\n';
+      ++result.observable_rows;
+    }
+  }
+  write(observables_file_name(), table);
+
+  if (o.layout != PlanLayout::wide && !plans.empty()) {
+    fs::create_directories(out / "plans", ec);
+    for (auto& [ref, labels] : plans) {
+      const Plan plan(id_graph, run.district_count(), labels);
+      write(plan_file_name(ref), plan_csv_text(plan));
+    }
+  }
+  if (o.layout != PlanLayout::files && !plans.empty()) {
+    std::string wide = "unit";
+    for (const auto& p : plans) wide += "," + wide_column_name(p.first);
+    wide += '\n';
+    for (UnitIndex u = 0; u < ids.size(); ++u) {
+      wide += csv_field(ids[u]);
+      for (const auto& p : plans) {
+        wide += ',';
+        wide += std::to_string(static_cast<unsigned>(p.second[u]) + 1);
+      }
+      wide += '\n';
+    }
+    write(wide_file_name(), wide);
+  }
+  result.plans = plans.size();
+  return result;
+}
+
+}  // namespace planmill

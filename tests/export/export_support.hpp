@@ -1,0 +1,57 @@
+#pragma once
+// A fixture run folder with its job and map, as `planmill run` would leave them, for export tests:
+//   DIR/job/job.toml (the job as given), DIR/map/units.csv, DIR/run/ (job.toml copy, plans, state).
+#include <sys/wait.h>
+
+#include <cstdlib>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "../io/temp_files.hpp"
+#include "../support/run_fixture.hpp"
+
+namespace planmill::test {
+
+struct ExportFixture {
+  TempDir dir;
+  FixtureRun run;
+  std::vector<std::string> ids;  // unit ids in map order
+  std::filesystem::path run_dir, out_dir, units_csv;
+
+  explicit ExportFixture(const FixtureRunOptions& options = {.chains = 3, .ranks = 2}) {
+    run_dir = dir.path() / "run";
+    out_dir = dir.path() / "out";
+    run = write_fixture_run(run_dir, options);
+    std::string units = "unit,pop\n";
+    for (std::size_t u = 0; u < options.units; ++u) {
+      // One id needs quoting, to check that ids survive the CSV round trip.
+      ids.push_back(u == 7 ? "unit, 7" : "u" + std::to_string(1000 - u));
+      units += (u == 7 ? "\"unit, 7\"" : ids.back()) + "," + std::to_string(100 + u) + "\n";
+    }
+    std::filesystem::create_directories(dir.path() / "map");
+    std::filesystem::create_directories(dir.path() / "job");
+    units_csv = dir.path() / "map" / "units.csv";
+    dir.write("map/units.csv", units);
+    const std::string job =
+        "[map]\nunits = \"../map/units.csv\"\nadjacency = \"../map/adjacency.csv\"\nid = \"unit\"\n"
+        "population = \"pop\"\n[districts]\ncount = " + std::to_string(options.districts) + "\n";
+    const std::string job_path = dir.write("job/job.toml", job);
+    dir.write("run/job.toml", job);
+    run.state.job_path = job_path;
+    write_run_state(RunLayout{run_dir}, run.state);
+  }
+};
+
+// Runs `planmill export ARGS`; returns its exit status, with stderr in `errors`.
+inline int run_export(const std::string& args, std::string* errors = nullptr) {
+  const std::string err = (std::filesystem::temp_directory_path() /
+                           ("planmill-export-err-" + std::to_string(::getpid()))).string();
+  const std::string command = std::string(PLANMILL_BINARY) + " export " + args + " > /dev/null 2> " + err;
+  const int status = std::system(command.c_str());
+  if (errors) *errors = read_file(err);
+  std::filesystem::remove(err);
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+}  // namespace planmill::test
