@@ -46,6 +46,11 @@ std::vector<Draws> reference_cases() {
       testing::ar1("short_6", 6, 4, 0.0, 23),
       testing::ar1("short_7", 7, 3, 0.0, 24),
       testing::ar1("many_chains", 200, 16, 0.5, 25),
+      // Long Geyer sequences on split chains of 1,200 draws: some ESS here fit the shorter FFT
+      // padding (2,048 points, lags up to 848), others run past it and are redone with the full
+      // padding (4,096 points), so both paths meet posterior.
+      testing::ar1("one_chain_phi095", 2400, 1, 0.95, 26),
+      testing::ar1("one_chain_phi0999", 2400, 1, 0.999, 27),
   };
 }
 
