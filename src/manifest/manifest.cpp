@@ -13,7 +13,7 @@
 namespace planmill {
 namespace {
 
-using nlohmann::json;
+using json = nlohmann::ordered_json;
 namespace fs = std::filesystem;
 
 json text_or_null(const std::string& s) { return s.empty() ? json(nullptr) : json(s); }

@@ -18,7 +18,7 @@
 namespace planmill {
 namespace {
 
-using nlohmann::json;
+using json = nlohmann::ordered_json;
 
 std::string cell(double v, const char* format) {
   if (std::isnan(v)) return "NaN";

@@ -21,7 +21,7 @@ namespace planmill {
 namespace {
 
 namespace fs = std::filesystem;
-using nlohmann::json;
+using json = nlohmann::ordered_json;
 
 // Lines of stdout of `command`.
 std::vector<std::string> lines_of(const std::string& command) {
@@ -43,7 +43,8 @@ std::vector<std::string> lines_of(const std::string& command) {
 }
 
 TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
-  const auto dir = test::fresh_test_dir("planmill-manifest-ref");
+  const test::ScratchDir scratch("planmill-manifest-ref");
+  const auto& dir = scratch.path;
   auto run = test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 2});
   std::ofstream(dir / "units.csv") << "unit,pop\na,1\nb,2\n";
   const std::string job = test::job_text_with_verdict("");
@@ -76,7 +77,8 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
 }
 
 TEST(ManifestReference, DiagnosticsOfTheRunEqualPosteriorOnTheSameMatrices) {
-  const auto dir = test::fresh_test_dir("planmill-manifest-ref");
+  const test::ScratchDir scratch("planmill-manifest-ref");
+  const auto& dir = scratch.path;
   // Chains that differ a little (a drifting mean per chain) and an autocorrelated observable, so
   // that R-hat and ESS are away from their trivial values.
   std::map<std::uint64_t, double> level;

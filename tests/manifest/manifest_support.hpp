@@ -15,14 +15,23 @@
 
 namespace planmill::test {
 
-inline std::filesystem::path fresh_test_dir(const std::string& prefix) {
-  const auto dir = std::filesystem::temp_directory_path() /
-                   (prefix + "-" + std::to_string(::getpid()) + "-" +
-                    ::testing::UnitTest::GetInstance()->current_test_info()->name());
-  std::filesystem::remove_all(dir);
-  std::filesystem::create_directories(dir);
-  return dir;
-}
+// A folder of its own for the running test, removed when the test ends.
+struct ScratchDir {
+  std::filesystem::path path;
+  explicit ScratchDir(const std::string& prefix)
+      : path(std::filesystem::temp_directory_path() /
+             (prefix + "-" + std::to_string(::getpid()) + "-" +
+              ::testing::UnitTest::GetInstance()->current_test_info()->name())) {
+    std::filesystem::remove_all(path);
+    std::filesystem::create_directories(path);
+  }
+  ~ScratchDir() {
+    std::error_code ec;
+    std::filesystem::remove_all(path, ec);
+  }
+  ScratchDir(const ScratchDir&) = delete;
+  ScratchDir& operator=(const ScratchDir&) = delete;
+};
 
 inline std::string slurp(const std::filesystem::path& p) {
   std::ifstream in(p, std::ios::binary);

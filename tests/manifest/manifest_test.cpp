@@ -20,7 +20,7 @@ namespace planmill {
 namespace {
 
 namespace fs = std::filesystem;
-using nlohmann::json;
+using json = nlohmann::ordered_json;
 
 struct Built {
   json manifest;
@@ -57,7 +57,8 @@ void add_inputs(const fs::path& dir, test::FixtureRun& run) {
 }
 
 TEST(Manifest, DescribesEveryChainPlanFileAndInputOfTheRun) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   auto run = test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 2});
   add_inputs(dir, run);
   const Built b = merge(dir);
@@ -124,7 +125,8 @@ TEST(Manifest, DescribesEveryChainPlanFileAndInputOfTheRun) {
 }
 
 TEST(Manifest, ADamagedPlanFileIsNamedWithItsChainAndRecords) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   test::write_fixture_run(dir, {.chains = 2, .ranks = 2, .segments = 2});
   const std::string victim = RunLayout::plan_file_name(1, 1);  // chain 1, records 20..39
   fs::resize_file(dir / victim, 100);
@@ -169,7 +171,8 @@ void expect_same(double ours, double expected, const std::string& what) {
 }
 
 TEST(RunDiagnostics, EqualsTheDiagnosticsOfTheSameDrawsAfterTheExtraBurnIn) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   const auto run = test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 2});
   const RunReader reader(dir.string());
   const RunDiagnostics d = diagnose_run(reader, {1.05, 20.0}, {.burn_in = 7});
@@ -244,7 +247,8 @@ TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndJudgedAsTheTraceFor
 }
 
 TEST(RunDiagnostics, TooLargeABurnInLeavesNoDrawsAndEveryObservableSaysWhy) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   test::write_fixture_run(dir, {.chains = 2, .ranks = 1, .segments = 1});
   const RunReader reader(dir.string());
   const RunDiagnostics d = diagnose_run(reader, {}, {.burn_in = 25});
@@ -254,7 +258,8 @@ TEST(RunDiagnostics, TooLargeABurnInLeavesNoDrawsAndEveryObservableSaysWhy) {
 }
 
 TEST(VerdictRuleOfRun, ComesFromTheJobsVerdictSectionElseDefaults) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   test::write_fixture_run(dir, {.chains = 2, .ranks = 1, .segments = 1});
   {
     const RunReader reader(dir.string());  // no job.toml: the plan file's job text, no [verdict]
@@ -273,7 +278,8 @@ TEST(VerdictRuleOfRun, ComesFromTheJobsVerdictSectionElseDefaults) {
 }
 
 TEST(Manifest, DiagnoseReplacesOnlyTheDiagnosticsSectionOfAnExistingManifest) {
-  const auto dir = test::fresh_test_dir("planmill-manifest");
+  const test::ScratchDir scratch("planmill-manifest");
+  const auto& dir = scratch.path;
   test::write_fixture_run(dir, {.chains = 2, .ranks = 1, .segments = 1});
   const RunReader reader(dir.string());
   const auto problems = reader.verify();

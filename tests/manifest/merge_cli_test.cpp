@@ -26,7 +26,8 @@ test::FixtureRunOptions mixed_run() {
 }
 
 TEST(MergeCli, WritesTheManifestAndSaysWhere) {
-  const auto dir = test::fresh_test_dir("planmill-merge-cli");
+  const test::ScratchDir scratch("planmill-merge-cli");
+  const auto& dir = scratch.path;
   const auto run_dir = dir / "run";
   test::write_fixture_run(run_dir, {.chains = 2, .ranks = 2, .segments = 2});
   std::ofstream(run_dir / "manifest.json") << "an older, broken manifest";
@@ -43,7 +44,8 @@ TEST(MergeCli, WritesTheManifestAndSaysWhere) {
 }
 
 TEST(MergeCli, ADamagedPlanFileIsReportedWithExitThreeAndTheManifestIsStillWritten) {
-  const auto dir = test::fresh_test_dir("planmill-merge-cli");
+  const test::ScratchDir scratch("planmill-merge-cli");
+  const auto& dir = scratch.path;
   test::write_fixture_run(dir / "run", {.chains = 2, .ranks = 2, .segments = 2});
   fs::resize_file(dir / "run" / RunLayout::plan_file_name(1, 1), 100);  // chain 1, records 20..39
   const auto o = run_planmill(dir, "merge " + quoted(dir / "run"));
@@ -55,7 +57,8 @@ TEST(MergeCli, ADamagedPlanFileIsReportedWithExitThreeAndTheManifestIsStillWritt
 }
 
 TEST(MergeCli, NotARunDirIsOneLineAndExitTwo) {
-  const auto dir = test::fresh_test_dir("planmill-merge-cli");
+  const test::ScratchDir scratch("planmill-merge-cli");
+  const auto& dir = scratch.path;
   for (const auto& target : {dir / "absent", dir}) {  // no folder; a folder without run-state.json
     const auto o = run_planmill(dir, "merge " + quoted(target));
     EXPECT_EQ(o.status, 2) << o.out << o.err;
@@ -66,7 +69,8 @@ TEST(MergeCli, NotARunDirIsOneLineAndExitTwo) {
 }
 
 TEST(DiagnoseRunDirCli, ExitStatusFollowsTheJobsVerdictUnlessTheCommandLineOverridesIt) {
-  const auto dir = test::fresh_test_dir("planmill-diagnose-run-cli");
+  const test::ScratchDir scratch("planmill-diagnose-run-cli");
+  const auto& dir = scratch.path;
   const auto run_dir = dir / "run";
   test::write_mixed_run(run_dir, mixed_run());
   // No [verdict] in the job: defaults 1.01 and 400.
@@ -92,7 +96,8 @@ TEST(DiagnoseRunDirCli, ExitStatusFollowsTheJobsVerdictUnlessTheCommandLineOverr
 }
 
 TEST(DiagnoseRunDirCli, BadInputExitsTwo) {
-  const auto dir = test::fresh_test_dir("planmill-diagnose-run-cli");
+  const test::ScratchDir scratch("planmill-diagnose-run-cli");
+  const auto& dir = scratch.path;
   EXPECT_EQ(run_planmill(dir, "diagnose " + quoted(dir / "absent")).status, 2);
   EXPECT_EQ(run_planmill(dir, "diagnose " + quoted(dir)).status, 2);
   test::write_fixture_run(dir / "run", {.chains = 2, .ranks = 1, .segments = 1});
@@ -104,7 +109,8 @@ TEST(DiagnoseRunDirCli, BadInputExitsTwo) {
 }
 
 TEST(DiagnoseRunDirCli, DamagedChainsAreLeftOutAndTheVerdictFails) {
-  const auto dir = test::fresh_test_dir("planmill-diagnose-run-cli");
+  const test::ScratchDir scratch("planmill-diagnose-run-cli");
+  const auto& dir = scratch.path;
   test::write_mixed_run(dir / "run", mixed_run());
   fs::resize_file(dir / "run" / RunLayout::plan_file_name(1, 1), 100);  // chains 1 and 3
   const auto o = run_planmill(dir, "diagnose " + quoted(dir / "run"));
@@ -117,7 +123,8 @@ TEST(DiagnoseRunDirCli, DamagedChainsAreLeftOutAndTheVerdictFails) {
 // county_splits (observable 2) always 0, the others mixed. The verdict rule (verdict.hpp: a NaN
 // diagnostic fails) is the same for both forms of diagnose.
 TEST(DiagnoseRunDirCli, AConstantObservableIsNaNWithTheReasonAndNamedWithASuggestion) {
-  const auto dir = test::fresh_test_dir("planmill-diagnose-run-cli");
+  const test::ScratchDir scratch("planmill-diagnose-run-cli");
+  const auto& dir = scratch.path;
   Rng rng = make_stream(5, 5);
   test::write_run_with_observables(dir / "run", mixed_run(),
                                    [&rng](std::uint64_t, std::size_t, std::size_t q) {
@@ -139,7 +146,8 @@ TEST(DiagnoseRunDirCli, AConstantObservableIsNaNWithTheReasonAndNamedWithASugges
 // Internal consistency: the run dir form and the trace CSV form print the same table for the
 // same draws (burn-in included), because both end in diagnose_quantity and judge.
 TEST(DiagnoseRunDirCli, TableEqualsTheTraceFormOnTheSameDrawsExportedAsLongCsv) {
-  const auto dir = test::fresh_test_dir("planmill-diagnose-run-cli");
+  const test::ScratchDir scratch("planmill-diagnose-run-cli");
+  const auto& dir = scratch.path;
   const auto run_dir = dir / "run";
   const auto run = test::write_mixed_run(run_dir, {.chains = 3, .ranks = 2, .segments = 2,
                                                    .records_per_segment = 60});

@@ -15,12 +15,12 @@ namespace planmill {
 inline constexpr std::int64_t kManifestSchemaVersion = 1;
 
 // `problems` is reader.verify(); `diagnostics` goes in as the "diagnostics" section.
-[[nodiscard]] nlohmann::json build_manifest(const RunReader& reader,
+[[nodiscard]] nlohmann::ordered_json build_manifest(const RunReader& reader,
                                             const std::vector<ChainProblem>& problems,
                                             const RunDiagnostics& diagnostics);
 
 // Replaces RUNDIR/manifest.json atomically (a reader sees the old or the new file, never half).
-void write_manifest(const RunLayout& layout, const nlohmann::json& manifest);
+void write_manifest(const RunLayout& layout, const nlohmann::ordered_json& manifest);
 
 // Replaces only the "diagnostics" section of RUNDIR/manifest.json; when there is no manifest of
 // this schema version yet (or it cannot be parsed), builds and writes the whole manifest.

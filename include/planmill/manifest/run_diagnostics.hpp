@@ -72,7 +72,7 @@ struct RunVerdictRule {
 [[nodiscard]] RunVerdictRule verdict_rule_of_run(const RunReader& reader);
 
 // The manifest's "diagnostics" section (docs/manifest.md); NaN is written as null.
-[[nodiscard]] nlohmann::json diagnostics_to_json(const RunDiagnostics& diagnostics);
+[[nodiscard]] nlohmann::ordered_json diagnostics_to_json(const RunDiagnostics& diagnostics);
 
 // The compact table that both forms of `planmill diagnose` print, worst first.
 void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out);
