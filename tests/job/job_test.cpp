@@ -123,7 +123,8 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"party/column mismatch", "columns = [\"gov_a\", \"gov_b\"]", "columns = [\"gov_a\"]",
                "'map.elections.columns'"},
         BadJob{"syntax", "count = 20", "count = = 20", "not valid TOML"},
-        BadJob{"tempering not yet", "[verdict]", "[tempering]\nrungs = 4\n[verdict]", "not yet available"}),
+        BadJob{"tempering needs hottest_beta", "[verdict]", "[tempering]\nrungs = 4\n[verdict]",
+               "'tempering.hottest_beta': required key is missing"}),
     [](const auto& info) {
       std::string name = info.param.name;
       for (char& ch : name)
