@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 
 #include <cstdio>
+#include <iostream>
 #include <sstream>
 
 #include "export_support.hpp"
@@ -14,7 +15,8 @@ namespace {
 
 namespace fs = std::filesystem;
 
-// argv: run_dir out_dir units_csv id_column. Prints "checked ROWS PLANS WIDE_COLUMNS".
+// argv: run_dir out_dir units_csv id_column. Prints "checked ROWS PLANS WIDE_COLUMNS", then the
+// record kinds it decoded ("kinds 0 2 3").
 const char* const kPythonCheck = R"PY(
 import csv, json, math, os, re, sys
 import h5py
@@ -31,15 +33,68 @@ def varint(b, i):
             return v, i
         s += 7
 
+# Graph records (kind 4), decoded as docs/format.md ("Graph records", "Reading with h5py") says.
+class RangeDecoder:
+    def __init__(self, b):
+        self.b, self.at, self.range = b, 5, 0xFFFFFFFF
+        self.code = int.from_bytes(bytes(b[:5]), "big")
+    def normalize(self):
+        while self.range < 1 << 24:
+            self.range = (self.range << 8) & 0xFFFFFFFF
+            self.code = ((self.code << 8) | int(self.b[self.at])) & 0xFFFFFFFF
+            self.at += 1
+    def bit(self, p, i):
+        bound = (self.range >> 11) * p[i]
+        if self.code < bound:
+            self.range, p[i], bit = bound, p[i] + ((2048 - p[i]) >> 5), 0
+        else:
+            self.code -= bound; self.range -= bound; p[i] -= p[i] >> 5; bit = 1
+        self.normalize(); return bit
+    def direct(self):
+        self.range >>= 1
+        bit = int(self.code >= self.range)
+        if bit: self.code -= self.range
+        self.normalize(); return bit
+
+def graph_plan(b, lower, k):
+    rc, p, plan, latest, prev = RangeDecoder(b), [1024] * 86, [0] * len(lower), {}, -1
+    for u in range(len(lower)):
+        count = {}
+        for v in lower[u]: count[plan[v]] = count.get(plan[v], 0) + 1
+        cands = sorted(count, key=lambda d: (-count[d], d))
+        label = None
+        for i, d in enumerate(cands):
+            ctx = (((min(len(cands), 3) - 1) * 3 + min(i, 2)) * 3 + min(count[d], 3) - 1) * 2
+            if rc.bit(p, ctx + (d == prev)): label = d; break
+        if label is None:
+            g, length, m = 54 + (16 if cands else 0), 1, 1
+            while rc.bit(p, g + length - 1): length += 1
+            for _ in range(length - 1): m = 2 * m + rc.direct()
+            rest = sorted((d for d in range(k) if d not in count),
+                          key=lambda d: (-latest.get(d, -1), d))
+            label = rest[m - 1]
+        plan[u], latest[label], prev = label, u, label
+    return np.array(plan, dtype=np.int64)
+
+kinds_seen = set()
+
 def decode(f, chain):
-    w = 1 if int(f.attrs["district_count"]) <= 255 else 2
+    k = int(f.attrs["district_count"])
+    w = 1 if k <= 255 else 2
+    lower = None
+    if "unit_adjacency" in f:
+        off, nb = f["unit_adjacency/offsets"][...], f["unit_adjacency/neighbors"][...]
+        lower = [[int(v) for v in nb[off[u]:off[u + 1]] if v < u] for u in range(len(off) - 1)]
     g = f["chain_%d" % chain]
     data, plan = g["plan_bytes"][...], None
     lab = lambda b, i: int.from_bytes(bytes(b[i:i + w]), "little")
     for step, off, length, kind in g["plan_records"][...]:
         b = data[off:off + length]
+        kinds_seen.add(int(kind))
         if kind == 0:
             plan = (b.view("<u2") if w == 2 else b).astype(np.int64)
+        elif kind == 4:
+            plan = graph_plan(b, lower, k)
         elif kind == 1:
             pass
         elif kind == 2:
@@ -132,13 +187,15 @@ if os.path.exists(wide):
                    "plans-wide.csv column " + column)
         wide_columns += 1
 print("checked %d %d %d" % (rows, checked, wide_columns))
+print("kinds " + " ".join(str(x) for x in sorted(kinds_seen)))
 )PY";
 
-// Runs the check; returns its one line of output ("checked ...") or the failure it printed.
-std::string python_check(const test::ExportFixture& f) {
-  const std::string script = f.dir.write("check.py", kPythonCheck);
-  const std::string command = "/usr/bin/python3 " + script + " " + f.run_dir.string() + " " +
-                              f.out_dir.string() + " " + f.units_csv.string() + " unit 2>&1";
+// Runs the check; returns its output ("checked ...\nkinds ...\n") or the failure it printed.
+std::string python_check(const test::TempDir& dir, const fs::path& run_dir, const fs::path& out_dir,
+                         const fs::path& units_csv) {
+  const std::string script = dir.write("check.py", kPythonCheck);
+  const std::string command = "/usr/bin/python3 " + script + " " + run_dir.string() + " " +
+                              out_dir.string() + " " + units_csv.string() + " unit 2>&1";
   FILE* pipe = ::popen(command.c_str(), "r");
   std::string output;
   char buffer[512];
@@ -147,13 +204,19 @@ std::string python_check(const test::ExportFixture& f) {
   return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
 }
 
+std::string python_check(const test::ExportFixture& f) {
+  return python_check(f.dir, f.run_dir, f.out_dir, f.units_csv);
+}
+
+std::string first_line(const std::string& text) { return text.substr(0, text.find('\n')); }
+
 TEST(ExportH5py, EveryPlanAndObservableMatchesAnIndependentReader) {
   test::ExportFixture f({.chains = 3, .ranks = 2, .segments = 3, .records_per_segment = 25,
                          .units = 60, .districts = 5});
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
                                " --every 1 --plan-layout both"), 0);
   // 3 chains x 75 records: every row, every plan file, every wide column.
-  EXPECT_EQ(python_check(f), "checked 225 225 225\n");
+  EXPECT_EQ(first_line(python_check(f)), "checked 225 225 225");
 }
 
 TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
@@ -161,14 +224,27 @@ TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
                          .units = 400, .districts = 300});
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
                                " --chains 1 --every 7 --plans 0:59,0:0 --plan-layout both"), 0);
-  EXPECT_EQ(python_check(f), "checked 120 11 11\n");  // records 0,7,...,56 of chain 1, and two
+  EXPECT_EQ(first_line(python_check(f)), "checked 120 11 11");  // records 0,7,...,56 of chain 1, and two
+}
+
+// A real run of `planmill run` on a `planmill synth` state: 2 chains, records at steps
+// 55, 60, ..., 400 (70 each).
+TEST(ExportH5py, ARealRunMatchesAnIndependentReader) {
+  test::TempDir dir;
+  const test::RealRun run = test::write_real_run(dir.path());
+  const fs::path out = dir.path() / "csv";
+  ASSERT_EQ(test::run_export(run.run_dir.string() + " --out " + out.string() +
+                             " --every 3 --plan-layout both"), 0);
+  const std::string result = python_check(dir, run.run_dir, out, run.units_csv);
+  EXPECT_EQ(first_line(result), "checked 140 48 48") << result;
+  std::cout << "record kinds decoded: " << result.substr(result.find('\n') + 1);
 }
 
 // The check itself must catch a wrong district or a wrong observable.
 TEST(ExportH5py, TheCheckCatchesAChangedDistrictOrObservable) {
   test::ExportFixture f({.chains = 2, .ranks = 1, .segments = 1, .records_per_segment = 10});
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --plans 1:4"), 0);
-  ASSERT_EQ(python_check(f), "checked 20 1 0\n");
+  ASSERT_EQ(first_line(python_check(f)), "checked 20 1 0");
   const std::string plan_file = (f.out_dir / "plans" / "chain-1-record-4.csv").string();
   const std::string plan = test::read_file(plan_file);
   std::string changed = plan;

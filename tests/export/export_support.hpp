@@ -4,6 +4,7 @@
 #include <sys/wait.h>
 
 #include <cstdlib>
+#include <fstream>
 #include <filesystem>
 #include <string>
 #include <vector>
@@ -52,6 +53,32 @@ inline int run_export(const std::string& args, std::string* errors = nullptr) {
   if (errors) *errors = read_file(err);
   std::filesystem::remove(err);
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+// A real run: `planmill synth` writes a small invented state with its job, `planmill run` samples
+// it (alone, without mpiexec). DIR/state/{job.toml,units.csv,...}, DIR/run.
+struct RealRun {
+  std::filesystem::path job, units_csv, run_dir;
+};
+
+inline int shell_status(const std::string& command) {
+  const int raw = std::system(command.c_str());
+  return WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+}
+
+inline RealRun write_real_run(const std::filesystem::path& dir) {
+  RealRun r{dir / "state" / "job.toml", dir / "state" / "units.csv", dir / "run"};
+  const std::string binary = PLANMILL_BINARY;
+  EXPECT_EQ(shell_status(binary + " synth --units 200 --districts 4 --seed 8 --out " +
+                         (dir / "state").string() + " > /dev/null"), 0);
+  std::ofstream(r.job, std::ios::app)
+      << "[sampler]\nchains = 2\nsteps = 400\nburn_in = 50\nrecord_every = 5\nseed = 4\n";
+  ::setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  ::setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  EXPECT_EQ(shell_status(binary + " run " + r.job.string() + " --output " + r.run_dir.string() +
+                         " --quiet > " + (dir / "run.log").string() + " 2>&1"), 0)
+      << read_file((dir / "run.log").string());
+  return r;
 }
 
 }  // namespace planmill::test

@@ -11,7 +11,11 @@
 
 #include "export_support.hpp"
 #include "planmill/base/error.hpp"
+#include "planmill/graph/load.hpp"
 #include "planmill/io/csv.hpp"
+#include "planmill/io/plan_csv.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/plan/plan.hpp"
 
 namespace planmill {
 namespace {
@@ -237,6 +241,49 @@ TEST(Export, ADamagedPlanFileLeavesOutOnlyItsChainWithItsRecordRange) {
   EXPECT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --every 10",
                                &errors), 3);
   EXPECT_NE(errors.find("chain 1, records 20-39"), std::string::npos) << errors;
+}
+
+// End to end on a real run: every exported plan is a valid plan of the map (read back by the plan
+// CSV reader against the real graph), and the observables exported beside it are what the plan
+// itself gives when recomputed from scratch.
+TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
+  test::TempDir dir;
+  const test::RealRun run = test::write_real_run(dir.path());
+  const fs::path out = dir.path() / "csv";
+  ASSERT_EQ(test::run_export(run.run_dir.string() + " --out " + out.string() + " --every 4"), 0);
+  const JobSpec job = load_job(run.job.string());
+  const UnitGraph graph = load_unit_graph(job.map);
+  const CsvTable table = read_csv_file((out / observables_file_name()).string());
+  const std::size_t cut = table.column_index("cut_edges");
+  const std::size_t deviation = table.column_index("population_deviation");
+  ASSERT_NE(cut, std::string::npos);
+  ASSERT_NE(deviation, std::string::npos);
+  EXPECT_EQ(table.rows.size(), 140u);  // 2 chains, records at steps 55, 60, ..., 400
+  std::size_t plans = 0;
+  for (const CsvRow& row : table.rows) {
+    const RecordRef ref{std::stoull(row.fields[0]), std::stoull(row.fields[1])};
+    if (ref.record % 4 != 0) continue;
+    const Plan plan = read_plan_csv((out / plan_file_name(ref)).string(), graph, job.districts);
+    EXPECT_TRUE(plan.all_connected()) << plan_file_name(ref);
+    // Cut edges and max |P_d - P/k| / (P/k) counted here from the edge list and unit populations.
+    std::size_t cut_edges = 0;
+    for (EdgeIndex e = 0; e < graph.edge_count(); ++e) {
+      cut_edges += plan.district_of(graph.edge_first(e)) != plan.district_of(graph.edge_second(e));
+    }
+    std::vector<double> population(job.districts, 0.0);
+    for (UnitIndex u = 0; u < graph.unit_count(); ++u) {
+      population[plan.district_of(u)] += static_cast<double>(graph.population(u));
+    }
+    const double ideal = static_cast<double>(graph.total_population()) / job.districts;
+    double worst = 0;
+    for (double p : population) worst = std::max(worst, std::abs(p - ideal) / ideal);
+    EXPECT_EQ(std::to_string(cut_edges), row.fields[cut]) << plan_file_name(ref);
+    const double recorded = std::strtod(row.fields[deviation].c_str(), nullptr);
+    EXPECT_NEAR(worst, recorded, 1e-12) << plan_file_name(ref);  // rounding only
+    EXPECT_LE(recorded, job.rules.population_deviation);
+    ++plans;
+  }
+  EXPECT_EQ(plans, 36u);
 }
 
 }  // namespace
