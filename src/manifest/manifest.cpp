@@ -1,5 +1,6 @@
 #include "planmill/manifest/manifest.hpp"
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -57,6 +58,28 @@ std::string file_of(const RunState& state, const ChainProblem& p) {
     }
   }
   return {};
+}
+
+// verify() may report a damaged stretch as many neighbouring ranges (one per plan record); adjacent
+// ranges of one chain with the same cause become one.
+std::vector<ChainProblem> coalesced(std::vector<ChainProblem> problems) {
+  std::stable_sort(problems.begin(), problems.end(), [](const auto& a, const auto& b) {
+    return a.chain_index != b.chain_index ? a.chain_index < b.chain_index
+                                          : a.first_record < b.first_record;
+  });
+  std::vector<ChainProblem> out;
+  for (auto& p : problems) {
+    if (!out.empty()) {
+      auto& last = out.back();
+      if (last.chain_index == p.chain_index && last.what == p.what &&
+          last.last_record != UINT64_MAX && p.first_record <= last.last_record + 1) {
+        last.last_record = std::max(last.last_record, p.last_record);
+        continue;
+      }
+    }
+    out.push_back(std::move(p));
+  }
+  return out;
 }
 
 }  // namespace
@@ -117,7 +140,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   std::map<std::uint64_t, json> chain_problems;
   std::map<std::string, json> file_problems;
   json all_problems = json::array();
-  for (const auto& p : problems) {
+  for (const auto& p : coalesced(problems)) {
     const std::string file = file_of(s, p);
     const json j = problem_json(p, file);
     all_problems.push_back(j);
@@ -185,7 +208,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
                  {"accepted", total_accepted},
                  {"plan_files", s.files.size()},
                  {"plan_bytes", total_bytes},
-                 {"problems", problems.size()},
+                 {"problems", all_problems.size()},
                  {"inputs_not_matching", inputs_changed}};
   m["diagnostics"] = diagnostics_to_json(diagnostics);
   return m;

@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <ostream>
 #include <set>
 #include <sstream>
@@ -85,12 +86,17 @@ RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,
 RunDiagnostics diagnose_run(const RunReader& reader, const diagnose::VerdictRule& rule,
                             const RunDiagnosticsOptions& options) {
   const std::vector<ChainProblem> problems = options.problems ? *options.problems : reader.verify();
-  std::vector<LeftOutChain> left_out;
-  std::set<std::uint64_t> damaged;
+  // Per damaged chain: the span from its first to its last damaged record, and the first cause.
+  std::map<std::uint64_t, ChainProblem> damaged;
   for (const auto& p : problems) {
-    if (damaged.insert(p.chain_index).second) {
-      left_out.push_back({p.chain_index, record_range(p) + " damaged: " + p.what});
-    }
+    auto [it, fresh] = damaged.emplace(p.chain_index, p);
+    if (fresh) continue;
+    it->second.first_record = std::min(it->second.first_record, p.first_record);
+    it->second.last_record = std::max(it->second.last_record, p.last_record);
+  }
+  std::vector<LeftOutChain> left_out;
+  for (const auto& [chain, p] : damaged) {
+    left_out.push_back({chain, record_range(p) + " damaged: " + p.what});
   }
   std::vector<ChainTraces> traces;
   for (const auto chain : reader.chains()) {

@@ -76,6 +76,42 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
   EXPECT_EQ(m["job"]["sha256"], theirs[theirs.size() - 2]);  // the job text as recorded at start
 }
 
+// h5py (/usr/bin/python3) finds where the second stored chunk of chain 1's observable table lies
+// in the file and which rows it holds; one byte flipped there must be reported for exactly those
+// records of chain 1, and nothing else.
+TEST(ManifestReference, AFlippedByteIsReportedForTheRecordsOfItsChunk) {
+  const test::ScratchDir scratch("planmill-manifest-ref");
+  const auto& dir = scratch.path;
+  test::write_fixture_run(dir, {.chains = 2, .ranks = 2, .segments = 2, .records_per_segment = 600});
+  const std::string file = RunLayout::plan_file_name(0, 1);  // chain 1's records 0..599
+  const auto found = lines_of(
+      "/usr/bin/python3 -c 'import h5py, sys\n"
+      "d = h5py.File(sys.argv[1], \"r\")[\"chain_1/observables\"]\n"
+      "c = d.id.get_chunk_info(1)\n"
+      "print(c.byte_offset + c.size // 2)\n"
+      "print(c.chunk_offset[0])\n"
+      "print(min(d.shape[0], c.chunk_offset[0] + d.chunks[0]) - 1)' '" +
+      (dir / file).string() + "'");
+  ASSERT_EQ(found.size(), 3U);
+  const long offset = std::stol(found[0]);
+  {
+    std::fstream f(dir / file, std::ios::in | std::ios::out | std::ios::binary);
+    f.seekg(offset);
+    const char byte = static_cast<char>(f.get());
+    f.seekp(offset);
+    f.put(static_cast<char>(byte ^ 0x5a));
+  }
+  const RunReader reader(dir.string());
+  const auto problems = reader.verify();
+  const json m = build_manifest(reader, problems, diagnose_run(reader, {}, {.problems = problems}));
+  ASSERT_EQ(m["problems"].size(), 1U) << m["problems"].dump(1);
+  EXPECT_EQ(m["problems"][0]["chain"], 1U);
+  EXPECT_EQ(m["problems"][0]["first_record"], std::stoull(found[1]));
+  EXPECT_EQ(m["problems"][0]["last_record"], std::stoull(found[2]));
+  EXPECT_EQ(m["problems"][0]["file"], file);
+  EXPECT_EQ(m["diagnostics"]["left_out"][0]["chain"], 1U);
+}
+
 TEST(ManifestReference, DiagnosticsOfTheRunEqualPosteriorOnTheSameMatrices) {
   const test::ScratchDir scratch("planmill-manifest-ref");
   const auto& dir = scratch.path;
