@@ -5,7 +5,6 @@
 #include <fstream>
 #include <iterator>
 #include <set>
-#include <sstream>
 
 #include "planmill/base/error.hpp"
 #include "planmill/export/export.hpp"
@@ -140,18 +139,6 @@ ExportResult export_run(const ExportOptions& o) {
     for (const std::string& id : ids) (void)builder.add_unit(id, 0);
     id_graph = std::move(builder).build();
   }
-  std::vector<std::pair<RecordRef, std::vector<DistrictIndex>>> plans;
-  for (const RecordRef& ref : chosen) {
-    if (left_out(bad, ref.chain)) continue;
-    try {
-      plans.emplace_back(ref, run.read_plan(ref.chain, ref.record));
-    } catch (const StoreError& e) {
-      leave_out(result, bad, ref.chain, run.record_count(ref.chain), e.what());
-    }
-  }
-  std::erase_if(plans, [&](const auto& p) { return left_out(bad, p.first.chain); });
-  std::erase_if(rows, [&](const ChainRows& r) { return left_out(bad, r.chain); });
-
   const fs::path out(o.out_dir);
   std::error_code ec;
   fs::create_directories(out, ec);
@@ -163,6 +150,27 @@ ExportResult export_run(const ExportOptions& o) {
     write_file_atomically((out / name).string(), text);
     result.written.push_back(name);
   };
+
+  // Plan files are written as they are read, so memory holds one plan (the wide table needs all).
+  if (o.layout != PlanLayout::wide && !chosen.empty()) fs::create_directories(out / "plans", ec);
+  std::vector<std::pair<RecordRef, std::vector<DistrictIndex>>> wide_plans;
+  for (const RecordRef& ref : chosen) {
+    if (left_out(bad, ref.chain)) continue;
+    std::vector<DistrictIndex> labels;
+    try {
+      labels = run.read_plan(ref.chain, ref.record);
+    } catch (const StoreError& e) {
+      leave_out(result, bad, ref.chain, run.record_count(ref.chain), e.what());
+      continue;
+    }
+    if (o.layout != PlanLayout::wide) {
+      write(plan_file_name(ref), plan_csv_text(Plan(id_graph, run.district_count(), labels)));
+    }
+    if (o.layout != PlanLayout::files) wide_plans.emplace_back(ref, std::move(labels));
+  }
+  // A chain found damaged while reading plans is left out of the tables too.
+  std::erase_if(wide_plans, [&](const auto& p) { return left_out(bad, p.first.chain); });
+  std::erase_if(rows, [&](const ChainRows& r) { return left_out(bad, r.chain); });
 
   std::string table = "chain,record,step";
   for (const std::string& name : names) table += "," + csv_field(name);
@@ -181,20 +189,13 @@ ExportResult export_run(const ExportOptions& o) {
   }
   write(observables_file_name(), table);
 
-  if (o.layout != PlanLayout::wide && !plans.empty()) {
-    fs::create_directories(out / "plans", ec);
-    for (auto& [ref, labels] : plans) {
-      const Plan plan(id_graph, run.district_count(), labels);
-      write(plan_file_name(ref), plan_csv_text(plan));
-    }
-  }
-  if (o.layout != PlanLayout::files && !plans.empty()) {
+  if (!wide_plans.empty()) {
     std::string wide = "unit";
-    for (const auto& p : plans) wide += "," + wide_column_name(p.first);
+    for (const auto& p : wide_plans) wide += "," + wide_column_name(p.first);
     wide += '\n';
     for (UnitIndex u = 0; u < ids.size(); ++u) {
       wide += csv_field(ids[u]);
-      for (const auto& p : plans) {
+      for (const auto& p : wide_plans) {
         wide += ',';
         wide += std::to_string(static_cast<unsigned>(p.second[u]) + 1);
       }
@@ -202,8 +203,7 @@ ExportResult export_run(const ExportOptions& o) {
     }
     write(wide_file_name(), wide);
   }
-  result.plans = plans.size();
+  for (const RecordRef& ref : chosen) result.plans += left_out(bad, ref.chain) ? 0 : 1;
   return result;
 }
-
 }  // namespace planmill
