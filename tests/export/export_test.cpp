@@ -13,6 +13,7 @@
 #include "planmill/base/error.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/io/csv.hpp"
+#include "planmill/io/file_hash.hpp"
 #include "planmill/io/plan_csv.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/plan/plan.hpp"
@@ -204,6 +205,20 @@ TEST(Export, AUnitTableOfAnotherSizeIsRefused) {
   const std::string message =
       test::expect_input_error([&] { (void)export_run(o); }, f.units_csv.string(), 0, "");
   EXPECT_NE(message.find("has 2 units but the run's plans have 30"), std::string::npos) << message;
+}
+
+TEST(Export, AUnitTableChangedSinceTheRunStartedIsWarnedAbout) {
+  ExportFixture f;
+  ExportOptions o = options_for(f);
+  o.plans.records = {{0, 3}};
+  f.run.state.inputs = {{"units", f.units_csv.string(), sha256_file_hex(f.units_csv.string())}};
+  write_run_state(RunLayout{f.run_dir}, f.run.state);
+  EXPECT_TRUE(export_run(o).warnings.empty());
+  f.run.state.inputs[0].sha256 = sha256_hex("another table");
+  write_run_state(RunLayout{f.run_dir}, f.run.state);
+  const auto warnings = export_run(o).warnings;
+  ASSERT_EQ(warnings.size(), 1u);
+  EXPECT_NE(warnings[0].find("differs from the one the run started with"), std::string::npos);
 }
 
 TEST(Export, AnExistingFolderIsReusedAndItsFilesReplaced) {
