@@ -4,7 +4,9 @@
 // Counters: file bytes per recorded plan (after flush, leaving out the fixed cost of a file:
 // header, unit adjacency, HDF5 metadata, counter fixed_file_bytes), encoded bytes per record
 // before deflate, and bits per unit per recorded plan. BM_ChainOnly is the same chain without
-// recording, for the relative write cost; BM_GraphRecord times the self-contained record kind.
+// recording, for the relative write cost (per-record clock reads would cost more than they
+// measure: use perf for the share of the writer); BM_GraphRecord times the self-contained record
+// kind.
 //   build/benchmarks/bench_store --benchmark_min_time=3
 #include <benchmark/benchmark.h>
 #include <unistd.h>
@@ -119,6 +121,49 @@ void BM_ChainRecording(benchmark::State& bench) {
       records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
   bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph.unit_count());
 }
+
+// The writer alone: record() on 1,000 plans of the chain taken `interval` steps apart, replayed
+// in a loop (one jump back to the first plan per 1,000 records). No chain runs in between, so this
+// is the write cost per record without the chain's use of the caches.
+void BM_WriterOnly(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  const auto interval = static_cast<std::size_t>(bench.range(0));
+  Chain chain = make_chain(s);
+  constexpr std::size_t kPlans = 1000;
+  const std::size_t n = s.graph.unit_count();
+  std::vector<DistrictIndex> plans(kPlans * n);
+  std::vector<double> observables(2 * kPlans);
+  for (std::size_t r = 0; r < kPlans; ++r) {
+    for (std::size_t i = 0; i < interval; ++i) (void)chain.step();
+    const Plan& p = chain.state().plan;
+    std::copy(p.assignment().begin(), p.assignment().end(), plans.begin() + r * n);
+    observables[2 * r] = static_cast<double>(p.cut_edge_count());
+    observables[2 * r + 1] = p.max_population_deviation();
+  }
+  const fs::path path =
+      fs::temp_directory_path() / ("planmill_bench_writer_" + std::to_string(getpid()) + ".h5");
+  {
+    EnsembleWriter writer(path.string(), {n, 100, "", unit_adjacency(s.graph)});
+    const std::size_t h = writer.add_chain(0, {"cut_edges", "max_population_deviation"});
+    std::size_t r = 0;
+    std::uint64_t step = 0;
+    for (auto _ : bench) {
+      writer.record(h, ++step, std::span(plans).subspan(r * n, n),
+                    std::span(observables).subspan(2 * r, 2));
+      if (++r == kPlans) r = 0;
+    }
+    writer.flush();
+  }
+  fs::remove(path);
+  bench.SetItemsProcessed(bench.iterations());
+}
+
+BENCHMARK(BM_WriterOnly)
+    ->ArgName("interval")
+    ->Arg(1)
+    ->Arg(10)
+    ->Arg(100)
+    ->Unit(benchmark::kMicrosecond);
 
 // Encoding and decoding one plan of the chain as a graph record (the self-contained kind).
 void BM_GraphRecord(benchmark::State& bench) {
