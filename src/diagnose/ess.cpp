@@ -33,8 +33,12 @@ const Fft& fft_of_size(std::size_t p) {
 class MeanAutocovariance {
  public:
   explicit MeanAutocovariance(const Matrix& x)
-      : n_(x.draws), m_(x.chains), centred_(scratch(0)), mean_(scratch(1)),
-        chain_mean_(scratch(2)), known_(0) {
+      : n_(x.draws),
+        m_(x.chains),
+        centred_(scratch(0)),
+        mean_(scratch(1)),
+        chain_mean_(scratch(2)),
+        known_(0) {
     centred_.assign(x.values.begin(), x.values.end());
     mean_.assign(n_, 0.0);
     chain_mean_.assign(m_, 0.0);

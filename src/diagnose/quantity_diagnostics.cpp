@@ -11,8 +11,8 @@ using namespace detail;
 
 QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-  QuantityDiagnostics q{std::move(name), kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN,
-                        kNaN, kNaN, {}};
+  QuantityDiagnostics q{
+      std::move(name), kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, {}};
   auto note = [&q](const Estimate& e) {
     if (!e.ok() && q.note.empty()) q.note = std::string(e.reason);
     return e.value;
@@ -51,9 +51,10 @@ QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   const Estimate ess_q05 = ess_of(w.indicator);
   indicator_at_quantile(w.split, w.sorted, 0.95, w.indicator);
   const Estimate ess_q95 = ess_of(w.indicator);
-  q.ess_tail = note(!ess_q05.ok() ? ess_q05 : !ess_q95.ok() ? ess_q95
-                    : ess_q05.value <= ess_q95.value       ? ess_q05
-                                                           : ess_q95);
+  q.ess_tail = note(!ess_q05.ok()                    ? ess_q05
+                    : !ess_q95.ok()                  ? ess_q95
+                    : ess_q05.value <= ess_q95.value ? ess_q05
+                                                     : ess_q95);
   q.mcse_q05 = note(mcse_quantile_from(w.sorted, ess_q05, 0.05));
   q.mcse_q95 = note(mcse_quantile_from(w.sorted, ess_q95, 0.95));
 

@@ -57,7 +57,8 @@ void radix_sort(std::vector<std::uint64_t>& key, std::vector<std::uint32_t>& pay
   std::fill(count.begin(), count.end(), 0U);
   for (std::size_t i = 0; i < n; ++i) {
     const std::uint64_t k = key[i];
-    for (unsigned d = 0; d < kDigits; ++d) ++count[d * kBuckets + ((k >> (d * kBits)) & (kBuckets - 1))];
+    for (unsigned d = 0; d < kDigits; ++d)
+      ++count[d * kBuckets + ((k >> (d * kBits)) & (kBuckets - 1))];
   }
   for (unsigned d = 0; d < kDigits; ++d) {
     const unsigned shift = d * kBits;
@@ -191,7 +192,8 @@ void split_chains(DrawMatrix x, Matrix& out) {
   out.chains = 2 * x.chains;
   for (std::size_t c = 0; c < x.chains; ++c) {
     const auto chain = x.chain(c);
-    std::copy_n(chain.begin(), half, out.values.begin() + static_cast<std::ptrdiff_t>(2 * c * half));
+    std::copy_n(chain.begin(), half,
+                out.values.begin() + static_cast<std::ptrdiff_t>(2 * c * half));
     std::copy_n(chain.end() - static_cast<std::ptrdiff_t>(half), half,
                 out.values.begin() + static_cast<std::ptrdiff_t>((2 * c + 1) * half));
   }
@@ -340,8 +342,8 @@ Estimate rhat_of(const Matrix& x) {
   const double var_between = static_cast<double>(n) * static_cast<double>(between / (m - 1));
   const double var_within = static_cast<double>(r_mean(chain_var));
   // R-hat = sqrt(var+ / W), var+ = (n-1)/n W + B/n, eqs. (3)-(4), in posterior's arrangement.
-  const double r = std::sqrt((var_between / var_within + static_cast<double>(n) - 1.0) /
-                             static_cast<double>(n));
+  const double r =
+      std::sqrt((var_between / var_within + static_cast<double>(n) - 1.0) / static_cast<double>(n));
   if (std::isnan(r)) return Estimate::nan("no variation within chains");
   return {r, {}};
 }
