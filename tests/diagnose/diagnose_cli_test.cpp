@@ -147,10 +147,11 @@ TEST_F(DiagnoseCli, OtherBadInputExitsTwo) {
   EXPECT_NE(missing.err.find("absent.csv"), std::string::npos) << missing.err;
 }
 
-TEST_F(DiagnoseCli, RunDirIsNotYetAvailable) {
+// A folder without run-state.json is not a run folder: bad input, named in the message.
+TEST_F(DiagnoseCli, FolderWithoutRunStateExitsTwo) {
   const Outcome o = run("'" + dir_.string() + "'");
   EXPECT_EQ(o.status, 2);
-  EXPECT_NE(o.err.find("not yet available"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("run-state.json"), std::string::npos) << o.err;
 }
 
 }  // namespace
