@@ -40,13 +40,15 @@ std::vector<std::string> run_unit_ids(const RunReader& run, const ExportOptions&
     }
     // Relative paths in the job are relative to the job file as it was given to `planmill run`.
     const std::string& given = run.state().job_path;
-    const JobSpec job = parse_job_text(read_text(job_copy), given.empty() ? job_copy.string() : given);
+    const JobSpec job =
+        parse_job_text(read_text(job_copy), given.empty() ? job_copy.string() : given);
     if (units_path.empty()) {
       units_path = job.map.units_path;
       if (!fs::is_regular_file(units_path)) {
         throw InputError({job_copy.string(), 0, "map.units"},
-                         "names unit table '" + units_path + "' (relative to the job file as given, '" +
-                             given + "'), which is not there",
+                         "names unit table '" + units_path +
+                             "' (relative to the job file as given, '" + given +
+                             "'), which is not there",
                          "run export from the folder the run was started in, or give the table "
                          "with --map-units FILE");
       }
@@ -63,9 +65,9 @@ std::vector<std::string> run_unit_ids(const RunReader& run, const ExportOptions&
   for (const InputFileEntry& input : run.state().inputs) {
     if (input.role != "units" || input.sha256.empty()) continue;
     if (sha256_file_hex(units_path) != input.sha256) {
-      result.warnings.push_back("unit table " + units_path +
-                                " differs from the one the run started with (SHA-256 " +
-                                input.sha256.substr(0, 12) + "...); check that its rows are in the same order");
+      result.warnings.push_back(
+          "unit table " + units_path + " differs from the one the run started with (SHA-256 " +
+          input.sha256.substr(0, 12) + "...); check that its rows are in the same order");
     }
   }
   return ids;
@@ -77,7 +79,9 @@ struct ChainRows {
   std::vector<double> values;  // records x observables
 };
 
-bool left_out(const std::set<std::uint64_t>& bad, std::uint64_t chain) { return bad.count(chain) > 0; }
+bool left_out(const std::set<std::uint64_t>& bad, std::uint64_t chain) {
+  return bad.count(chain) > 0;
+}
 
 void leave_out(ExportResult& result, std::set<std::uint64_t>& bad, std::uint64_t chain,
                std::uint64_t records, const std::string& what) {
@@ -98,7 +102,8 @@ std::string csv_number(double value) {
 std::string observables_file_name() { return "observables.csv"; }
 std::string wide_file_name() { return "plans-wide.csv"; }
 std::string plan_file_name(const RecordRef& ref) {
-  return "plans/chain-" + std::to_string(ref.chain) + "-record-" + std::to_string(ref.record) + ".csv";
+  return "plans/chain-" + std::to_string(ref.chain) + "-record-" + std::to_string(ref.record) +
+         ".csv";
 }
 std::string wide_column_name(const RecordRef& ref) {
   return "c" + std::to_string(ref.chain) + "_r" + std::to_string(ref.record);

@@ -9,7 +9,8 @@
 
 namespace planmill {
 
-std::vector<std::string> read_unit_ids(const std::string& units_path, const std::string& id_column) {
+std::vector<std::string> read_unit_ids(const std::string& units_path,
+                                       const std::string& id_column) {
   if (!std::filesystem::is_regular_file(units_path)) {
     throw InputError({units_path, 0, ""}, "the unit table is not there",
                      "give the unit table the run used with --map-units FILE");
@@ -30,10 +31,10 @@ std::vector<std::string> read_unit_ids(const std::string& units_path, const std:
     if (id.empty()) throw InputError({units_path, row.line, id_column}, "unit id is empty");
     const auto [it, added] = line_of.emplace(id, row.line);
     if (!added) {
-      throw InputError({units_path, row.line, id_column},
-                       "unit id '" + id + "' appears again (first on line " +
-                           std::to_string(it->second) + ")",
-                       "give the unit table the run used with --map-units FILE");
+      throw InputError(
+          {units_path, row.line, id_column},
+          "unit id '" + id + "' appears again (first on line " + std::to_string(it->second) + ")",
+          "give the unit table the run used with --map-units FILE");
     }
     ids.push_back(id);
   }

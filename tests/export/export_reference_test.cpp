@@ -211,20 +211,31 @@ std::string python_check(const test::ExportFixture& f) {
 std::string first_line(const std::string& text) { return text.substr(0, text.find('\n')); }
 
 TEST(ExportH5py, EveryPlanAndObservableMatchesAnIndependentReader) {
-  test::ExportFixture f({.chains = 3, .ranks = 2, .segments = 3, .records_per_segment = 25,
-                         .units = 60, .districts = 5});
+  test::ExportFixture f({.chains = 3,
+                         .ranks = 2,
+                         .segments = 3,
+                         .records_per_segment = 25,
+                         .units = 60,
+                         .districts = 5});
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
-                               " --every 1 --plan-layout both"), 0);
+                             " --every 1 --plan-layout both"),
+            0);
   // 3 chains x 75 records: every row, every plan file, every wide column.
   EXPECT_EQ(first_line(python_check(f)), "checked 225 225 225");
 }
 
 TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
-  test::ExportFixture f({.chains = 2, .ranks = 1, .segments = 2, .records_per_segment = 30,
-                         .units = 400, .districts = 300});
+  test::ExportFixture f({.chains = 2,
+                         .ranks = 1,
+                         .segments = 2,
+                         .records_per_segment = 30,
+                         .units = 400,
+                         .districts = 300});
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
-                               " --chains 1 --every 7 --plans 0:59,0:0 --plan-layout both"), 0);
-  EXPECT_EQ(first_line(python_check(f)), "checked 120 11 11");  // records 0,7,...,56 of chain 1, and two
+                             " --chains 1 --every 7 --plans 0:59,0:0 --plan-layout both"),
+            0);
+  EXPECT_EQ(first_line(python_check(f)),
+            "checked 120 11 11");  // records 0,7,...,56 of chain 1, and two
 }
 
 // A real run of `planmill run` on a `planmill synth` state: 2 chains, records at steps
@@ -234,7 +245,8 @@ TEST(ExportH5py, ARealRunMatchesAnIndependentReader) {
   const test::RealRun run = test::write_real_run(dir.path());
   const fs::path out = dir.path() / "csv";
   ASSERT_EQ(test::run_export(run.run_dir.string() + " --out " + out.string() +
-                             " --every 3 --plan-layout both"), 0);
+                             " --every 3 --plan-layout both"),
+            0);
   const std::string result = python_check(dir, run.run_dir, out, run.units_csv);
   EXPECT_EQ(first_line(result), "checked 140 48 48") << result;
   std::cout << "record kinds decoded: " << result.substr(result.find('\n') + 1);
@@ -243,7 +255,8 @@ TEST(ExportH5py, ARealRunMatchesAnIndependentReader) {
 // The check itself must catch a wrong district or a wrong observable.
 TEST(ExportH5py, TheCheckCatchesAChangedDistrictOrObservable) {
   test::ExportFixture f({.chains = 2, .ranks = 1, .segments = 1, .records_per_segment = 10});
-  ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --plans 1:4"), 0);
+  ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --plans 1:4"),
+            0);
   ASSERT_EQ(first_line(python_check(f)), "checked 20 1 0");
   const std::string plan_file = (f.out_dir / "plans" / "chain-1-record-4.csv").string();
   const std::string plan = test::read_file(plan_file);

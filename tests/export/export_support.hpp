@@ -4,8 +4,8 @@
 #include <sys/wait.h>
 
 #include <cstdlib>
-#include <fstream>
 #include <filesystem>
+#include <fstream>
 #include <string>
 #include <vector>
 
@@ -36,7 +36,8 @@ struct ExportFixture {
     dir.write("map/units.csv", units);
     const std::string job =
         "[map]\nunits = \"../map/units.csv\"\nadjacency = \"../map/adjacency.csv\"\nid = \"unit\"\n"
-        "population = \"pop\"\n[districts]\ncount = " + std::to_string(options.districts) + "\n";
+        "population = \"pop\"\n[districts]\ncount = " +
+        std::to_string(options.districts) + "\n";
     const std::string job_path = dir.write("job/job.toml", job);
     dir.write("run/job.toml", job);
     run.state.job_path = job_path;
@@ -47,8 +48,10 @@ struct ExportFixture {
 // Runs `planmill export ARGS`; returns its exit status, with stderr in `errors`.
 inline int run_export(const std::string& args, std::string* errors = nullptr) {
   const std::string err = (std::filesystem::temp_directory_path() /
-                           ("planmill-export-err-" + std::to_string(::getpid()))).string();
-  const std::string command = std::string(PLANMILL_BINARY) + " export " + args + " > /dev/null 2> " + err;
+                           ("planmill-export-err-" + std::to_string(::getpid())))
+                              .string();
+  const std::string command =
+      std::string(PLANMILL_BINARY) + " export " + args + " > /dev/null 2> " + err;
   const int status = std::system(command.c_str());
   if (errors) *errors = read_file(err);
   std::filesystem::remove(err);
@@ -70,13 +73,15 @@ inline RealRun write_real_run(const std::filesystem::path& dir) {
   RealRun r{dir / "state" / "job.toml", dir / "state" / "units.csv", dir / "run"};
   const std::string binary = PLANMILL_BINARY;
   EXPECT_EQ(shell_status(binary + " synth --units 200 --districts 4 --seed 8 --out " +
-                         (dir / "state").string() + " > /dev/null"), 0);
+                         (dir / "state").string() + " > /dev/null"),
+            0);
   std::ofstream(r.job, std::ios::app)
       << "[sampler]\nchains = 2\nsteps = 400\nburn_in = 50\nrecord_every = 5\nseed = 4\n";
   ::setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
   ::setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
   EXPECT_EQ(shell_status(binary + " run " + r.job.string() + " --output " + r.run_dir.string() +
-                         " --quiet > " + (dir / "run.log").string() + " 2>&1"), 0)
+                         " --quiet > " + (dir / "run.log").string() + " 2>&1"),
+            0)
       << read_file((dir / "run.log").string());
   return r;
 }

@@ -44,8 +44,7 @@ void expect_plan_file(const ExportFixture& f, const RecordRef& ref) {
 }
 
 TEST(ExportLists, RecordAndChainListsParse) {
-  EXPECT_EQ(parse_record_list("3:120, 0:5", "--plans"),
-            (std::vector<RecordRef>{{3, 120}, {0, 5}}));
+  EXPECT_EQ(parse_record_list("3:120, 0:5", "--plans"), (std::vector<RecordRef>{{3, 120}, {0, 5}}));
   EXPECT_EQ(parse_chain_list("0,2,5-7", "--chains"), (std::vector<std::uint64_t>{0, 2, 5, 6, 7}));
   for (const char* bad : {"3", "3:", ":4", "a:1", "1:2:3", "1:-2", ""}) {
     EXPECT_THROW((void)parse_record_list(bad, "--plans"), InputError) << bad;
@@ -104,7 +103,8 @@ TEST(Export, NamedPlansCarryTheMapsUnitIds) {
   for (const RecordRef ref : {RecordRef{0, 0}, RecordRef{1, 20}, RecordRef{2, 39}}) {
     expect_plan_file(f, ref);
   }
-  EXPECT_EQ(std::distance(fs::directory_iterator(f.out_dir / "plans"), fs::directory_iterator()), 3);
+  EXPECT_EQ(std::distance(fs::directory_iterator(f.out_dir / "plans"), fs::directory_iterator()),
+            3);
 }
 
 TEST(Export, EveryNthRecordOfTheChosenChains) {
@@ -173,8 +173,9 @@ TEST(Export, AChainOrRecordTheRunLacksIsNamedAndNothingIsWritten) {
   EXPECT_FALSE(fs::exists(f.out_dir));
 
   std::string errors;
-  EXPECT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
-                                   " --plans 1:40", &errors), 2);
+  EXPECT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --plans 1:40",
+                             &errors),
+            2);
   EXPECT_NE(errors.find("chain 1 has no record 40"), std::string::npos) << errors;
   EXPECT_EQ(std::count(errors.begin(), errors.end(), '\n'), 1) << errors;
   EXPECT_FALSE(fs::exists(f.out_dir));
@@ -231,7 +232,8 @@ TEST(Export, AnExistingFolderIsReusedAndItsFilesReplaced) {
   EXPECT_NE(test::read_file((f.out_dir / "observables.csv").string()), "stale");
   for (const auto& entry : fs::directory_iterator(f.out_dir)) {
     EXPECT_TRUE(entry.path().filename() == "notes.txt" ||
-                entry.path().filename() == "observables.csv") << entry.path();  // no temp files
+                entry.path().filename() == "observables.csv")
+        << entry.path();  // no temp files
   }
 }
 
@@ -254,7 +256,8 @@ TEST(Export, ADamagedPlanFileLeavesOutOnlyItsChainWithItsRecordRange) {
 
   std::string errors;
   EXPECT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() + " --every 10",
-                               &errors), 3);
+                             &errors),
+            3);
   EXPECT_NE(errors.find("chain 1, records 20-39"), std::string::npos) << errors;
 }
 

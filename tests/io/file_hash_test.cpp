@@ -44,7 +44,8 @@ TEST(Sha256, EmptyMessage) {
 TEST(Sha256, RandomBytesMatchPythonHashlib) {
   test::TempDir dir;
   std::mt19937_64 rng(20261202);
-  const std::size_t lengths[] = {1, 55, 56, 57, 63, 64, 65, 119, 120, 1000, 65535, 65536, 65537, 300001};
+  const std::size_t lengths[] = {1,   55,  56,   57,    63,    64,    65,
+                                 119, 120, 1000, 65535, 65536, 65537, 300001};
   std::string names;
   std::vector<std::string> files, expected;
   for (std::size_t i = 0; i < std::size(lengths); ++i) {
@@ -53,11 +54,11 @@ TEST(Sha256, RandomBytesMatchPythonHashlib) {
     files.push_back(dir.write("r" + std::to_string(i) + ".bin", bytes));
     expected.push_back(sha256_hex(bytes));
   }
-  const std::string script = dir.write(
-      "hash.py",
-      "import hashlib, sys\n"
-      "for p in sys.argv[1:]:\n"
-      "    print(hashlib.sha256(open(p, 'rb').read()).hexdigest())\n");
+  const std::string script =
+      dir.write("hash.py",
+                "import hashlib, sys\n"
+                "for p in sys.argv[1:]:\n"
+                "    print(hashlib.sha256(open(p, 'rb').read()).hexdigest())\n");
   std::string command = "/usr/bin/python3 " + script;
   for (const auto& f : files) command += " " + f;
   FILE* pipe = ::popen(command.c_str(), "r");

@@ -21,9 +21,9 @@ struct RecordRef {
 
 // Which recorded plans to write. Nothing set = no plans (observables only).
 struct PlanChoice {
-  std::vector<RecordRef> records;       // named one by one
-  std::uint64_t every = 0;              // records 0, N, 2N, ... of each chosen chain; 0 = off
-  bool chains_given = false;            // `chains` restricts `every`; alone it takes every record
+  std::vector<RecordRef> records;  // named one by one
+  std::uint64_t every = 0;         // records 0, N, 2N, ... of each chosen chain; 0 = off
+  bool chains_given = false;       // `chains` restricts `every`; alone it takes every record
   std::vector<std::uint64_t> chains;
 };
 
@@ -39,9 +39,9 @@ struct ExportOptions {
 };
 
 struct ExportResult {
-  std::vector<std::string> written;      // files written, relative to out_dir
-  std::vector<ChainProblem> left_out;    // damaged chains, not exported
-  std::vector<std::string> warnings;     // one line each
+  std::vector<std::string> written;    // files written, relative to out_dir
+  std::vector<ChainProblem> left_out;  // damaged chains, not exported
+  std::vector<std::string> warnings;   // one line each
   std::uint64_t observable_rows = 0;
   std::uint64_t plans = 0;
 };
