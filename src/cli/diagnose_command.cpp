@@ -29,7 +29,9 @@ struct DiagnoseOptions {
 };
 
 nlohmann::json to_json(const diagnose::Verdict& verdict, const DiagnoseOptions& o) {
-  auto number = [](double v) { return std::isnan(v) ? nlohmann::json(nullptr) : nlohmann::json(v); };
+  auto number = [](double v) {
+    return std::isnan(v) ? nlohmann::json(nullptr) : nlohmann::json(v);
+  };
   nlohmann::json quantities = nlohmann::json::array();
   for (const auto& q : verdict.table) {
     quantities.push_back({{"name", q.name},
@@ -95,12 +97,14 @@ int diagnose_run_dir(const DiagnoseOptions& o) {
   d.rule_source = rule.source;
 
   std::cout << d.chains.size() << " chains x " << d.draws << " draws, "
-            << reader.observable_names().size() << " observables (records after the run's burn-in of "
-            << reader.state().burn_in << " steps; --burn-in " << o.burn_in << " more records)\n"
+            << reader.observable_names().size()
+            << " observables (records after the run's burn-in of " << reader.state().burn_in
+            << " steps; --burn-in " << o.burn_in << " more records)\n"
             << "thresholds: R-hat < " << d.rule.rhat_max << ", ESS > " << d.rule.ess_min << " ("
             << d.rule_source << ")\n";
   for (const auto& note : d.notes) std::cout << "note: " << note << "\n";
-  for (const auto& l : d.left_out) std::cout << "left out: chain " << l.chain << ": " << l.why << "\n";
+  for (const auto& l : d.left_out)
+    std::cout << "left out: chain " << l.chain << ": " << l.why << "\n";
   print_verdict_table(d.verdict, std::cout);
   print_verdict(d.verdict, d.rule, std::cout);
   if (!d.left_out.empty()) {
@@ -129,14 +133,16 @@ int run_diagnose(const DiagnoseOptions& o) {
 
 void add_diagnose_command(CLI::App& app, Action& action) {
   auto options = std::make_shared<DiagnoseOptions>();
-  auto* sub = app.add_subcommand("diagnose", "convergence diagnostics (R-hat, ESS, MCSE) and a verdict");
+  auto* sub =
+      app.add_subcommand("diagnose", "convergence diagnostics (R-hat, ESS, MCSE) and a verdict");
   sub->add_option("rundir", options->run_dir, "run dir: every observable across its chains");
   sub->add_option("--traces", options->traces, "long trace CSV: chain,draw,<quantity>...");
   sub->add_option("--json", options->json, "also write the table and verdict as JSON");
   auto* rhat = sub->add_option("--rhat-max", options->rhat_max,
                                "pass only if R-hat < X (default: the job's [verdict], else 1.01)");
-  auto* ess = sub->add_option("--ess-min", options->ess_min,
-                              "pass only if bulk and tail ESS > N (default: the job's [verdict], else 400)");
+  auto* ess = sub->add_option(
+      "--ess-min", options->ess_min,
+      "pass only if bulk and tail ESS > N (default: the job's [verdict], else 400)");
   sub->add_option("--burn-in", options->burn_in, "drop the first D draws (records) of every chain");
   sub->callback([&action, options, rhat, ess] {
     options->rhat_max_given = rhat->count() > 0;

@@ -15,7 +15,8 @@ namespace {
 
 int run_merge(const std::string& run_dir) {
   if (!std::filesystem::is_directory(run_dir)) {
-    throw InputError({run_dir, 0, {}}, "is not a folder", "give the run dir that 'planmill run' wrote");
+    throw InputError({run_dir, 0, {}}, "is not a folder",
+                     "give the run dir that 'planmill run' wrote");
   }
   const RunReader reader(run_dir);
   const auto problems = reader.verify();
@@ -46,7 +47,8 @@ int run_merge(const std::string& run_dir) {
 
 void add_merge_command(CLI::App& app, Action& action) {
   auto run_dir = std::make_shared<std::string>();
-  auto* sub = app.add_subcommand("merge", "check a run dir's plan files and write its manifest.json");
+  auto* sub =
+      app.add_subcommand("merge", "check a run dir's plan files and write its manifest.json");
   sub->add_option("rundir", *run_dir, "run dir written by 'planmill run'")->required();
   sub->callback([&action, run_dir] { action = [run_dir] { return run_merge(*run_dir); }; });
 }

@@ -35,8 +35,11 @@ std::string compare(const std::string& recorded, const json& now) {
 }
 
 json counters_json(const StoredCounters& c) {
-  return {{"steps", c.steps},   {"accepted", c.accepted}, {"rejected", c.rejected},
-          {"no_cut", c.no_cut}, {"invalid", c.invalid}};
+  return {{"steps", c.steps},
+          {"accepted", c.accepted},
+          {"rejected", c.rejected},
+          {"no_cut", c.no_cut},
+          {"invalid", c.invalid}};
 }
 
 json problem_json(const ChainProblem& p, const std::string& file) {
@@ -156,11 +159,11 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
     std::uint64_t first = 0;
     for (const auto& sp : c.spans) {
       files.push_back({{"file", sp.file}, {"first_record", first}, {"records", sp.records}});
-      file_chains[sp.file].push_back({{"chain", c.index},
-                                      {"first_record", first},
-                                      {"last_record", sp.records == 0 ? json(nullptr)
-                                                                      : json(first + sp.records - 1)},
-                                      {"records", sp.records}});
+      file_chains[sp.file].push_back(
+          {{"chain", c.index},
+           {"first_record", first},
+           {"last_record", sp.records == 0 ? json(nullptr) : json(first + sp.records - 1)},
+           {"records", sp.records}});
       first += sp.records;
     }
     const auto& k = c.counters;
@@ -169,9 +172,9 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"steps", c.steps},
          {"records", c.records},
          {"counters", counters_json(k)},
-         {"acceptance_rate", k.steps == 0 ? json(nullptr)
-                                          : json(static_cast<double>(k.accepted) /
-                                                 static_cast<double>(k.steps))},
+         {"acceptance_rate",
+          k.steps == 0 ? json(nullptr)
+                       : json(static_cast<double>(k.accepted) / static_cast<double>(k.steps))},
          {"last_checkpoint", text_or_null(c.last_checkpoint)},
          {"files", files},
          {"problems", chain_problems.count(c.index) ? chain_problems[c.index] : json::array()}});

@@ -1,5 +1,7 @@
 #include "planmill/manifest/run_diagnostics.hpp"
 
+#include <toml++/toml.h>
+
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -10,7 +12,6 @@
 #include <set>
 #include <sstream>
 #include <stdexcept>
-#include <toml++/toml.h>
 
 #include "planmill/base/error.hpp"
 #include "planmill/job/job.hpp"
@@ -64,8 +65,9 @@ RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,
                       std::to_string(fewest) + " records per chain is used");
   }
   if (fewest <= burn_in && !chains.empty()) {
-    d.notes.push_back("--burn-in " + std::to_string(burn_in) + " leaves no draws of the shortest chain (" +
-                      std::to_string(fewest) + " records)");
+    d.notes.push_back("--burn-in " + std::to_string(burn_in) +
+                      " leaves no draws of the shortest chain (" + std::to_string(fewest) +
+                      " records)");
   }
 
   std::vector<diagnose::QuantityDiagnostics> table;
@@ -74,7 +76,8 @@ RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,
   for (std::size_t q = 0; q < width; ++q) {
     for (std::size_t c = 0; c < chains.size(); ++c) {
       const double* rows = chains[c].rows.data();
-      for (std::size_t t = 0; t < d.draws; ++t) values[c * d.draws + t] = rows[(burn_in + t) * width + q];
+      for (std::size_t t = 0; t < d.draws; ++t)
+        values[c * d.draws + t] = rows[(burn_in + t) * width + q];
     }
     table.push_back(
         diagnose::diagnose_quantity(observable_names[q], {values, d.draws, chains.size()}));
@@ -120,7 +123,8 @@ RunVerdictRule verdict_rule_of_run(const RunReader& reader) {
   if (std::filesystem::exists(layout.job_copy())) {
     source = layout.job_copy().string();
     std::ifstream in(source, std::ios::binary);
-    if (!in) throw InputError({source, 0, ""}, "cannot read the run's job file", "check its permissions");
+    if (!in)
+      throw InputError({source, 0, ""}, "cannot read the run's job file", "check its permissions");
     std::ostringstream s;
     s << in.rdbuf();
     text = s.str();
@@ -176,7 +180,8 @@ json diagnostics_to_json(const RunDiagnostics& d) {
   json left_out = json::array();
   for (const auto& l : d.left_out) left_out.push_back({{"chain", l.chain}, {"why", l.why}});
   return {{"verdict", d.pass() ? "pass" : "fail"},
-          {"rule", {{"rhat_max", d.rule.rhat_max}, {"ess_min", d.rule.ess_min}, {"source", d.rule_source}}},
+          {"rule",
+           {{"rhat_max", d.rule.rhat_max}, {"ess_min", d.rule.ess_min}, {"source", d.rule_source}}},
           {"burn_in", d.burn_in},
           {"chains", d.chains},
           {"records", d.records},
@@ -192,8 +197,9 @@ void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out) {
   std::vector<std::vector<std::string>> rows{
       {"quantity", "rhat", "ess_bulk", "ess_tail", "mcse_mean", "mean", "sd", "note"}};
   for (const auto& q : verdict.table) {
-    rows.push_back({q.name, cell(q.rhat, "%.4f"), cell(q.ess_bulk, "%.0f"), cell(q.ess_tail, "%.0f"),
-                    cell(q.mcse_mean, "%.3g"), cell(q.mean, "%.6g"), cell(q.sd, "%.4g"), q.note});
+    rows.push_back({q.name, cell(q.rhat, "%.4f"), cell(q.ess_bulk, "%.0f"),
+                    cell(q.ess_tail, "%.0f"), cell(q.mcse_mean, "%.3g"), cell(q.mean, "%.6g"),
+                    cell(q.sd, "%.4g"), q.note});
   }
   std::vector<std::size_t> width(rows[0].size(), 0);
   for (const auto& r : rows) {

@@ -50,7 +50,8 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
   const std::string job = test::job_text_with_verdict("");
   std::ofstream(dir / "job.toml") << job;
   run.state.job_sha256 = sha256_hex(job);
-  run.state.inputs.push_back({"units", (dir / "units.csv").string(), sha256_file_hex((dir / "units.csv").string())});
+  run.state.inputs.push_back(
+      {"units", (dir / "units.csv").string(), sha256_file_hex((dir / "units.csv").string())});
   write_run_state(RunLayout{dir}, run.state);
 
   const RunReader reader(dir.string());
@@ -67,8 +68,9 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
   ours.push_back(m["job"]["copy_sha256"]);
   paths.push_back(m["inputs"][0]["path"].get<std::string>());
   ours.push_back(m["inputs"][0]["sha256_now"]);
-  std::string command = "/usr/bin/python3 -c 'import hashlib, sys\n"
-                        "for p in sys.argv[1:]: print(hashlib.sha256(open(p, \"rb\").read()).hexdigest())'";
+  std::string command =
+      "/usr/bin/python3 -c 'import hashlib, sys\n"
+      "for p in sys.argv[1:]: print(hashlib.sha256(open(p, \"rb\").read()).hexdigest())'";
   for (const auto& p : paths) command += " '" + p + "'";
   const auto theirs = lines_of(command);
   ASSERT_EQ(theirs.size(), paths.size());
@@ -82,7 +84,8 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
 TEST(ManifestReference, AFlippedByteIsReportedForTheRecordsOfItsChunk) {
   const test::ScratchDir scratch("planmill-manifest-ref");
   const auto& dir = scratch.path;
-  test::write_fixture_run(dir, {.chains = 2, .ranks = 2, .segments = 2, .records_per_segment = 600});
+  test::write_fixture_run(dir,
+                          {.chains = 2, .ranks = 2, .segments = 2, .records_per_segment = 600});
   const std::string file = RunLayout::plan_file_name(0, 1);  // chain 1's records 0..599
   const auto found = lines_of(
       "/usr/bin/python3 -c 'import h5py, sys\n"
@@ -122,12 +125,15 @@ TEST(ManifestReference, DiagnosticsOfTheRunEqualPosteriorOnTheSameMatrices) {
   auto value = [&](std::uint64_t chain, std::size_t record, std::size_t q) {
     double& x = level[chain * 10 + q];
     const double e = uniform01(rng) - 0.5;
-    x = q == 0 ? e : q == 1 ? 0.9 * x + e : q == 2 ? std::floor(4 * uniform01(rng)) : e + 0.05 * static_cast<double>(chain);
+    x = q == 0   ? e
+        : q == 1 ? 0.9 * x + e
+        : q == 2 ? std::floor(4 * uniform01(rng))
+                 : e + 0.05 * static_cast<double>(chain);
     (void)record;
     return x;
   };
-  test::write_run_with_observables(dir / "run", {.chains = 4, .ranks = 2, .segments = 2,
-                                                 .records_per_segment = 150}, value);
+  test::write_run_with_observables(
+      dir / "run", {.chains = 4, .ranks = 2, .segments = 2, .records_per_segment = 150}, value);
   const RunReader reader((dir / "run").string());
   const std::size_t burn_in = 10;
   const RunDiagnostics d = diagnose_run(reader, {}, {.burn_in = burn_in});
@@ -170,7 +176,8 @@ TEST(ManifestReference, DiagnosticsOfTheRunEqualPosteriorOnTheSameMatrices) {
     std::vector<std::string> cells;
     for (std::string cell; std::getline(s, cell, ',');) cells.push_back(cell);
     for (std::size_t i = 1; i < cells.size() && i < header.size(); ++i) {
-      ref[cells[0]][header[i]] = cells[i] == "NA" ? std::nan("") : std::strtod(cells[i].c_str(), nullptr);
+      ref[cells[0]][header[i]] =
+          cells[i] == "NA" ? std::nan("") : std::strtod(cells[i].c_str(), nullptr);
     }
   }
   ASSERT_EQ(ref.size(), 4U);
@@ -179,8 +186,8 @@ TEST(ManifestReference, DiagnosticsOfTheRunEqualPosteriorOnTheSameMatrices) {
       EXPECT_TRUE(std::isnan(ours)) << what << ": posterior NA, ours " << ours;
       return;
     }
-    EXPECT_LE(std::abs(ours - theirs), rel * std::abs(theirs)) << what << ": ours " << ours
-                                                               << " posterior " << theirs;
+    EXPECT_LE(std::abs(ours - theirs), rel * std::abs(theirs))
+        << what << ": ours " << ours << " posterior " << theirs;
   };
   for (const auto& row : d.verdict.table) {
     const auto& r = ref.at(row.name);

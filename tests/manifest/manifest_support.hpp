@@ -79,8 +79,8 @@ FixtureRun write_run_with_observables(const std::filesystem::path& dir,
     }
   }
   for (const auto& f : run.state.files) {
-    EnsembleWriter writer(layout.resolve(f.file).string(), {options.units, options.districts, job_text},
-                          {.full_every = 8});
+    EnsembleWriter writer(layout.resolve(f.file).string(),
+                          {options.units, options.districts, job_text}, {.full_every = 8});
     for (const auto& chain : run.state.chains) {
       std::uint64_t first = 0;
       for (const auto& span : chain.spans) {
@@ -101,11 +101,11 @@ FixtureRun write_run_with_observables(const std::filesystem::path& dir,
 }
 
 // Independent uniform draws for every observable: a run that has mixed.
-inline FixtureRun write_mixed_run(const std::filesystem::path& dir, const FixtureRunOptions& options) {
+inline FixtureRun write_mixed_run(const std::filesystem::path& dir,
+                                  const FixtureRunOptions& options) {
   Rng rng = make_stream(options.seed, 7);
-  return write_run_with_observables(dir, options, [&rng](std::uint64_t, std::size_t, std::size_t) {
-    return uniform01(rng);
-  });
+  return write_run_with_observables(
+      dir, options, [&rng](std::uint64_t, std::size_t, std::size_t) { return uniform01(rng); });
 }
 
 // The table lines of `planmill diagnose` output: from the "quantity" header to the verdict.

@@ -43,10 +43,11 @@ void add_inputs(const fs::path& dir, test::FixtureRun& run) {
   std::ofstream(dir / "adjacency.csv") << "a,b\n";
   std::ofstream(dir / "plan.csv") << "unit,district\n";
   for (const auto* role : {"units", "adjacency", "start plan"}) {
-    const std::string name = std::string(role) == "units" ? "units.csv"
+    const std::string name = std::string(role) == "units"       ? "units.csv"
                              : std::string(role) == "adjacency" ? "adjacency.csv"
                                                                 : "plan.csv";
-    run.state.inputs.push_back({role, (dir / name).string(), sha256_file_hex((dir / name).string())});
+    run.state.inputs.push_back(
+        {role, (dir / name).string(), sha256_file_hex((dir / name).string())});
   }
   std::ofstream(dir / "adjacency.csv", std::ios::app) << "b,c\n";
   fs::remove(dir / "plan.csv");
@@ -97,8 +98,8 @@ TEST(Manifest, DescribesEveryChainPlanFileAndInputOfTheRun) {
     EXPECT_EQ(c["records"], run.plans.at(s.index).size());
     EXPECT_EQ(c["steps"], run.steps.at(s.index).back());
     EXPECT_EQ(c["counters"]["accepted"], s.counters.accepted);
-    EXPECT_DOUBLE_EQ(c["acceptance_rate"].get<double>(),
-                     static_cast<double>(s.counters.accepted) / static_cast<double>(s.counters.steps));
+    EXPECT_DOUBLE_EQ(c["acceptance_rate"].get<double>(), static_cast<double>(s.counters.accepted) /
+                                                             static_cast<double>(s.counters.steps));
     ASSERT_EQ(c["files"].size(), 2U);
     EXPECT_EQ(c["files"][1]["first_record"], 20U);
     EXPECT_EQ(c["files"][1]["file"], RunLayout::plan_file_name(1, static_cast<int>(s.index % 2)));
@@ -267,7 +268,8 @@ TEST(VerdictRuleOfRun, ComesFromTheJobsVerdictSectionElseDefaults) {
     EXPECT_EQ(r.rule.rhat_max, diagnose::VerdictRule{}.rhat_max);
     EXPECT_NE(r.source.find("defaults"), std::string::npos);
   }
-  std::ofstream(dir / "job.toml") << test::job_text_with_verdict("rhat_max = 1.05\ness_min = 123\n");
+  std::ofstream(dir / "job.toml") << test::job_text_with_verdict(
+      "rhat_max = 1.05\ness_min = 123\n");
   const RunReader reader(dir.string());
   const auto r = verdict_rule_of_run(reader);
   EXPECT_EQ(r.rule.rhat_max, 1.05);
@@ -289,7 +291,8 @@ TEST(Manifest, DiagnoseReplacesOnlyTheDiagnosticsSectionOfAnExistingManifest) {
   EXPECT_EQ(m["diagnostics"]["burn_in"], 0U);
   m["run_id"] = "kept";  // a mark to see that the rest is left alone
   write_manifest(RunLayout{dir}, m);
-  EXPECT_FALSE(write_manifest_diagnostics(reader, problems, diagnose_run(reader, {}, {.burn_in = 3})));
+  EXPECT_FALSE(
+      write_manifest_diagnostics(reader, problems, diagnose_run(reader, {}, {.burn_in = 3})));
   m = json::parse(test::slurp(dir / "manifest.json"));
   EXPECT_EQ(m["run_id"], "kept");
   EXPECT_EQ(m["diagnostics"]["burn_in"], 3U);

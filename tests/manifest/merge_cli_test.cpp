@@ -126,10 +126,9 @@ TEST(DiagnoseRunDirCli, AConstantObservableIsNaNWithTheReasonAndNamedWithASugges
   const test::ScratchDir scratch("planmill-diagnose-run-cli");
   const auto& dir = scratch.path;
   Rng rng = make_stream(5, 5);
-  test::write_run_with_observables(dir / "run", mixed_run(),
-                                   [&rng](std::uint64_t, std::size_t, std::size_t q) {
-                                     return q == 2 ? 0.0 : uniform01(rng);
-                                   });
+  test::write_run_with_observables(
+      dir / "run", mixed_run(),
+      [&rng](std::uint64_t, std::size_t, std::size_t q) { return q == 2 ? 0.0 : uniform01(rng); });
   const auto o = run_planmill(dir, "diagnose " + quoted(dir / "run"));
   EXPECT_EQ(o.status, 3) << o.out << o.err;
   const std::string table = test::table_of(o.out);
@@ -149,8 +148,8 @@ TEST(DiagnoseRunDirCli, TableEqualsTheTraceFormOnTheSameDrawsExportedAsLongCsv) 
   const test::ScratchDir scratch("planmill-diagnose-run-cli");
   const auto& dir = scratch.path;
   const auto run_dir = dir / "run";
-  const auto run = test::write_mixed_run(run_dir, {.chains = 3, .ranks = 2, .segments = 2,
-                                                   .records_per_segment = 60});
+  const auto run = test::write_mixed_run(
+      run_dir, {.chains = 3, .ranks = 2, .segments = 2, .records_per_segment = 60});
   const auto csv_path = dir / "traces.csv";
   {
     std::ofstream csv(csv_path);
@@ -185,7 +184,10 @@ TEST(DiagnoseRunDirCli, TableEqualsTheTraceFormOnTheSameDrawsExportedAsLongCsv) 
 TEST(RealRun, MergeAndDiagnoseAgreeWithTheRunReader) {
   const test::ScratchDir scratch("planmill-merge-real-run");
   const auto& dir = scratch.path;
-  ASSERT_EQ(run_planmill(dir, "synth --units 200 --districts 4 --seed 5 --out " + quoted(dir / "state")).status, 0);
+  ASSERT_EQ(
+      run_planmill(dir, "synth --units 200 --districts 4 --seed 5 --out " + quoted(dir / "state"))
+          .status,
+      0);
   std::ofstream(dir / "state" / "job.toml", std::ios::app)
       << "[sampler]\nchains = 4\nsteps = 3000\nburn_in = 200\nrecord_every = 5\nseed = 3\n"
       << "[verdict]\nrhat_max = 1.05\ness_min = 50\n";

@@ -16,8 +16,8 @@ inline constexpr std::int64_t kManifestSchemaVersion = 1;
 
 // `problems` is reader.verify(); `diagnostics` goes in as the "diagnostics" section.
 [[nodiscard]] nlohmann::ordered_json build_manifest(const RunReader& reader,
-                                            const std::vector<ChainProblem>& problems,
-                                            const RunDiagnostics& diagnostics);
+                                                    const std::vector<ChainProblem>& problems,
+                                                    const RunDiagnostics& diagnostics);
 
 // Replaces RUNDIR/manifest.json atomically (a reader sees the old or the new file, never half).
 void write_manifest(const RunLayout& layout, const nlohmann::ordered_json& manifest);

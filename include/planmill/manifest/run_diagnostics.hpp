@@ -58,7 +58,8 @@ struct RunDiagnostics {
                                              std::size_t burn_in = 0);
 
 // Reads every chain's observables. A chain that verify() reports damaged is left out, with why.
-[[nodiscard]] RunDiagnostics diagnose_run(const RunReader& reader, const diagnose::VerdictRule& rule,
+[[nodiscard]] RunDiagnostics diagnose_run(const RunReader& reader,
+                                          const diagnose::VerdictRule& rule,
                                           const RunDiagnosticsOptions& options = {});
 
 struct RunVerdictRule {
