@@ -304,5 +304,37 @@ TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
   EXPECT_EQ(plans, 36u);
 }
 
+// A job given by a relative path: its map is found from the folder the run was started in, and
+// from anywhere else export stops with one line naming the key and the option to use.
+TEST(Export, AJobGivenRelativelyIsResolvedFromTheFolderTheRunStartedIn) {
+  test::TempDir dir;
+  const std::string binary = PLANMILL_BINARY;
+  ASSERT_EQ(test::shell_status(binary + " synth --units 200 --districts 4 --seed 2 --out " +
+                               (dir.path() / "state").string() + " > /dev/null"),
+            0);
+  std::ofstream(dir.path() / "state" / "job.toml", std::ios::app)
+      << "[sampler]\nchains = 1\nsteps = 60\nseed = 1\n";
+  const std::string in_dir = "cd " + dir.path().string() + " && ";
+  ASSERT_EQ(test::shell_status(in_dir + binary + " run state/job.toml --output run --quiet"), 0);
+  EXPECT_EQ(RunReader((dir.path() / "run").string()).state().job_path, "state/job.toml");
+  EXPECT_EQ(test::shell_status(in_dir + binary + " export run --out csv --plans 0:59 2>/dev/null"),
+            0);
+  EXPECT_TRUE(fs::exists(dir.path() / "csv" / plan_file_name({0, 59})));
+  std::string errors;
+  const std::string run_dir = (dir.path() / "run").string();
+  EXPECT_EQ(test::run_export(run_dir + " --out " + (dir.path() / "b").string() + " --plans 0:59",
+                             &errors),
+            2);
+  EXPECT_NE(errors.find("'map.units'"), std::string::npos) << errors;
+  EXPECT_NE(errors.find("--map-units"), std::string::npos) << errors;
+  EXPECT_EQ(std::count(errors.begin(), errors.end(), '\n'), 1) << errors;
+  EXPECT_EQ(test::run_export(run_dir + " --out " + (dir.path() / "b").string() +
+                             " --plans 0:59 --map-units " +
+                             (dir.path() / "state" / "units.csv").string()),
+            0);
+  EXPECT_EQ(test::read_file((dir.path() / "b" / plan_file_name({0, 59})).string()),
+            test::read_file((dir.path() / "csv" / plan_file_name({0, 59})).string()));
+}
+
 }  // namespace
 }  // namespace planmill
