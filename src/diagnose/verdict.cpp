@@ -17,13 +17,21 @@ std::string number(double v, const char* format) {
 
 }  // namespace
 
+bool is_constant(const QuantityDiagnostics& q) { return std::isfinite(q.mean) && q.sd == 0.0; }
+
+bool lacks_tail_only(const QuantityDiagnostics& q) {
+  return !is_constant(q) && std::isnan(q.ess_tail) && !std::isnan(q.rhat) && !std::isnan(q.ess_bulk);
+}
+
 double severity(const QuantityDiagnostics& q, const VerdictRule& rule) {
-  if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(q.ess_tail)) {
+  if (is_constant(q)) return 0.0;
+  const double tail = lacks_tail_only(q) ? q.ess_bulk : q.ess_tail;
+  if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(tail)) {
     return std::numeric_limits<double>::infinity();
   }
   // Each ratio is 1 exactly at its threshold; a quantity is as bad as its worst ratio.
   const double by_rhat = (q.rhat - 1.0) / (rule.rhat_max - 1.0);
-  const double by_ess = rule.ess_min / std::max(std::min(q.ess_bulk, q.ess_tail), 1e-300);
+  const double by_ess = rule.ess_min / std::max(std::min(q.ess_bulk, tail), 1e-300);
   return std::max(by_rhat, by_ess);
 }
 
@@ -32,10 +40,22 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
     return severity(a, rule) > severity(b, rule);
   });
   Verdict verdict;
+  std::size_t judged = 0;
   for (const auto& q : table) {
+    if (is_constant(q)) {
+      verdict.remarks.push_back({q.name, "not judged: equal in every draw of every chain"});
+      continue;
+    }
+    ++judged;
+    const bool no_tail = lacks_tail_only(q);
+    if (no_tail) {
+      verdict.remarks.push_back({q.name, "judged on R-hat and bulk ESS only: a discrete quantity "
+                                         "whose 5% or 95% quantile is an extreme value has no "
+                                         "tail ESS"});
+    }
     const bool rhat_bad = !(q.rhat < rule.rhat_max);
     const bool bulk_bad = !(q.ess_bulk > rule.ess_min);
-    const bool tail_bad = !(q.ess_tail > rule.ess_min);
+    const bool tail_bad = !no_tail && !(q.ess_tail > rule.ess_min);
     if (!rhat_bad && !bulk_bad && !tail_bad) continue;
     Failure f{q.name, {}, {}};
     auto add = [&f](const std::string& part) { f.problem += (f.problem.empty() ? "" : "; ") + part; };
@@ -44,7 +64,7 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
     if (tail_bad) add("tail ESS " + number(q.ess_tail, "%.0f") + " <= " + number(rule.ess_min, "%g"));
     if (!q.note.empty()) add(q.note);
 
-    if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(q.ess_tail)) {
+    if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || (!no_tail && std::isnan(q.ess_tail))) {
       f.suggestion = "check the traces of this quantity (constant, non-finite or too short); "
                      "leave out observables that cannot vary";
     } else if (rhat_bad) {
@@ -52,13 +72,13 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
                      "use tempering or start more chains from dispersed plans";
     } else {
       // ESS grows about linearly in steps and in chains once the chains have mixed.
-      const double factor = rule.ess_min / std::min(q.ess_bulk, q.ess_tail);
+      const double factor = rule.ess_min / std::min(q.ess_bulk, no_tail ? q.ess_bulk : q.ess_tail);
       f.suggestion = "run about " + number(std::ceil(factor * 10.0) / 10.0, "%.1f") +
                      "x more steps or more chains";
     }
     verdict.failures.push_back(std::move(f));
   }
-  verdict.pass = verdict.failures.empty() && !table.empty();
+  verdict.pass = verdict.failures.empty() && judged > 0;
   verdict.table = std::move(table);
   return verdict;
 }
