@@ -177,6 +177,8 @@ json diagnostics_to_json(const RunDiagnostics& d) {
                            {"sd", number(q.sd)},
                            {"note", q.note}});
   }
+  json remarks = json::array();
+  for (const auto& r : d.verdict.remarks) remarks.push_back({{"name", r.name}, {"what", r.what}});
   json left_out = json::array();
   for (const auto& l : d.left_out) left_out.push_back({{"chain", l.chain}, {"why", l.why}});
   return {{"verdict", d.pass() ? "pass" : "fail"},
@@ -190,6 +192,7 @@ json diagnostics_to_json(const RunDiagnostics& d) {
           {"notes", d.notes},
           {"observables", observables},
           {"failures", failures},
+          {"remarks", remarks},
           {"computed", utc_now_iso8601()}};
 }
 
@@ -223,9 +226,10 @@ void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out) {
 
 void print_verdict(const diagnose::Verdict& verdict, const diagnose::VerdictRule& rule,
                    std::ostream& out) {
+  for (const auto& r : verdict.remarks) out << "  " << r.name << ": " << r.what << "\n";
   if (verdict.pass) {
     out << "verdict: pass (R-hat < " << rule.rhat_max << ", bulk and tail ESS > " << rule.ess_min
-        << " for every quantity)\n";
+        << " for every judged quantity)\n";
     return;
   }
   out << "verdict: fail (" << verdict.failures.size() << " of " << verdict.table.size()

@@ -265,13 +265,16 @@ class ChainRunner {
     s.run_id = make_run_id(job.text, job.sampler.seed);
     s.planmill_version = kVersion;
     s.git_commit = kGitCommit;
-    s.job_path = options_.job_path;
+    s.job_path = fs::absolute(options_.job_path).lexically_normal().string();
     s.job_sha256 = sha256_hex(job.text);
-    s.inputs.push_back({"job", options_.job_path, s.job_sha256});
-    s.inputs.push_back({"units", job.map.units_path, sha256_file_hex(job.map.units_path)});
-    s.inputs.push_back(
-        {"adjacency", job.map.adjacency_path, sha256_file_hex(job.map.adjacency_path)});
-    if (loaded_->start) s.inputs.push_back({"start plan", job.start, sha256_file_hex(job.start)});
+    s.inputs.push_back({"job", s.job_path, s.job_sha256});
+    // Absolute, so that merge and resume find them from any folder.
+    const auto input = [&](const char* role, const std::string& path) {
+      s.inputs.push_back({role, fs::absolute(path).lexically_normal().string(), sha256_file_hex(path)});
+    };
+    input("units", job.map.units_path);
+    input("adjacency", job.map.adjacency_path);
+    if (loaded_->start) input("start plan", job.start);
     s.seed = job.sampler.seed;
     s.target_steps = job.sampler.steps;
     s.burn_in = job.sampler.burn_in;

@@ -222,7 +222,7 @@ TEST(RunDiagnostics, ChainsOfUnequalLengthUseTheCommonPrefixAndSaySo) {
   EXPECT_DOUBLE_EQ(row->ess_bulk, expected.ess_bulk);
 }
 
-TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndJudgedAsTheTraceFormJudgesIt) {
+TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndNotJudgedAsTheTraceFormJudgesIt) {
   std::vector<ChainTraces> chains(2);
   std::vector<diagnose::QuantityDiagnostics> by_hand;
   for (std::size_t c = 0; c < 2; ++c) {
@@ -234,7 +234,7 @@ TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndJudgedAsTheTraceFor
   }
   const diagnose::VerdictRule rule{1.5, 5.0};
   const RunDiagnostics d = diagnose_traces({"county_splits", "energy"}, chains, rule);
-  const auto& constant = d.verdict.table.front();  // NaN sorts worst
+  const auto& constant = d.verdict.table.back();  // not judged: sorts last
   EXPECT_EQ(constant.name, "county_splits");
   EXPECT_TRUE(std::isnan(constant.rhat));
   EXPECT_EQ(constant.note, "all draws are equal");
@@ -242,9 +242,12 @@ TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndJudgedAsTheTraceFor
   const auto expected = diagnose::judge(d.verdict.table, rule);
   EXPECT_EQ(d.verdict.pass, expected.pass);
   EXPECT_EQ(d.verdict.failures.size(), expected.failures.size());
+  ASSERT_EQ(d.verdict.remarks.size(), 1U);
+  EXPECT_EQ(d.verdict.remarks[0].name, "county_splits");
   const json j = diagnostics_to_json(d);
-  EXPECT_TRUE(j["observables"][0]["rhat"].is_null());
-  EXPECT_EQ(j["observables"][0]["note"], "all draws are equal");
+  EXPECT_TRUE(j["observables"][1]["rhat"].is_null());
+  EXPECT_EQ(j["observables"][1]["note"], "all draws are equal");
+  EXPECT_EQ(j["remarks"][0]["name"], "county_splits");
 }
 
 TEST(RunDiagnostics, TooLargeABurnInLeavesNoDrawsAndEveryObservableSaysWhy) {
