@@ -238,5 +238,33 @@ TEST(Run, RefusesToOverwriteARunAndToResumeWithAChangedJob) {
   EXPECT_NE(message.find("differs from the job this run started with"), std::string::npos) << message;
 }
 
+// --until-converged: blocks of (steps - burn_in) steps until the verdict passes or the budget ends.
+TEST(Run, UntilConvergedStopsWhenTheVerdictPassesOrTheBudgetIsSpent) {
+  const auto dir = scratch("converge");
+  const auto easy = write_job(dir, "chains = 4\nsteps = 600\nburn_in = 100\nrecord_every = 2\nseed = 4");
+  std::ofstream(easy, std::ios::app) << "[verdict]\nrhat_max = 1.05\ness_min = 200\n";
+  ASSERT_EQ(run(2, easy, dir / "easy", "--until-converged --max-steps 20100"), 0);
+  const RunState done = read_run_state(RunLayout{dir / "easy"});
+  EXPECT_EQ(done.stop_reason, "converged");
+  EXPECT_TRUE(done.finished);
+  const std::uint64_t steps = done.chains[0].steps;
+  EXPECT_EQ((steps - 100) % 500, 0U) << "whole blocks of 500 steps after burn-in";
+  EXPECT_LE(steps, 20100U);
+  // The verdict diagnose gives on the finished run agrees.
+  EXPECT_EQ(shell(std::string(PLANMILL_BINARY) + " diagnose " + (dir / "easy").string() + " >/dev/null"), 0);
+
+  const auto hard = write_job(scratch("converge-hard"), "chains = 2\nsteps = 300\nburn_in = 50\nseed = 4");
+  std::ofstream(hard, std::ios::app) << "[verdict]\ness_min = 1000000\n";
+  const auto out = dir / "hard";
+  EXPECT_EQ(run(1, hard, out, "--until-converged --max-steps 800"), 3);
+  const RunState spent = read_run_state(RunLayout{out});
+  EXPECT_EQ(spent.chains[0].steps, 800U) << "300, then 550, then 800 (capped)";
+  EXPECT_EQ(spent.stop_reason, "step budget spent before convergence");
+  std::ifstream log(out.string() + ".log");
+  const std::string text(std::istreambuf_iterator<char>(log), {});
+  EXPECT_NE(text.find("not converged within --max-steps 800"), std::string::npos) << text;
+  EXPECT_EQ(run(1, hard, out, "--until-converged"), 2) << "--until-converged needs --max-steps";
+}
+
 }  // namespace
 }  // namespace planmill
