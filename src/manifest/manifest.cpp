@@ -178,6 +178,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"last_checkpoint", text_or_null(c.last_checkpoint)},
          {"files", files},
          {"problems", chain_problems.count(c.index) ? chain_problems[c.index] : json::array()}});
+    // With tempering: the frozen ladder and its swap statistics (temper/ladder_summary.hpp).
+    if (!c.ladder.empty()) chains.back()["ladder"] = json::parse(c.ladder);
     total_records += c.records;
     total_steps += c.steps;
     total_accepted += k.accepted;

@@ -64,13 +64,15 @@ json to_json(const RunState& s) {
   for (const auto& c : s.chains) {
     json spans = json::array();
     for (const auto& sp : c.spans) spans.push_back({{"file", sp.file}, {"records", sp.records}});
-    j["chains"].push_back({{"index", c.index},
+    json entry = {{"index", c.index},
                            {"steps", c.steps},
                            {"records", c.records},
                            {"counters", counters_json(c.counters)},
                            {"last_checkpoint", c.last_checkpoint},
                            {"spans", spans},
-                           {"snapshot", c.snapshot}});
+                           {"snapshot", c.snapshot}};
+    if (!c.ladder.empty()) entry["ladder"] = json::parse(c.ladder);
+    j["chains"].push_back(std::move(entry));
   }
   return j;
 }
@@ -117,6 +119,7 @@ RunState from_json(const json& j) {
     e.counters = counters_from(c.at("counters"));
     e.last_checkpoint = c.at("last_checkpoint").get<std::string>();
     e.snapshot = c.at("snapshot").get<std::string>();
+    if (c.contains("ladder")) e.ladder = c.at("ladder").dump();
     std::uint64_t total = 0;
     for (const auto& sp : c.at("spans")) {
       e.spans.push_back({sp.at("file").get<std::string>(), sp.at("records").get<std::uint64_t>()});

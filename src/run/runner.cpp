@@ -27,6 +27,8 @@
 #include "planmill/run/run_state.hpp"
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/store/ensemble.hpp"
+#include "planmill/temper/job_ladder.hpp"
+#include "planmill/temper/ladder_summary.hpp"
 #include "planmill/version.hpp"
 
 namespace planmill {
@@ -40,8 +42,9 @@ volatile std::sig_atomic_t g_checkpoint_requested = 0;
 extern "C" void on_stop_signal(int /*signal*/) { g_stop_requested = 1; }
 extern "C" void on_checkpoint_signal(int /*signal*/) { g_checkpoint_requested = 1; }
 
-// Seed plans draw from their own streams, apart from the chains' (keyed by the chain index).
-constexpr std::uint64_t kSeedPlanStreamBase = 1ULL << 62;
+// Seed plans draw from their own streams, apart from the chains' (keyed by the chain index) and
+// the ladders' swap streams (temper/ladder.hpp: 2^62 + ladder index).
+constexpr std::uint64_t kSeedPlanStreamBase = 3ULL << 61;
 
 struct World {
   int rank = 0, size = 1;
@@ -192,8 +195,27 @@ void remove_unlisted_plan_files(const RunLayout& layout, const RunState& state) 
   }
 }
 
+// One chain of the run: a plain chain, or a ladder whose target rung is what gets recorded.
 struct LocalChain {
   std::unique_ptr<Chain> chain;
+  std::unique_ptr<Ladder> ladder;
+  bool tune = false;  // ladder: tune during burn-in (one call, before the first recorded step)
+  [[nodiscard]] std::uint64_t steps() const { return ladder ? ladder->steps() : chain->counters().steps; }
+  [[nodiscard]] const ChainState& recorded_state() const {
+    return ladder ? ladder->on_rung(0).state() : chain->state();
+  }
+  // Kernel steps and outcomes, summed over a ladder's replicas.
+  [[nodiscard]] ChainCounters counters() const {
+    if (!ladder) return chain->counters();
+    ChainCounters sum;
+    for (std::size_t i = 0; i < ladder->rungs(); ++i) {
+      const auto& c = ladder->replica(i).counters();
+      sum.steps += c.steps;
+      for (std::size_t k = 0; k < kStepResultCount; ++k) sum.outcomes[k] += c.outcomes[k];
+    }
+    return sum;
+  }
+  [[nodiscard]] std::string save() const { return ladder ? ladder->save() : chain->save(); }
   ChainEntry entry;                      // as last committed
   std::size_t handle = SIZE_MAX;         // in the open writer; SIZE_MAX: none yet this segment
   std::uint64_t segment_records = 0;     // recorded since the last checkpoint
@@ -227,6 +249,11 @@ class ChainRunner {
     const std::vector<std::string> hosts = gather_strings(host_name(), w_);
     std::string encoded;
     on_root_then_agree(w_, [&] {
+      if (job_uses_all_rungs()) {
+        throw InputError({options_.job_path, 0, "tempering.record"},
+                         "\"all\" is not supported by planmill run yet (only the target rung is "
+                         "recorded)", "write record = \"target\" or leave the key out");
+      }
       if (dir.empty()) {
         throw InputError({options_.job_path, 0, "output.dir"}, "names no output folder",
                          "set [output] dir in the job file or give --output DIR");
@@ -249,6 +276,10 @@ class ChainRunner {
                      w_.size, static_cast<std::size_t>(w_.size) - state_.chains.size());
       }
     }
+  }
+
+  [[nodiscard]] bool job_uses_all_rungs() const {
+    return loaded_->job.tempering.enabled && loaded_->job.tempering.record == TemperingRecord::all;
   }
 
   RunState new_state() {
@@ -318,12 +349,16 @@ class ChainRunner {
         }
         LocalChain local;
         local.entry = entry;
-        ChainSetup setup{&loaded_->graph, rules_, kernel, state_.seed, entry.index};
-        if (!entry.snapshot.empty()) {
-          local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
-          local.chain->restore(entry.snapshot);
+        if (job.tempering.enabled) {
+          local.ladder = std::make_unique<Ladder>(
+              make_ladder_setup(job, loaded_->graph, rules_, entry.index),
+              std::vector<Plan>{start_plan(entry.index)});
+          local.tune = job.tempering.tune;
+          if (!entry.snapshot.empty()) local.ladder->restore(entry.snapshot);
         } else {
+          ChainSetup setup{&loaded_->graph, rules_, kernel, state_.seed, entry.index};
           local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
+          if (!entry.snapshot.empty()) local.chain->restore(entry.snapshot);
         }
         chains_.push_back(std::move(local));
       }
@@ -409,9 +444,27 @@ class ChainRunner {
 
   std::uint64_t step_round(std::uint64_t round_steps) {
     std::uint64_t done = 0;
+    const std::uint64_t target = state_.target_steps;
     for (auto& local : chains_) {
+      if (local.ladder) {
+        Ladder& ladder = *local.ladder;
+        if (local.tune && ladder.steps() == 0 && state_.burn_in > 0) {
+          ladder.tune(std::min(state_.burn_in, target));  // adapts, freezes, clears statistics
+          done += ladder.steps();
+        }
+        const std::uint64_t steps = ladder.steps();
+        if (steps >= target) continue;
+        const std::uint64_t n = std::min(round_steps, target - steps);
+        for (std::uint64_t i = 0; i < n; ++i) {
+          ladder.step();
+          const std::uint64_t s = ladder.steps();
+          if (s == state_.burn_in && !local.tune) ladder.reset_statistics();
+          if (s > state_.burn_in && s % state_.record_every == 0) record(local, s);
+        }
+        done += n;
+        continue;
+      }
       Chain& chain = *local.chain;
-      const std::uint64_t target = state_.target_steps;
       const std::uint64_t steps = chain.counters().steps;
       if (steps >= target) continue;
       const std::uint64_t n = std::min(round_steps, target - steps);
@@ -437,8 +490,9 @@ class ChainRunner {
       writer_ = std::make_unique<EnsembleWriter>(layout_.resolve(writer_file_).string(), header_);
     }
     if (local.handle == SIZE_MAX) local.handle = writer_->add_chain(local.entry.index, names_);
-    compute_observables(loaded_->graph, local.chain->state(), row_);
-    writer_->record(local.handle, step, local.chain->state().plan.assignment(), row_);
+    const ChainState& state = local.recorded_state();
+    compute_observables(loaded_->graph, state, row_);
+    writer_->record(local.handle, step, state.plan.assignment(), row_);
     ++local.segment_records;
   }
 
@@ -448,7 +502,7 @@ class ChainRunner {
     everywhere_then_agree([&] {
       if (writer_) {
         for (auto& local : chains_) {
-          if (local.handle != SIZE_MAX) writer_->set_counters(local.handle, stored(local.chain->counters()));
+          if (local.handle != SIZE_MAX) writer_->set_counters(local.handle, stored(local.counters()));
         }
         writer_.reset();  // closes the HDF5 file
         fsync_path(layout_.resolve(writer_file_));
@@ -457,9 +511,10 @@ class ChainRunner {
       const std::string now = utc_now_iso8601();
       for (auto& local : chains_) {
         ChainEntry& e = local.entry;
-        e.steps = local.chain->counters().steps;
-        e.counters = stored(local.chain->counters());
-        e.snapshot = local.chain->save();
+        e.steps = local.steps();
+        e.counters = stored(local.counters());
+        e.snapshot = local.save();
+        if (local.ladder) e.ladder = ladder_summary(*local.ladder).dump();
         e.last_checkpoint = now;
         if (local.segment_records > 0) {
           e.spans.push_back({writer_file_, local.segment_records});
@@ -643,12 +698,12 @@ class ChainRunner {
   std::uint64_t total_steps_global() const { return steps_at_start_global(total_steps_local()); }
   std::uint64_t total_steps_local() const {
     std::uint64_t n = 0;
-    for (const auto& c : chains_) n += c.chain->counters().steps;
+    for (const auto& c : chains_) n += c.counters().steps;
     return n;
   }
   std::uint64_t accepted_local() const {
     std::uint64_t n = 0;
-    for (const auto& c : chains_) n += c.chain->counters().outcomes[0];
+    for (const auto& c : chains_) n += c.counters().outcomes[0];
     return n;
   }
   std::uint64_t records_local() const {
@@ -659,8 +714,9 @@ class ChainRunner {
   std::uint64_t remaining_local() const {
     std::uint64_t n = 0;
     for (const auto& c : chains_) {
-      const std::uint64_t s = c.chain->counters().steps;
-      n += s < state_.target_steps ? state_.target_steps - s : 0;
+      const std::uint64_t s = c.steps();
+      const std::uint64_t replicas = c.ladder ? c.ladder->rungs() : 1;  // kernel steps, as counted
+      n += s < state_.target_steps ? (state_.target_steps - s) * replicas : 0;
     }
     return n;
   }

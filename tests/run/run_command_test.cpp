@@ -266,5 +266,32 @@ TEST(Run, UntilConvergedStopsWhenTheVerdictPassesOrTheBudgetIsSpent) {
   EXPECT_EQ(run(1, hard, out, "--until-converged"), 2) << "--until-converged needs --max-steps";
 }
 
+// Tempering: each chain of the run is a ladder of replicas, all on one rank; the target rung is
+// recorded. The same determinism and resume guarantees hold.
+constexpr const char* kLadderSampler =
+    "kernel = \"flip\"\nchains = 3\nsteps = 300\nburn_in = 60\nrecord_every = 3\nseed = 8\n"
+    "[tempering]\nrungs = 3\nhottest_beta = 0.2\nswap_every = 5\ntune = true\n"
+    "[rules.weights]\ncut_edges = 0.5";
+
+TEST(Run, LaddersRecordTheSamePlansOnAnyRankCountAndResumeExactly) {
+  const auto dir = scratch("ladders");
+  const auto job = write_job(dir, kLadderSampler);
+  ASSERT_EQ(run(1, job, dir / "r1"), 0);
+  ASSERT_EQ(run(3, job, dir / "r3"), 0);
+  expect_same_records(dir / "r1", dir / "r3");
+  const RunState one = read_run_state(RunLayout{dir / "r1"});
+  ASSERT_FALSE(one.chains[0].ladder.empty());
+  EXPECT_NE(one.chains[0].ladder.find("\"tuned\":true"), std::string::npos) << one.chains[0].ladder;
+  EXPECT_EQ(one.chains[0].counters.steps, 3U * 300U) << "kernel steps of the three replicas";
+
+  // Stop at a checkpoint (the end of a block of --until-converged) and go on from it.
+  std::ofstream(job, std::ios::app) << "[verdict]\ness_min = 1000000\n";
+  ASSERT_EQ(run(2, job, dir / "straight", "--until-converged --max-steps 780"), 3);
+  ASSERT_EQ(run(2, job, dir / "resumed", "--until-converged --max-steps 540"), 3);
+  ASSERT_EQ(run(1, job, dir / "resumed", "--resume --until-converged --max-steps 780"), 3);
+  EXPECT_EQ(read_run_state(RunLayout{dir / "resumed"}).chains[2].steps, 780U);
+  expect_same_records(dir / "straight", dir / "resumed");
+}
+
 }  // namespace
 }  // namespace planmill

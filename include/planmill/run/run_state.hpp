@@ -47,7 +47,8 @@ struct ChainEntry {
   std::uint64_t steps = 0;    // steps taken so far
   std::uint64_t records = 0;  // recorded plans so far (sum of the spans)
   StoredCounters counters;
-  std::string snapshot;              // Chain::save() at the last checkpoint
+  std::string snapshot;              // Chain::save() or Ladder::save() at the last checkpoint
+  std::string ladder;                // with tempering: ladder_summary() as JSON text; else empty
   std::string last_checkpoint;       // UTC, ISO 8601
   std::vector<ChainFileSpan> spans;  // where its records are
 };
