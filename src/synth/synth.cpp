@@ -38,6 +38,7 @@ enum StreamKey : std::uint64_t {
 };
 
 constexpr double kPeoplePerUnit = 1000.0;  // the state's mean population per unit
+constexpr std::size_t kMaxCities = 6;  // the default state has 3 to 6
 
 // Approximately standard normal: sum of 12 uniforms minus 6 (Irwin-Hall), common practice.
 double standard_normal(Rng& rng) {
@@ -108,13 +109,14 @@ std::pair<double, double> random_inland_point(const synth::Outline& outline, Rng
 }
 
 std::vector<Place> make_places(const synth::Outline& outline, std::size_t units,
-                               std::uint64_t seed) {
+                               std::size_t cities, std::uint64_t seed) {
   const double people = kPeoplePerUnit * static_cast<double>(units);
   const double span = std::sqrt(static_cast<double>(outline.cell_count)) * synth::kCellKm;
   std::vector<Place> places;
   // Cities: a few, of Zipf-like sizes with noise, spread apart.
   Rng rng = make_stream(seed, kCityStream);
-  const std::size_t city_count = std::min<std::size_t>(6, 3 + units / 3000);
+  const std::size_t city_count =
+      cities != 0 ? cities : std::min<std::size_t>(kMaxCities, 3 + units / 3000);
   std::vector<double> weight(city_count);
   double weight_sum = 0.0;
   for (std::size_t i = 0; i < city_count; ++i) {
@@ -424,6 +426,12 @@ void check_options(const SynthOptions& options) {
                          " units for " + std::to_string(options.districts) + " districts)",
                      "ask for more units or fewer districts");
   }
+  if (options.cities > kMaxCities) {
+    throw InputError({"", 0, "--cities"},
+                     "at most " + std::to_string(kMaxCities) + " cities (got " +
+                         std::to_string(options.cities) + ")",
+                     "ask for 1 to " + std::to_string(kMaxCities) + " cities, or 0 for the default");
+  }
   if (options.out_dir.empty()) {
     throw InputError({"", 0, "--out"}, "no output folder given", "name a folder with --out DIR");
   }
@@ -483,7 +491,7 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
   const synth::Outline outline = synth::make_outline(std::max<std::size_t>(4, n / 5), outline_rng);
   const double area_km2 = static_cast<double>(outline.cell_count) * synth::kCellKm * synth::kCellKm;
   Rng rural_rng = make_stream(seed, kRuralStream);
-  StateModel model{make_places(outline, n, seed),
+  StateModel model{make_places(outline, n, options.cities, seed),
                    {},
                    0.0,
                    synth::ValueNoise(rural_rng, outline.width_km(), outline.height_km(), 40.0)};
@@ -596,6 +604,7 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
   const std::string job_toml =
       "# Written by planmill synth --units " + std::to_string(n) + " --districts " +
       std::to_string(options.districts) + " --seed " + std::to_string(seed) +
+      (options.cities != 0 ? " --cities " + std::to_string(options.cities) : std::string()) +
       "\n[map]\nunits = \"units.csv\"\nadjacency = \"adjacency.csv\"\nid = \"unit\"\n"
       "population = \"pop\"\ncounty = \"county\"\nmunicipality = \"town\"\narea = \"area\"\n"
       "perimeter = \"perimeter\"\nouter_boundary = \"outer\"\ngroups = [\"grp\"]\n"

@@ -393,6 +393,41 @@ TEST(Synth, RejectsBadOptionsWithoutWritingAnything) {
   fs::remove_all(dir);
 }
 
+TEST(Synth, DefaultStateStillMatchesTheBundledDemo) {
+  // jobs/demo holds the files of `synth --units 2000 --districts 20 --seed 2026`, written before
+  // the cities option existed: the default (cities = 0) must still give them byte for byte.
+  const fs::path dir = generate(2000, 20, 2026, "demo");
+  const fs::path demo = fs::path(PLANMILL_SOURCE_DIR) / "jobs" / "demo";
+  for (const char* name : {"units.csv", "adjacency.csv", "units.geojson"}) {
+    EXPECT_EQ(read_bytes(dir / name), read_bytes(demo / name)) << name;
+  }
+  fs::remove_all(dir);
+}
+
+TEST(Synth, CitiesOptionSetsTheNumberOfCities) {
+  // 600 units pick 3 cities by default; asking for 3 must give the very same state, asking for 2
+  // a different one with two cities, and the job file's first line says how it was made.
+  const fs::path d = scratch_dir("default"), t = scratch_dir("three"), w = scratch_dir("two");
+  SynthOptions options{600, 4, 5, d.string()};
+  const SynthSummary by_default = write_synthetic_state(options);
+  EXPECT_EQ(by_default.cities, 3U);
+  options.cities = 3;
+  options.out_dir = t.string();
+  (void)write_synthetic_state(options);
+  options.cities = 2;
+  options.out_dir = w.string();
+  const SynthSummary two = write_synthetic_state(options);
+  EXPECT_EQ(two.cities, 2U);
+  EXPECT_EQ(read_bytes(d / "units.csv"), read_bytes(t / "units.csv"));
+  EXPECT_NE(read_bytes(d / "units.csv"), read_bytes(w / "units.csv"));
+  const std::string job = read_bytes(w / "job.toml");
+  EXPECT_EQ(job.substr(0, job.find('\n')),
+            "# Written by planmill synth --units 600 --districts 4 --seed 5 --cities 2");
+  EXPECT_EQ(read_bytes(d / "job.toml").find("--cities"), std::string::npos);
+  expect_input_error({600, 4, 5, scratch_dir("seven").string(), 7}, "--cities");
+  for (const fs::path& p : {d, t, w}) fs::remove_all(p);
+}
+
 TEST(Synth, CommandLineReportsBadOptionsOnOneLineWithStatus2) {
   const fs::path dir = scratch_dir("cli");
   fs::create_directories(dir);

@@ -15,6 +15,9 @@ struct SynthOptions {
   std::size_t districts = 20;  // written to job.toml as [districts] count
   std::uint64_t seed = 1;
   std::string out_dir;  // created if missing
+  // How many cities: 0 picks 3 to 6 by map size (the default state); 1 to 6 asks for exactly
+  // that many, e.g. 2 for a state whose plans split into two groups around two dense centres.
+  std::size_t cities = 0;
 };
 
 struct SynthElectionSummary {
@@ -39,7 +42,7 @@ struct SynthSummary {
 
 // Builds the state and writes units.csv, adjacency.csv, units.geojson and job.toml into
 // options.out_dir, each atomically (temporary file, then rename). Throws InputError (column
-// "--units", "--districts" or "--out") for bad options or an unwritable folder.
+// "--units", "--districts", "--cities" or "--out") for bad options or an unwritable folder.
 SynthSummary write_synthetic_state(const SynthOptions& options);
 
 }  // namespace planmill
