@@ -680,6 +680,9 @@ class ChainRunner {
     if (end == RunEnd::stopped_on_signal) {
       out.summary += "\nstopped on a signal after a checkpoint; continue with: planmill run " +
                      options_.job_path + " --output " + out.run_dir + " --resume";
+      if (options_.until_converged) {
+        out.summary += " --until-converged --max-steps " + std::to_string(options_.max_steps);
+      }
     } else if (end == RunEnd::converged) {
       out.summary += "\nconverged: every observable passes the verdict";
     } else if (end == RunEnd::budget_spent) {
