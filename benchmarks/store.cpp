@@ -84,6 +84,7 @@ double empty_file_bytes(const State& s, const fs::path& path) {
 void BM_ChainRecording(benchmark::State& bench) {
   const State& s = benchmark_state();
   const auto interval = static_cast<std::uint64_t>(bench.range(0));
+  const bool hint = bench.range(2) == 1;
   Chain chain = make_chain(s);
   const fs::path path =
       fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()) + ".h5");
@@ -103,7 +104,12 @@ void BM_ChainRecording(benchmark::State& bench) {
         const Plan& p = chain.state().plan;
         const double obs[] = {static_cast<double>(p.cut_edge_count()),
                               p.max_population_deviation()};
-        writer.record(h, step, p.assignment(), obs);
+        if (hint) {
+          writer.record(h, step, p.assignment(), obs, p.changes());
+          chain.clear_plan_changes();
+        } else {
+          writer.record(h, step, p.assignment(), obs);
+        }
         ++records;
       }
     }
@@ -185,23 +191,30 @@ void BM_GraphRecord(benchmark::State& bench) {
 
 BENCHMARK(BM_GraphRecord)->ArgName("decode")->Arg(0)->Arg(1)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ChainOnly)->Unit(benchmark::kMicrosecond);
-// Args: recording interval, self-contained plan every K records (1 = self-contained only).
+// Args: recording interval, self-contained plan every K records (1 = self-contained only), and
+// whether the chain's list of moved units is passed to the writer (hint = 1) or the writer
+// compares every unit (0).
 BENCHMARK(BM_ChainRecording)
-    ->ArgNames({"interval", "full_every"})
-    ->Args({1, 128})
-    ->Args({10, 128})
-    ->Args({100, 128})
-    ->Args({100, 1})
+    ->ArgNames({"interval", "full_every", "hint"})
+    ->Args({1, 128, 0})
+    ->Args({1, 128, 1})
+    ->Args({1, 256, 0})
+    ->Args({1, 256, 1})
+    ->Args({10, 256, 0})
+    ->Args({10, 256, 1})
+    ->Args({100, 256, 0})
+    ->Args({100, 256, 1})
+    ->Args({100, 1, 1})
     ->Unit(benchmark::kMicrosecond);
 // Long intervals: enough steps for 100 and 40 records.
 BENCHMARK(BM_ChainRecording)
-    ->ArgNames({"interval", "full_every"})
-    ->Args({1000, 128})
+    ->ArgNames({"interval", "full_every", "hint"})
+    ->Args({1000, 256, 1})
     ->Iterations(100000)
     ->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ChainRecording)
-    ->ArgNames({"interval", "full_every"})
-    ->Args({10000, 128})
+    ->ArgNames({"interval", "full_every", "hint"})
+    ->Args({10000, 256, 1})
     ->Iterations(400000)
     ->Unit(benchmark::kMicrosecond);
 

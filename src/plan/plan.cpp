@@ -1,5 +1,6 @@
 #include "planmill/plan/plan.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <stdexcept>
 #include <string>
@@ -15,6 +16,69 @@ Plan::Plan(const UnitGraph& graph, std::size_t district_count, std::vector<Distr
   for (DistrictIndex d : district_)
     if (d >= k_) throw std::invalid_argument("district label " + std::to_string(d) + " >= k");
   recompute();
+  reserve_changes();
+}
+
+// Beyond about a quarter of the units, checking the listed units costs about as much as
+// comparing every label, so a longer list would buy nothing.
+void Plan::reserve_changes() {
+  changes_.clear();
+  changes_.reserve(std::max<std::size_t>(256, district_.size() / 4));
+  changes_overflowed_ = true;
+}
+
+Plan::Plan(const Plan& other)
+    : graph_(other.graph_),
+      k_(other.k_),
+      columns_(other.columns_),
+      district_(other.district_),
+      population_(other.population_),
+      size_(other.size_),
+      counts_(other.counts_),
+      area_(other.area_),
+      perimeter_(other.perimeter_),
+      cut_edges_(other.cut_edges_) {
+  reserve_changes();
+}
+
+Plan::Plan(Plan&& other) noexcept
+    : graph_(other.graph_),
+      k_(other.k_),
+      columns_(other.columns_),
+      district_(std::move(other.district_)),
+      population_(std::move(other.population_)),
+      size_(std::move(other.size_)),
+      counts_(std::move(other.counts_)),
+      area_(std::move(other.area_)),
+      perimeter_(std::move(other.perimeter_)),
+      cut_edges_(other.cut_edges_),
+      changes_(std::move(other.changes_)),
+      seen_(std::move(other.seen_)),
+      seen_epoch_(other.seen_epoch_),
+      queue_(std::move(other.queue_)) {
+  changes_.clear();
+  changes_overflowed_ = true;
+}
+
+Plan& Plan::operator=(Plan&& other) noexcept {
+  if (this == &other) return *this;
+  graph_ = other.graph_;
+  k_ = other.k_;
+  columns_ = other.columns_;
+  district_ = std::move(other.district_);
+  population_ = std::move(other.population_);
+  size_ = std::move(other.size_);
+  counts_ = std::move(other.counts_);
+  area_ = std::move(other.area_);
+  perimeter_ = std::move(other.perimeter_);
+  cut_edges_ = other.cut_edges_;
+  changes_ = std::move(other.changes_);
+  changes_.clear();
+  changes_overflowed_ = true;
+  seen_ = std::move(other.seen_);
+  seen_epoch_ = other.seen_epoch_;
+  queue_ = std::move(other.queue_);
+  return *this;
 }
 
 Plan& Plan::operator=(const Plan& other) {
@@ -30,6 +94,9 @@ Plan& Plan::operator=(const Plan& other) {
   area_.assign(other.area_.begin(), other.area_.end());
   perimeter_.assign(other.perimeter_.begin(), other.perimeter_.end());
   cut_edges_ = other.cut_edges_;
+  if (changes_.capacity() == 0) reserve_changes();  // a moved-from plan lost its list
+  changes_.clear();
+  changes_overflowed_ = true;
   return *this;
 }
 
@@ -106,6 +173,10 @@ void Plan::move(UnitIndex u, DistrictIndex to) noexcept {
     perimeter_[to] += g.outer_boundary(u);
   }
   district_[u] = to;
+  if (changes_.size() < changes_.capacity())
+    changes_.push_back(u);
+  else
+    changes_overflowed_ = true;
 }
 
 void Plan::assign(std::span<const UnitIndex> units, std::span<const DistrictIndex> to) noexcept {

@@ -276,6 +276,12 @@ std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
 void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
                             std::span<const DistrictIndex> plan,
                             std::span<const double> observables) {
+  record(chain, step, plan, observables, PlanChanges{});
+}
+
+void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
+                            std::span<const DistrictIndex> plan,
+                            std::span<const double> observables, const PlanChanges& changes) {
   Impl& m = *impl_;
   Impl::ChainOut& c = m.chains.at(chain);
   if (plan.size() != m.header.unit_count)
@@ -286,7 +292,10 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
   const std::size_t before = c.byte_buffer.size();
   RecordKind kind = RecordKind::full;
   try {
-    kind = c.encoder->encode(plan, c.record_count % m.options.full_every == 0, c.byte_buffer);
+    const bool self_contained = c.record_count % m.options.full_every == 0;
+    kind = changes.overflowed
+               ? c.encoder->encode(plan, self_contained, c.byte_buffer)
+               : c.encoder->encode(plan, changes.units, self_contained, c.byte_buffer);
   } catch (...) {
     c.byte_buffer.resize(before);
     throw;

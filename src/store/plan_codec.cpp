@@ -3,6 +3,9 @@
 
 #include <algorithm>
 #include <bit>
+#include <cassert>
+#include <functional>
+#include <numeric>
 #include <cstring>
 #include <stdexcept>
 #include <string>
@@ -417,7 +420,8 @@ ChainEncoder::ChainEncoder(std::size_t unit_count, std::size_t district_count,
       lower_(adjacency_ ? lower_part(*adjacency_) : UnitAdjacency{}),
       previous_(unit_count),
       label_size_(district_count),
-      guess_(district_count) {
+      guess_(district_count),
+      marked_((unit_count + 63) / 64) {
   changed_.reserve(unit_count);
   if (adjacency_) {
     const std::size_t degree = max_degree(lower_);
@@ -454,20 +458,80 @@ RecordKind ChainEncoder::encode(std::span<const DistrictIndex> plan, bool self_c
     encode_full(plan, width_, out);
     return RecordKind::full;
   }
-  const RecordKind kind = encode_delta(plan, out);
+  find_changes_by_scan(plan);
+  return encode_changes(plan, out);
+}
+
+RecordKind ChainEncoder::encode(std::span<const DistrictIndex> plan,
+                                std::span<const UnitIndex> maybe_changed, bool self_contained,
+                                std::vector<std::uint8_t>& out) {
+  if (self_contained || !have_previous_) return encode(plan, true, out);
+  find_changes_among(plan, maybe_changed);
+  return encode_changes(plan, out);
+}
+
+RecordKind ChainEncoder::encode_changes(std::span<const DistrictIndex> next,
+                                        std::vector<std::uint8_t>& out) {
+  const RecordKind kind = encode_delta(next, out);
   for (std::uint32_t u : changed_) {
     --label_size_[previous_[u]];
-    ++label_size_[plan[u]];
-    previous_[u] = plan[u];
+    ++label_size_[next[u]];
+    previous_[u] = next[u];
   }
   return kind;
 }
 
+void ChainEncoder::find_changes_by_scan(std::span<const DistrictIndex> next) {
+  const DistrictIndex* const previous = previous_.data();
+  changed_.clear();
+  const std::size_t n = n_;
+  for (std::size_t u = 0; u < n; ++u) {
+    // Most of a plan is unchanged: skip equal stretches a block at a time (memcmp is vectorised).
+    constexpr std::size_t kBlock = 64;
+    while (u + kBlock <= n &&
+           std::memcmp(&previous[u], &next[u], kBlock * sizeof(DistrictIndex)) == 0)
+      u += kBlock;
+    if (u >= n) break;
+    if (previous[u] == next[u]) continue;
+    if (next[u] >= k_) throw_bad_label(next[u], k_);
+    changed_.push_back(static_cast<std::uint32_t>(u));
+  }
+}
+
+void ChainEncoder::find_changes_among(std::span<const DistrictIndex> next,
+                                      std::span<const UnitIndex> maybe_changed) {
+  changed_.clear();
+  for (const UnitIndex u : maybe_changed) {
+    if (u >= n_)
+      throw std::invalid_argument("changed unit " + std::to_string(u) + " but only " +
+                                  std::to_string(n_) + " units");
+    if (next[u] >= k_) throw_bad_label(next[u], k_);
+  }
+  // A bit per unit sorts and de-duplicates in one pass over the marked words only.
+  std::size_t low = marked_.size(), high = 0;
+  for (const UnitIndex u : maybe_changed) {
+    if (previous_[u] == next[u]) continue;
+    const std::size_t word = u / 64;
+    marked_[word] |= std::uint64_t{1} << (u % 64);
+    low = std::min(low, word);
+    high = std::max(high, word + 1);
+  }
+  for (std::size_t word = low; word < high; ++word) {
+    for (std::uint64_t bits = marked_[word]; bits != 0; bits &= bits - 1)
+      changed_.push_back(static_cast<std::uint32_t>(word * 64 + std::countr_zero(bits)));
+    marked_[word] = 0;
+  }
+  assert(changed_.size() == static_cast<std::size_t>(std::inner_product(
+                                previous_.begin(), previous_.end(), next.begin(), std::size_t{0},
+                                std::plus<>(), std::not_equal_to<>())) &&
+         "the changed-unit list misses a changed unit");
+}
+
+// Writes changed_ (ascending) as a delta record, or as a graph or full record when smaller.
 RecordKind ChainEncoder::encode_delta(std::span<const DistrictIndex> next,
                                       std::vector<std::uint8_t>& out) {
   const std::span<const DistrictIndex> previous = previous_;
   std::fill(guess_.begin(), guess_.end(), kNoDistrict);
-  changed_.clear();
   const std::size_t start = out.size();
   const std::size_t n = n_;
   // One pass: write the runs encoding and note which labels the changes involve.
@@ -483,26 +547,18 @@ RecordKind ChainEncoder::encode_delta(std::span<const DistrictIndex> next,
       two_labels = false;
   };
   std::size_t last_end = 0;
-  for (std::size_t u = 0; u < n;) {
-    // Most of a plan is unchanged: skip equal stretches a block at a time (memcmp is vectorised).
-    constexpr std::size_t kBlock = 64;
-    while (u + kBlock <= n &&
-           std::memcmp(&previous[u], &next[u], kBlock * sizeof(DistrictIndex)) == 0)
-      u += kBlock;
-    if (u >= n) break;
-    if (previous[u] == next[u]) {
-      ++u;
-      continue;
-    }
+  const std::size_t changes = changed_.size();
+  for (std::size_t i = 0; i < changes;) {
+    // A run: consecutive changed units given the same new label.
+    const std::size_t u = changed_[i];
     const DistrictIndex label = next[u];
-    if (label >= k_) throw_bad_label(label, k_);
-    std::size_t end = u;
-    while (end < n && previous[end] != next[end] && next[end] == label) {
-      note(previous[end]);
-      changed_.push_back(static_cast<std::uint32_t>(end));
-      ++end;
-    }
+    std::size_t j = i;
+    do {
+      note(previous[changed_[j]]);
+      ++j;
+    } while (j < changes && changed_[j] == changed_[j - 1] + 1 && next[changed_[j]] == label);
     note(label);
+    const std::size_t end = u + (j - i);
     // Guess the label from the last run that started in the same old district (a merged pair
     // keeps swapping the same two labels); spell it out only when the guess is wrong.
     const bool guessed = guess_[previous[u]] == label;
@@ -511,7 +567,7 @@ RecordKind ChainEncoder::encode_delta(std::span<const DistrictIndex> next,
     put_varint((end - u) * 2 + (guessed ? 0 : 1), out);
     if (!guessed) put_label(label, width_, out);
     last_end = end;
-    u = end;
+    i = j;
   }
   if (changed_.empty()) return RecordKind::unchanged;
   const std::size_t runs_size = out.size() - start;

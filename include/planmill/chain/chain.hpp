@@ -39,6 +39,8 @@ class Chain {
   [[nodiscard]] double beta() const noexcept { return beta_; }
   // For tempering: takes effect from the next step. Allocates nothing.
   void set_beta(double beta) noexcept;
+  // Empties the plan's list of moved units (Plan::changes()); call it after recording the plan.
+  void clear_plan_changes() noexcept { state_.plan.clear_changes(); }
 
   // Text snapshot of the RNG, counters, beta and plan; restore() accepts only a snapshot of a chain
   // with the same map and district count, and throws std::invalid_argument otherwise. Snapshots of

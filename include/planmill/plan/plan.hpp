@@ -1,12 +1,14 @@
 #pragma once
 // Plan: the district of every unit, with district tallies (population, every count column, area,
 // perimeter) and the cut-edge count kept up to date as units move. No I/O here (see io/plan_csv).
+// It also keeps a bounded list of the units moved since clear_changes() (changes()).
 #include <cstdint>
 #include <span>
 #include <vector>
 
 #include "planmill/base/ids.hpp"
 #include "planmill/graph/unit_graph.hpp"
+#include "planmill/plan/plan_changes.hpp"
 
 namespace planmill {
 
@@ -15,10 +17,12 @@ class Plan {
   // district[u] in 0..k-1 for every unit. Throws std::invalid_argument on a wrong size or label.
   Plan(const UnitGraph& graph, std::size_t district_count, std::vector<DistrictIndex> district);
 
-  Plan(const Plan&) = default;
+  // Copies and moves carry the labels and tallies; the change list of the result is overflowed
+  // (its labels came from elsewhere, so no earlier copy of them can be trusted to be close).
+  Plan(const Plan& other);
   Plan& operator=(const Plan&);  // graph must be the same
-  Plan(Plan&&) noexcept = default;
-  Plan& operator=(Plan&&) noexcept = default;
+  Plan(Plan&& other) noexcept;
+  Plan& operator=(Plan&& other) noexcept;
 
   [[nodiscard]] const UnitGraph& graph() const noexcept { return *graph_; }
   [[nodiscard]] std::size_t district_count() const noexcept { return k_; }
@@ -45,6 +49,18 @@ class Plan {
   // touched; `units` lists the units whose label may change.
   void assign(std::span<const UnitIndex> units, std::span<const DistrictIndex> to) noexcept;
 
+  // Units moved by move()/assign() since the last clear_changes(), at most change_capacity() of
+  // them; overflowed when more moves happened, and from construction, copy or move until the first
+  // clear_changes(). Recording the list costs no allocation.
+  [[nodiscard]] PlanChanges changes() const noexcept {
+    return {std::span<const UnitIndex>(changes_), changes_overflowed_};
+  }
+  void clear_changes() noexcept {
+    changes_.clear();
+    changes_overflowed_ = false;
+  }
+  [[nodiscard]] std::size_t change_capacity() const noexcept { return changes_.capacity(); }
+
   // Contiguity by breadth-first search inside the district; scratch buffers are reused.
   [[nodiscard]] bool is_connected(DistrictIndex d) const;
   [[nodiscard]] bool all_connected() const;
@@ -57,6 +73,7 @@ class Plan {
  private:
   void recompute();
   void add_unit(UnitIndex u, DistrictIndex d, double sign) noexcept;
+  void reserve_changes();
 
   const UnitGraph* graph_;
   std::size_t k_;
@@ -68,6 +85,9 @@ class Plan {
   std::vector<double> area_;
   std::vector<double> perimeter_;
   std::size_t cut_edges_ = 0;
+  // Change list: capacity fixed at construction, so that push_back never allocates.
+  std::vector<UnitIndex> changes_;
+  bool changes_overflowed_ = true;
   // BFS scratch, kept so that contiguity checks do not allocate after the first call.
   mutable std::vector<std::uint32_t> seen_;
   mutable std::uint32_t seen_epoch_ = 0;

@@ -69,10 +69,22 @@ class ChainEncoder {
   // `self_contained` (or for the first plan), else the smallest of the delta kinds and graph.
   RecordKind encode(std::span<const DistrictIndex> plan, bool self_contained,
                     std::vector<std::uint8_t>& out);
+  // The same bytes as encode(), looking only at the units of `maybe_changed`, which must hold
+  // every unit whose label differs from the previous plan (repeats and unchanged units are fine).
+  // Only those units are checked for a bad label; a unit missing from the list makes the record
+  // wrong (debug builds assert). Throws std::invalid_argument on a unit index out of range.
+  RecordKind encode(std::span<const DistrictIndex> plan, std::span<const UnitIndex> maybe_changed,
+                    bool self_contained, std::vector<std::uint8_t>& out);
   // Appends the graph encoding of `plan` (needs an adjacency), independent of previous plans.
   void encode_graph(std::span<const DistrictIndex> plan, std::vector<std::uint8_t>& out);
 
  private:
+  // Fill changed_ (ascending) with the units whose label differs from previous_.
+  void find_changes_by_scan(std::span<const DistrictIndex> next);
+  void find_changes_among(std::span<const DistrictIndex> next,
+                          std::span<const UnitIndex> maybe_changed);
+  // Encodes the changes listed in changed_ and applies them to previous_.
+  RecordKind encode_changes(std::span<const DistrictIndex> next, std::vector<std::uint8_t>& out);
   RecordKind encode_delta(std::span<const DistrictIndex> next, std::vector<std::uint8_t>& out);
   void take_whole(std::span<const DistrictIndex> plan);
 
@@ -84,6 +96,7 @@ class ChainEncoder {
   std::vector<std::uint32_t> label_size_;  // units per label in previous_
   std::vector<std::uint32_t> changed_;     // units that differ, of the record being encoded
   std::vector<DistrictIndex> guess_;       // per old label, for runs
+  std::vector<std::uint64_t> marked_;      // one bit per unit, all zero between records
   std::vector<std::uint8_t> trial_;        // graph encoding tried against a delta
   // Graph coder state.
   std::vector<std::uint16_t> probabilities_;
