@@ -38,7 +38,7 @@ enum StreamKey : std::uint64_t {
 };
 
 constexpr double kPeoplePerUnit = 1000.0;  // the state's mean population per unit
-constexpr std::size_t kMaxCities = 6;  // the default state has 3 to 6
+constexpr std::size_t kMaxCities = 6;      // the default state has 3 to 6
 
 // Approximately standard normal: sum of 12 uniforms minus 6 (Irwin-Hall), common practice.
 double standard_normal(Rng& rng) {
@@ -108,8 +108,8 @@ std::pair<double, double> random_inland_point(const synth::Outline& outline, Rng
   }
 }
 
-std::vector<Place> make_places(const synth::Outline& outline, std::size_t units,
-                               std::size_t cities, std::uint64_t seed) {
+std::vector<Place> make_places(const synth::Outline& outline, std::size_t units, std::size_t cities,
+                               std::uint64_t seed) {
   const double people = kPeoplePerUnit * static_cast<double>(units);
   const double span = std::sqrt(static_cast<double>(outline.cell_count)) * synth::kCellKm;
   std::vector<Place> places;
@@ -427,10 +427,11 @@ void check_options(const SynthOptions& options) {
                      "ask for more units or fewer districts");
   }
   if (options.cities > kMaxCities) {
-    throw InputError({"", 0, "--cities"},
-                     "at most " + std::to_string(kMaxCities) + " cities (got " +
-                         std::to_string(options.cities) + ")",
-                     "ask for 1 to " + std::to_string(kMaxCities) + " cities, or 0 for the default");
+    throw InputError(
+        {"", 0, "--cities"},
+        "at most " + std::to_string(kMaxCities) + " cities (got " + std::to_string(options.cities) +
+            ")",
+        "ask for 1 to " + std::to_string(kMaxCities) + " cities, or 0 for the default");
   }
   if (options.out_dir.empty()) {
     throw InputError({"", 0, "--out"}, "no output folder given", "name a folder with --out DIR");
