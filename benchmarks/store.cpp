@@ -6,7 +6,8 @@
 // before deflate, and bits per unit per recorded plan. BM_ChainOnly is the same chain without
 // recording, for the relative write cost (per-record clock reads would cost more than they
 // measure: use perf for the share of the writer); BM_GraphRecord times the self-contained record
-// kind.
+// kind. With hint = 1 the chain's list of moved units (Plan::changes()) goes to record(), as the
+// runner passes it.
 //   build/benchmarks/bench_store --benchmark_min_time=3
 #include <benchmark/benchmark.h>
 #include <unistd.h>
@@ -189,6 +190,36 @@ void BM_GraphRecord(benchmark::State& bench) {
   bench.counters["bytes"] = static_cast<double>(out.size());
 }
 
+// Reading one plan back with read_plan (decode the nearest self-contained record, then the deltas
+// after it): 2,048 records of the chain taken every step, self-contained every K records; the
+// records read are spread evenly, so on average K / 2 deltas are decoded per plan.
+void BM_ReadPlan(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  Chain chain = make_chain(s);
+  const fs::path path =
+      fs::temp_directory_path() / ("planmill_bench_read_" + std::to_string(getpid()) + ".h5");
+  constexpr std::size_t kRecords = 2048;
+  {
+    EnsembleWriterOptions options;
+    options.full_every = static_cast<std::size_t>(bench.range(0));
+    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)},
+                          options);
+    const std::size_t h = writer.add_chain(0, {});
+    for (std::size_t r = 0; r < kRecords; ++r) {
+      (void)chain.step();
+      writer.record(h, r, chain.state().plan.assignment(), {});
+    }
+  }
+  EnsembleReader reader(path.string());
+  std::size_t r = 0;
+  for (auto _ : bench) {
+    benchmark::DoNotOptimize(reader.read_plan(0, r));
+    r = (r + 97) % kRecords;  // 97 is prime to 2,048: every record in turn
+  }
+  fs::remove(path);
+}
+
+BENCHMARK(BM_ReadPlan)->ArgName("full_every")->Arg(128)->Arg(256)->Unit(benchmark::kMillisecond);
 BENCHMARK(BM_GraphRecord)->ArgName("decode")->Arg(0)->Arg(1)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_ChainOnly)->Unit(benchmark::kMicrosecond);
 // Args: recording interval, self-contained plan every K records (1 = self-contained only), and

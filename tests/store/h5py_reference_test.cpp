@@ -151,13 +151,16 @@ UnitAdjacency grid_adjacency(std::size_t units, std::size_t width) {
   return a;
 }
 
+// with_hint: record() is given the changed units (padded with unchanged ones and repeats), as a
+// chain's Plan::changes() would be.
 void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
-                        bool with_adjacency = false) {
+                        bool with_adjacency = false, bool with_hint = false) {
   const std::string tag = std::to_string(getpid()) + "_" + std::to_string(seed);
   const fs::path file = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".h5");
   const fs::path script = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".py");
   const fs::path output = fs::temp_directory_path() / ("planmill_h5py_" + tag + ".txt");
   std::mt19937 rng(seed);
+  std::map<std::uint64_t, std::vector<std::vector<DistrictIndex>>> written;
   {
     EnsembleHeader header{units, k, "job"};
     if (with_adjacency) header.adjacency = grid_adjacency(units, 20);
@@ -167,16 +170,33 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
       std::vector<DistrictIndex> plan(units);
       for (std::size_t u = 0; u < units; ++u) plan[u] = static_cast<DistrictIndex>(u * k / units);
       std::normal_distribution<double> normal;
+      std::vector<UnitIndex> changed;
       for (std::uint64_t r = 0; r < 40; ++r) {
+        changed.clear();
         const auto a = static_cast<DistrictIndex>(rng() % k),
                    b = static_cast<DistrictIndex>(rng() % k);
-        for (auto& d : plan)
-          if ((d == a || d == b) && rng() % 2) d = d == a ? b : a;  // two-district change
-        if (r % 5 == 0) plan[rng() % units] = static_cast<DistrictIndex>(rng() % k);  // one unit
+        for (std::size_t u = 0; u < units; ++u) {
+          auto& d = plan[u];
+          if ((d == a || d == b) && rng() % 2) {  // two-district change
+            d = d == a ? b : a;
+            changed.push_back(static_cast<UnitIndex>(u));
+          }
+        }
+        if (r % 5 == 0) {  // one unit
+          const auto u = static_cast<UnitIndex>(rng() % units);
+          plan[u] = static_cast<DistrictIndex>(rng() % k);
+          changed.push_back(u);
+        }
+        for (int i = 0; i < 5; ++i) changed.push_back(static_cast<UnitIndex>(rng() % units));
+        if (!changed.empty()) changed.push_back(changed.front());
         double mean = 0;
         for (auto d : plan) mean += d;
         const double obs[] = {mean / static_cast<double>(units), normal(rng)};
-        writer.record(h, 3 * r, plan, obs);
+        if (with_hint)
+          writer.record(h, 3 * r, plan, obs, PlanChanges{changed, false});
+        else
+          writer.record(h, 3 * r, plan, obs);
+        written[c].push_back(plan);
       }
     }
   }
@@ -228,6 +248,7 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
       unsigned d = 0;
       while (fields >> d) from_python.push_back(static_cast<DistrictIndex>(d));
       ASSERT_EQ(from_python, reader.read_plan(chain, r)) << "chain " << chain << " record " << r;
+      ASSERT_EQ(from_python, written[chain].at(r)) << "chain " << chain << " record " << r;
     }
   }
   EXPECT_EQ(obs_lines, 4u);
@@ -245,6 +266,10 @@ TEST(EnsembleH5py, PlansAndObservablesMatchUint16) { check_against_h5py(700, 320
 TEST(EnsembleH5py, GraphRecordsMatchUint8) { check_against_h5py(400, 9, 23, true); }
 TEST(EnsembleH5py, GraphRecordsMatchUint16) { check_against_h5py(700, 320, 24, true); }
 TEST(EnsembleH5py, GraphRecordsMatchManyLabels) { check_against_h5py(700, 600, 25, true); }
+TEST(EnsembleH5py, RecordsWrittenWithChangedUnitsMatch) {
+  check_against_h5py(400, 9, 26, false, true);
+  check_against_h5py(700, 320, 27, true, true);
+}
 
 }  // namespace
 }  // namespace planmill
