@@ -4,9 +4,9 @@
 #include <algorithm>
 #include <bit>
 #include <cassert>
+#include <cstring>
 #include <functional>
 #include <numeric>
-#include <cstring>
 #include <stdexcept>
 #include <string>
 

@@ -35,7 +35,8 @@ TEST(ChangeHint, SameBytesAsTheFullComparisonOnRandomSequences) {
     std::size_t delta_records = 0;
     for (std::size_t r = 0; r < 300; ++r) {
       list.clear();
-      const auto a = static_cast<DistrictIndex>(rng() % k), b = static_cast<DistrictIndex>(rng() % k);
+      const auto a = static_cast<DistrictIndex>(rng() % k),
+                 b = static_cast<DistrictIndex>(rng() % k);
       switch (rng() % 3) {
         case 0: {
           const std::size_t from = rng() % n, length = 1 + rng() % std::min<std::size_t>(n, 80);
@@ -111,10 +112,10 @@ TEST(ChangeHint, RealChainRecordsExactlyWithAndWithoutTheList) {
   setup.kernel.kind = KernelKind::recombination;
   Chain chain(setup, random_seed_plan(graph, 20, rules, rng));
   const std::size_t n = graph.unit_count();
-  const fs::path hinted_path = fs::temp_directory_path() /
-                               ("planmill_hint_" + std::to_string(getpid()) + "_with.h5");
-  const fs::path plain_path = fs::temp_directory_path() /
-                              ("planmill_hint_" + std::to_string(getpid()) + "_without.h5");
+  const fs::path hinted_path =
+      fs::temp_directory_path() / ("planmill_hint_" + std::to_string(getpid()) + "_with.h5");
+  const fs::path plain_path =
+      fs::temp_directory_path() / ("planmill_hint_" + std::to_string(getpid()) + "_without.h5");
   std::vector<Labels> recorded;
   std::size_t listed = 0, overflowed = 0;
   {
@@ -147,13 +148,12 @@ TEST(ChangeHint, RealChainRecordsExactlyWithAndWithoutTheList) {
     EXPECT_TRUE(reader.verify().empty());
     ASSERT_EQ(reader.record_count(0), recorded.size());
     std::size_t seen = 0;
-    reader.for_each_plan(0, 0, recorded.size() - 1,
-                         [&](std::size_t r, std::span<const DistrictIndex> plan) {
-                           ASSERT_TRUE(std::equal(plan.begin(), plan.end(), recorded[r].begin(),
-                                                  recorded[r].end()))
-                               << path << " record " << r;
-                           ++seen;
-                         });
+    reader.for_each_plan(
+        0, 0, recorded.size() - 1, [&](std::size_t r, std::span<const DistrictIndex> plan) {
+          ASSERT_TRUE(std::equal(plan.begin(), plan.end(), recorded[r].begin(), recorded[r].end()))
+              << path << " record " << r;
+          ++seen;
+        });
     EXPECT_EQ(seen, recorded.size());
     fs::remove(path);
   }
