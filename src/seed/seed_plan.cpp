@@ -32,6 +32,7 @@ Plan random_seed_plan(const UnitGraph& graph, std::size_t districts, const RuleS
   std::vector<std::uint8_t> side(n);
   std::vector<Candidate> candidates;
   for (std::size_t attempt = 0; attempt < effort.restarts; ++attempt) {
+    remaining.resize(n);  // a failed attempt may have left it holding only the unsplit rest
     std::iota(remaining.begin(), remaining.end(), UnitIndex{0});
     bool failed = false;
     for (std::size_t m = districts; m >= 2 && !failed; --m) {

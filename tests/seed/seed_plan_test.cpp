@@ -23,6 +23,20 @@ TEST(SeedPlan, RandomSeedsAreValidForManyShapes) {
   }
 }
 
+// One tree per split makes most attempts fail at some split; every restart must start again from
+// the whole map (a restart once began from the units left over by the failed attempt).
+TEST(SeedPlan, RestartsAfterAFailedLaterSplitStartFromTheWholeMap) {
+  const UnitGraph g = test::grid(6, 6);
+  RuleSet rules;
+  rules.population_deviation = 0.0;  // three districts of exactly 12 units
+  for (std::uint64_t seed = 1; seed <= 5; ++seed) {
+    Rng rng = make_stream(seed, 0);
+    const Plan plan = random_seed_plan(g, 3, rules, rng, {1, 5000});
+    EXPECT_TRUE(plan.all_connected()) << seed;
+    for (DistrictIndex d = 0; d < 3; ++d) EXPECT_EQ(plan.unit_count(d), 12U) << seed;
+  }
+}
+
 TEST(SeedPlan, ImpossibleToleranceIsAnInfeasibleErrorAfterBoundedEffort) {
   // A path of 5 units of population 1 cannot be cut into 2 districts of exactly 2.5.
   const UnitGraph g = test::graph_from_edges(5, test::path_edges(5));
