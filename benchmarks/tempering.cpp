@@ -202,6 +202,11 @@ int main(int argc, char** argv) {
   Settings s;
   try {
     for (int i = 1; i < argc; ++i) parse(s, argv[i]);
+    for (std::uint64_t rungs : s.rungs) {
+      if (rungs < 2 || s.steps / rungs < s.draws)
+        throw std::invalid_argument("each ladder needs >= 2 rungs and steps / rungs >= draws");
+    }
+    if (s.draws == 0 || s.steps < s.draws) throw std::invalid_argument("need steps >= draws > 0");
   } catch (const std::exception& e) {
     std::fprintf(stderr, "bench_tempering: %s\n", e.what());
     return 2;
@@ -224,11 +229,13 @@ int main(int argc, char** argv) {
   base.run_seed = s.run_seed;
 
   const std::vector<std::string> names = observable_names(graph, base.rules);
-  Observed o{};
-  for (std::size_t i = 0; i < names.size(); ++i) {
-    if (names[i] == "cut_edges") o.cut_edges = i;
-    if (names[i] == "seats.gov.A") o.seats = i;
-  }
+  const auto index_of = [&](const std::string& name) {
+    for (std::size_t i = 0; i < names.size(); ++i) {
+      if (names[i] == name) return i;
+    }
+    throw std::logic_error("no observable " + name);
+  };
+  const Observed o{index_of("cut_edges"), index_of("seats.gov.A")};
   std::vector<Plan> starts;
   for (std::size_t c = 0; c < s.chains; ++c) {
     Rng rng = make_stream(s.run_seed, 1000 + c);
