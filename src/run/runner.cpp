@@ -492,7 +492,14 @@ class ChainRunner {
     if (local.handle == SIZE_MAX) local.handle = writer_->add_chain(local.entry.index, names_);
     const ChainState& state = local.recorded_state();
     compute_observables(loaded_->graph, state, row_);
-    writer_->record(local.handle, step, state.plan.assignment(), row_);
+    if (local.chain) {
+      // The units moved since the last record spare the writer a scan of the whole plan. (A
+      // ladder's target rung changes hands on swaps, so its plans go without the hint.)
+      writer_->record(local.handle, step, state.plan.assignment(), row_, state.plan.changes());
+      local.chain->clear_plan_changes();
+    } else {
+      writer_->record(local.handle, step, state.plan.assignment(), row_);
+    }
     ++local.segment_records;
   }
 
