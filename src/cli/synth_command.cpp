@@ -18,6 +18,8 @@ void add_synth_command(CLI::App& app, Action& action) {
       ->capture_default_str();
   sub->add_option("--seed", options->seed, "seed; the same seed gives identical files")
       ->capture_default_str();
+  sub->add_option("--cities", options->cities,
+                  "number of dense cities, 1 to 6 (default: 3 to 6 by map size)");
   sub->add_option("--out", options->out_dir, "output folder (created if missing)")->required();
   sub->callback([options, &action] {
     action = [options] {

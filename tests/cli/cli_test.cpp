@@ -83,6 +83,16 @@ TEST_F(Cli, LaterSubcommandsSayNotYetAvailable) {
   }
 }
 
+TEST_F(Cli, SynthCitiesOptionReachesTheStateAndIsChecked) {
+  const auto o = run("synth --units 400 --districts 3 --seed 3 --cities 2 --out " + path("two"));
+  EXPECT_EQ(o.status, 0) << o.err;
+  EXPECT_NE(o.out.find("(2 cities)"), std::string::npos) << o.out;
+  EXPECT_NE(slurp(dir_ / "two" / "job.toml").find("--cities 2"), std::string::npos);
+  const auto bad = run("synth --units 400 --districts 3 --cities 9 --out " + path("bad"));
+  EXPECT_EQ(bad.status, 2);
+  EXPECT_NE(bad.err.find("'--cities'"), std::string::npos) << bad.err;
+}
+
 TEST_F(Cli, CheckSummarisesTheDemoJob) {
   const auto o = run(std::string("check ") + PLANMILL_SOURCE_DIR + "/jobs/demo/job.toml");
   EXPECT_EQ(o.status, 0) << o.err;
