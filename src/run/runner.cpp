@@ -680,8 +680,9 @@ class ChainRunner {
     const double seconds = std::chrono::duration<double>(Clock::now() - started).count();
     const std::uint64_t stepped = total_steps_global() - steps_at_start_global(steps_at_start);
     char line[256];
-    std::snprintf(line, sizeof line, "%zu chains on %d ranks: %llu plans recorded, %llu steps in %s",
-                  state_.chains.size(), w_.size, static_cast<unsigned long long>(out.records),
+    std::snprintf(line, sizeof line, "%zu chains on %d rank%s: %llu plans recorded, %llu steps in %s",
+                  state_.chains.size(), w_.size, w_.size == 1 ? "" : "s",
+                  static_cast<unsigned long long>(out.records),
                   static_cast<unsigned long long>(stepped), duration_text(seconds).c_str());
     out.summary = line;
     if (end == RunEnd::stopped_on_signal) {
