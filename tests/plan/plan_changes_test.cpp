@@ -11,20 +11,10 @@
 
 #include "planmill/base/random.hpp"
 #include "planmill/plan/plan.hpp"
+#include "count_allocations.hpp"
 #include "small_graphs.hpp"
 
-namespace {
-std::atomic<std::size_t> g_allocations{0};
-}  // namespace
 
-// Counts every allocation of this test program (the technique of tests/temper/no_allocation_test).
-void* operator new(std::size_t size) {
-  g_allocations.fetch_add(1, std::memory_order_relaxed);
-  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
-  throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 namespace planmill {
 namespace {
@@ -124,7 +114,7 @@ TEST(PlanChanges, KeepingTheListAllocatesNothing) {
   Rng rng = make_stream(8, 0);
   std::vector<UnitIndex> units(50);
   std::vector<DistrictIndex> to(50);
-  const std::size_t before = g_allocations.load();
+  const std::size_t before = planmill::test::allocations();
   for (int round = 0; round < 200; ++round) {
     plan.clear_changes();
     // Enough moves to overflow now and then (capacity 256).
@@ -137,7 +127,7 @@ TEST(PlanChanges, KeepingTheListAllocatesNothing) {
     plan.assign(units, to);
     other = plan;  // same shape: reuses capacity
   }
-  EXPECT_EQ(g_allocations.load() - before, 0u);
+  EXPECT_EQ(planmill::test::allocations() - before, 0u);
   EXPECT_TRUE(plan.tallies_consistent());
 }
 

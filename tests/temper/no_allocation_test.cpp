@@ -8,19 +8,10 @@
 
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/temper/ladder.hpp"
+#include "count_allocations.hpp"
 #include "small_graphs.hpp"
 
-namespace {
-std::atomic<std::size_t> g_allocations{0};
-}  // namespace
 
-void* operator new(std::size_t size) {
-  g_allocations.fetch_add(1, std::memory_order_relaxed);
-  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
-  throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 namespace planmill {
 namespace {
@@ -43,9 +34,9 @@ TEST_P(NoAllocation, LadderStepsAfterWarmUp) {
   setup.swap_every = 1;
   Ladder ladder(setup, {random_seed_plan(graph, 3, rules, seed_rng)});
   ladder.run(5000);  // warm-up grows every buffer to its working size
-  const std::size_t before = g_allocations.load();
+  const std::size_t before = planmill::test::allocations();
   ladder.run(5000);
-  EXPECT_EQ(g_allocations.load() - before, 0u);
+  EXPECT_EQ(planmill::test::allocations() - before, 0u);
   EXPECT_GT(ladder.statistics().swap_accepts[0], 0u);
 }
 

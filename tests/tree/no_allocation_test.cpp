@@ -12,19 +12,10 @@
 #include "planmill/plan/plan.hpp"
 #include "planmill/tree/region.hpp"
 #include "planmill/tree/spanning_tree.hpp"
+#include "count_allocations.hpp"
 #include "small_graphs.hpp"
 
-namespace {
-std::atomic<std::size_t> g_allocations{0};
-}  // namespace
 
-void* operator new(std::size_t size) {
-  g_allocations.fetch_add(1, std::memory_order_relaxed);
-  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
-  throw std::bad_alloc();
-}
-void operator delete(void* p) noexcept { std::free(p); }
-void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 namespace planmill::test {
 namespace {
@@ -46,7 +37,7 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
   const std::size_t region_bytes = region.capacity_bytes();
   const std::size_t sampler_bytes = sampler.capacity_bytes();
 
-  const std::size_t before = g_allocations.load();
+  const std::size_t before = planmill::test::allocations();
   std::size_t cuts = 0;
   for (int i = 0; i < 200; ++i) {
     if (i % 3 == 0) {
@@ -60,7 +51,7 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
     cuts += balanced.size();
     if (!balanced.empty()) sampler.mark_side(balanced[0], side);
   }
-  EXPECT_EQ(g_allocations.load() - before, 0U);
+  EXPECT_EQ(planmill::test::allocations() - before, 0U);
   EXPECT_EQ(region.capacity_bytes(), region_bytes);
   EXPECT_EQ(sampler.capacity_bytes(), sampler_bytes);
   EXPECT_GT(cuts, 0U);  // the loop did reach the cut code
@@ -68,10 +59,10 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
 
 TEST(NoAllocation, CounterSeesAllocations) {
   // The counter itself works (otherwise the test above proves nothing).
-  const std::size_t before = g_allocations.load();
+  const std::size_t before = planmill::test::allocations();
   auto* v = new std::vector<int>(100);
   delete v;
-  EXPECT_GE(g_allocations.load() - before, 2U);
+  EXPECT_GE(planmill::test::allocations() - before, 2U);
 }
 
 }  // namespace
