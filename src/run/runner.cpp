@@ -12,6 +12,7 @@
 #include <cstdio>
 #include <filesystem>
 #include <memory>
+#include <optional>
 #include <stdexcept>
 #include <vector>
 
@@ -58,12 +59,12 @@ World world() {
   return w;
 }
 
-std::string broadcast_string(std::string text, const World& w) {
+// Rank 0's text, on every rank.
+std::string broadcast_string(std::string text) {
   std::uint64_t size = text.size();
   MPI_Bcast(&size, 1, MPI_UINT64_T, 0, MPI_COMM_WORLD);
   text.resize(size);
   MPI_Bcast(text.data(), static_cast<int>(size), MPI_CHAR, 0, MPI_COMM_WORLD);
-  (void)w;
   return text;
 }
 
@@ -89,23 +90,30 @@ std::vector<std::string> gather_strings(const std::string& mine, const World& w)
   return out;
 }
 
+// Runs `work`; returns the exit status its error maps to (0: none) and keeps the error.
+template <class Work>
+int attempt(Work&& work, std::exception_ptr& error) {
+  try {
+    work();
+    return 0;
+  } catch (const InputError&) {
+    error = std::current_exception();
+    return 2;
+  } catch (const InfeasibleError&) {
+    error = std::current_exception();
+    return 2;
+  } catch (...) {
+    error = std::current_exception();
+    return 1;
+  }
+}
+
 // Runs `work` on rank 0 and shares how it went: a problem there ends every rank (rank 0 throws
 // the real error, the others RunFailedElsewhere).
 template <class Work>
 void on_root_then_agree(const World& w, Work&& work) {
-  int status = 0;
   std::exception_ptr error;
-  if (w.root()) {
-    try {
-      work();
-    } catch (const InputError&) {
-      status = 2, error = std::current_exception();
-    } catch (const InfeasibleError&) {
-      status = 2, error = std::current_exception();
-    } catch (...) {
-      status = 1, error = std::current_exception();
-    }
-  }
+  int status = w.root() ? attempt(work, error) : 0;
   MPI_Bcast(&status, 1, MPI_INT, 0, MPI_COMM_WORLD);
   if (error) std::rethrow_exception(error);
   if (status != 0) throw RunFailedElsewhere{status};
@@ -114,17 +122,8 @@ void on_root_then_agree(const World& w, Work&& work) {
 // Every rank does `work`; if any rank fails, all stop (the failing ones rethrow their error).
 template <class Work>
 void everywhere_then_agree(Work&& work) {
-  int status = 0;
   std::exception_ptr error;
-  try {
-    work();
-  } catch (const InputError&) {
-    status = 2, error = std::current_exception();
-  } catch (const InfeasibleError&) {
-    status = 2, error = std::current_exception();
-  } catch (...) {
-    status = 1, error = std::current_exception();
-  }
+  const int status = attempt(work, error);
   int worst = 0;
   MPI_Allreduce(&status, &worst, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
   if (error) std::rethrow_exception(error);
@@ -201,6 +200,13 @@ struct LocalChain {
   std::unique_ptr<Ladder> ladder;
   bool tune = false;  // ladder: tune during burn-in (one call, before the first recorded step)
   [[nodiscard]] std::uint64_t steps() const { return ladder ? ladder->steps() : chain->counters().steps; }
+  void step() {
+    if (ladder) {
+      ladder->step();
+    } else {
+      (void)chain->step();
+    }
+  }
   [[nodiscard]] const ChainState& recorded_state() const {
     return ladder ? ladder->on_rung(0).state() : chain->state();
   }
@@ -246,7 +252,8 @@ class ChainRunner {
     const JobSpec& job = loaded_->job;
     const std::string dir = options_.output_dir ? *options_.output_dir : job.output.dir;
     layout_ = RunLayout{dir};
-    const std::vector<std::string> hosts = gather_strings(host_name(), w_);
+    host_ = host_name();
+    const std::vector<std::string> hosts = gather_strings(host_, w_);
     std::string encoded;
     on_root_then_agree(w_, [&] {
       if (job_uses_all_rungs()) {
@@ -265,7 +272,7 @@ class ChainRunner {
       }
       encoded = encode_run_state(state);
     });
-    state_ = decode_run_state(broadcast_string(encoded, w_));
+    state_ = decode_run_state(broadcast_string(encoded));
     segment_ = state_.checkpoints;
     names_ = state_.observable_names;
     row_.assign(names_.size(), 0.0);
@@ -373,7 +380,7 @@ class ChainRunner {
 
   // ---- the loop ----
   enum Field : std::size_t {
-    kStop, kCheckpointSignal, kCheckpointDue, kNextRound, kStepsThisRound, kAccepted, kRecords,
+    kStop, kCheckpointSignal, kCheckpointDue, kNextRound, kAccepted, kRecords,
     kRemaining, kProgressDue, kStepsTotal, kFieldCount
   };
 
@@ -392,7 +399,6 @@ class ChainRunner {
       std::uint64_t mine[kFieldCount] = {};
       mine[kStop] = g_stop_requested ? 1 : 0;
       mine[kCheckpointSignal] = g_checkpoint_requested ? 1 : 0;
-      mine[kStepsThisRound] = done;
       mine[kAccepted] = accepted_local();
       mine[kRecords] = records_local();
       mine[kRemaining] = remaining_local();
@@ -426,18 +432,15 @@ class ChainRunner {
       if (checkpoint && (steps_since_commit > 0 || stop || (reached && !state_.finished))) {
         g_checkpoint_requested = 0;
         const bool final = stop || (reached && !options_.until_converged);
-        commit(final, stop ? "checkpointed on signal" : (reached ? "finished" : ""));
+        commit(final ? (stop ? "checkpointed on signal" : "finished") : "");
         last_checkpoint = Clock::now();
         steps_since_commit = 0;
         if (all[kCheckpointSignal] > 0 && w_.root()) spdlog::info("checkpoint on SIGUSR1 written");
       }
       if (stop) return outcome(RunEnd::stopped_on_signal, started, steps_at_start);
       if (reached) {
-        if (!options_.until_converged) {
-            return outcome(RunEnd::finished, started, steps_at_start);
-        }
-        const RunEnd verdict = judge_block();
-        if (verdict != RunEnd::finished) return outcome(verdict, started, steps_at_start);
+        if (!options_.until_converged) return outcome(RunEnd::finished, started, steps_at_start);
+        if (const auto end = judge_block()) return outcome(*end, started, steps_at_start);
       }
     }
   }
@@ -446,31 +449,17 @@ class ChainRunner {
     std::uint64_t done = 0;
     const std::uint64_t target = state_.target_steps;
     for (auto& local : chains_) {
-      if (local.ladder) {
-        Ladder& ladder = *local.ladder;
-        if (local.tune && ladder.steps() == 0 && state_.burn_in > 0) {
-          ladder.tune(std::min(state_.burn_in, target));  // adapts, freezes, clears statistics
-          done += ladder.steps();
-        }
-        const std::uint64_t steps = ladder.steps();
-        if (steps >= target) continue;
-        const std::uint64_t n = std::min(round_steps, target - steps);
-        for (std::uint64_t i = 0; i < n; ++i) {
-          ladder.step();
-          const std::uint64_t s = ladder.steps();
-          if (s == state_.burn_in && !local.tune) ladder.reset_statistics();
-          if (s > state_.burn_in && s % state_.record_every == 0) record(local, s);
-        }
-        done += n;
-        continue;
+      if (local.ladder && local.tune && local.ladder->steps() == 0 && state_.burn_in > 0) {
+        local.ladder->tune(std::min(state_.burn_in, target));  // adapts, freezes, clears statistics
+        done += local.ladder->steps();
       }
-      Chain& chain = *local.chain;
-      const std::uint64_t steps = chain.counters().steps;
+      const std::uint64_t steps = local.steps();
       if (steps >= target) continue;
       const std::uint64_t n = std::min(round_steps, target - steps);
       for (std::uint64_t i = 0; i < n; ++i) {
-        chain.step();
-        const std::uint64_t s = chain.counters().steps;
+        local.step();
+        const std::uint64_t s = local.steps();
+        if (local.ladder && !local.tune && s == state_.burn_in) local.ladder->reset_statistics();
         if (s > state_.burn_in && s % state_.record_every == 0) record(local, s);
       }
       done += n;
@@ -504,7 +493,8 @@ class ChainRunner {
   }
 
   // Closes this rank's plan file, then rank 0 commits every rank's chains in one atomic write.
-  void commit(bool final, const std::string& how_ended) {
+  // A final commit (how_ended not empty) also closes the session.
+  void commit(const std::string& how_ended) {
     RunState part;
     everywhere_then_agree([&] {
       if (writer_) {
@@ -513,7 +503,7 @@ class ChainRunner {
         }
         writer_.reset();  // closes the HDF5 file
         fsync_path(layout_.resolve(writer_file_));
-        part.files.push_back({writer_file_, segment_, w_.rank, host_name()});
+        part.files.push_back({writer_file_, segment_, w_.rank, host_});
       }
       const std::string now = utc_now_iso8601();
       for (auto& local : chains_) {
@@ -546,22 +536,22 @@ class ChainRunner {
         }
       }
       state_.checkpoints = segment_ + 1;
-      state_.finished = final && how_ended == "finished";
+      state_.finished = how_ended == "finished";
       state_.stop_reason = how_ended;
-      if (final || !how_ended.empty()) {
+      if (!how_ended.empty()) {
         state_.sessions.back().ended = utc_now_iso8601();
         state_.sessions.back().how_ended = how_ended;
       }
       write_run_state(layout_, state_);
       encoded = encode_run_state(state_);
     });
-    state_ = decode_run_state(broadcast_string(encoded, w_));
+    state_ = decode_run_state(broadcast_string(encoded));
     ++segment_;
   }
 
   // After a block of --until-converged: diagnose the committed records on rank 0 and either stop
-  // or extend every chain's target by one more block.
-  RunEnd judge_block() {
+  // or extend every chain's target by one more block (nullopt: go on).
+  std::optional<RunEnd> judge_block() {
     std::uint64_t decision[2] = {0, state_.target_steps};  // 0 go on, 1 converged, 2 budget spent
     std::string summary;
     on_root_then_agree(w_, [&] {
@@ -587,7 +577,7 @@ class ChainRunner {
     verdict_summary_ = summary;
     if (decision[0] == 0) {
       state_.target_steps = decision[1];
-      return RunEnd::finished;  // meaning: go on
+      return std::nullopt;
     }
     const bool converged = decision[0] == 1;
     on_root_then_agree(w_, [&] {
@@ -678,7 +668,7 @@ class ChainRunner {
     out.run_dir = layout_.root.string();
     for (const auto& c : state_.chains) out.records += c.records, out.steps += c.steps;
     const double seconds = std::chrono::duration<double>(Clock::now() - started).count();
-    const std::uint64_t stepped = total_steps_global() - steps_at_start_global(steps_at_start);
+    const std::uint64_t stepped = sum_over_ranks(total_steps_local() - steps_at_start);
     char line[256];
     std::snprintf(line, sizeof line, "%zu chains on %d rank%s: %llu plans recorded, %llu steps in %s",
                   state_.chains.size(), w_.size, w_.size == 1 ? "" : "s",
@@ -701,12 +691,11 @@ class ChainRunner {
     return out;
   }
 
-  std::uint64_t steps_at_start_global(std::uint64_t local) const {
+  static std::uint64_t sum_over_ranks(std::uint64_t local) {
     std::uint64_t all = 0;
     MPI_Allreduce(&local, &all, 1, MPI_UINT64_T, MPI_SUM, MPI_COMM_WORLD);
     return all;
   }
-  std::uint64_t total_steps_global() const { return steps_at_start_global(total_steps_local()); }
   std::uint64_t total_steps_local() const {
     std::uint64_t n = 0;
     for (const auto& c : chains_) n += c.counters().steps;
@@ -734,6 +723,7 @@ class ChainRunner {
 
   RunOptions options_;
   World w_;
+  std::string host_;
   std::unique_ptr<LoadedJob> loaded_;
   RuleSet rules_;
   RunLayout layout_;
