@@ -5,6 +5,8 @@
 #include <cmath>
 #include <sstream>
 #include <stdexcept>
+#include <string>
+#include <utility>
 
 namespace planmill {
 
@@ -66,18 +68,29 @@ Ladder::Ladder(const LadderSetup& setup, std::vector<Plan> starts)
   const std::size_t rungs = betas_.size();
   if (starts.size() != 1 && starts.size() != rungs)
     throw std::invalid_argument("a ladder needs one start plan, or one per rung");
-  replicas_.reserve(rungs);
+  if (!setup.here.empty() && setup.here.size() != rungs)
+    throw std::invalid_argument("LadderSetup::here needs one entry per replica");
+  if (!setup.here.empty() && std::find(setup.here.begin(), setup.here.end(), true) == setup.here.end())
+    throw std::invalid_argument("a ladder part must hold at least one replica");
+  replicas_.resize(rungs);
   for (std::size_t i = 0; i < rungs; ++i) {
+    if (!setup.here.empty() && !setup.here[i]) {
+      all_here_ = false;
+      continue;
+    }
     ChainSetup chain = setup.chain;
     chain.chain_index = setup.first_chain_index + i;
     chain.kernel.beta = betas_[i];
-    replicas_.emplace_back(chain, starts.size() == 1 ? starts.front() : std::move(starts[i]));
+    replicas_[i].emplace(chain, starts.size() == 1 ? starts.front() : std::move(starts[i]));
   }
   replica_on_rung_.resize(rungs);
   rung_of_replica_.resize(rungs);
   for (std::uint32_t i = 0; i < rungs; ++i) replica_on_rung_[i] = rung_of_replica_[i] = i;
   energy_on_rung_.resize(rungs);
+  energy_of_replica_.resize(rungs);
   accepted_.resize(rungs - 1);
+  block_attempts_.assign(rungs - 1, 0);
+  block_accepts_.assign(rungs - 1, 0);
   stats_.rungs = rungs;
   stats_.swap_attempts.assign(rungs - 1, 0);
   stats_.swap_accepts.assign(rungs - 1, 0);
@@ -91,10 +104,39 @@ Ladder::Ladder(const LadderSetup& setup, std::vector<Plan> starts)
   heading_[rungs - 1] = kDown;
 }
 
+const Chain& Ladder::replica(std::size_t i) const {
+  const auto& r = replicas_.at(i);
+  if (!r) throw std::logic_error("replica " + std::to_string(i) + " is held elsewhere");
+  return *r;
+}
+
 void Ladder::step() {
-  for (Chain& c : replicas_) c.step();
+  if (!all_here_) throw std::logic_error("Ladder::step needs every replica here");
+  step_replicas();
+  if (swap_due()) local_energies(energy_of_replica_);
+  finish_step(energy_of_replica_);
+}
+
+void Ladder::step_replicas() {
+  for (auto& c : replicas_) {
+    if (c) c->step();
+  }
   ++steps_;
-  if (steps_ % swap_every_ == 0) swap();
+}
+
+void Ladder::local_energies(std::span<double> by_replica) const noexcept {
+  for (std::size_t i = 0; i < replicas_.size(); ++i) {
+    if (!replicas_[i]) {
+      by_replica[i] = 0.0;
+      continue;
+    }
+    const ChainState& s = replicas_[i]->state();
+    by_replica[i] = s.rules.energy(s.plan);
+  }
+}
+
+void Ladder::finish_step(std::span<const double> energy_by_replica) {
+  if (swap_due()) swap(energy_by_replica);
   const std::size_t rungs = betas_.size();
   for (std::size_t r = 0; r < rungs; ++r) {
     const std::uint32_t i = replica_on_rung_[r];
@@ -104,14 +146,12 @@ void Ladder::step() {
     else if (heading_[i] == kDown)
       ++stats_.down_steps[r];
   }
+  if (tune_end_ != kNoTune) tune_after_step();
 }
 
-void Ladder::swap() {
+void Ladder::swap(std::span<const double> energy_by_replica) {
   const std::size_t rungs = betas_.size();
-  for (std::size_t r = 0; r < rungs; ++r) {
-    const ChainState& s = replicas_[replica_on_rung_[r]].state();
-    energy_on_rung_[r] = s.rules.energy(s.plan);
-  }
+  for (std::size_t r = 0; r < rungs; ++r) energy_on_rung_[r] = energy_by_replica[replica_on_rung_[r]];
   const SwapRoundInput input{betas_, swap_rounds_, wrong_swap_sign_};
   (void)swap_round(input, energy_on_rung_, replica_on_rung_, accepted_, rng_);
   for (std::size_t r = first_pair_of_round(swap_rounds_); r + 1 < rungs; r += 2) {
@@ -125,8 +165,9 @@ void Ladder::swap() {
 }
 
 void Ladder::apply_betas() noexcept {
-  for (std::size_t i = 0; i < replicas_.size(); ++i)
-    replicas_[i].set_beta(betas_[rung_of_replica_[i]]);
+  for (std::size_t i = 0; i < replicas_.size(); ++i) {
+    if (replicas_[i]) replicas_[i]->set_beta(betas_[rung_of_replica_[i]]);
+  }
 }
 
 void Ladder::track_ends() noexcept {
@@ -181,22 +222,33 @@ void Ladder::respace(std::span<const std::uint64_t> attempts,
   apply_betas();
 }
 
-void Ladder::tune(std::uint64_t steps, const TuneSettings& settings) {
-  const std::size_t blocks = std::max<std::size_t>(settings.blocks, 1);
-  const std::uint64_t block = steps / blocks;
-  std::vector<std::uint64_t> attempts(stats_.swap_attempts.size()), accepts(attempts.size());
-  for (std::size_t b = 0; b < blocks && block > 0; ++b) {
-    const auto attempts_before = stats_.swap_attempts, accepts_before = stats_.swap_accepts;
-    run(block);
-    for (std::size_t r = 0; r < attempts.size(); ++r) {
-      attempts[r] = stats_.swap_attempts[r] - attempts_before[r];
-      accepts[r] = stats_.swap_accepts[r] - accepts_before[r];
+void Ladder::start_tuning(std::uint64_t steps, const TuneSettings& settings) {
+  tune_blocks_ = std::max<std::size_t>(settings.blocks, 1);
+  tune_block_ = steps / tune_blocks_;
+  if (tune_block_ == 0) tune_blocks_ = 0;
+  tune_start_ = steps_;
+  tune_end_ = steps_ + steps;
+  block_attempts_ = stats_.swap_attempts;
+  block_accepts_ = stats_.swap_accepts;
+  if (steps == 0) tune_after_step();
+}
+
+void Ladder::tune_after_step() {
+  const std::uint64_t done = steps_ - tune_start_;
+  if (tune_block_ > 0 && done > 0 && done % tune_block_ == 0 && done / tune_block_ <= tune_blocks_) {
+    for (std::size_t r = 0; r < block_attempts_.size(); ++r) {
+      block_attempts_[r] = stats_.swap_attempts[r] - block_attempts_[r];
+      block_accepts_[r] = stats_.swap_accepts[r] - block_accepts_[r];
     }
-    respace(attempts, accepts);
+    respace(block_attempts_, block_accepts_);
+    block_attempts_ = stats_.swap_attempts;  // same sizes: no allocation
+    block_accepts_ = stats_.swap_accepts;
   }
-  run(steps - block * blocks);
-  tuned_ = true;
-  reset_statistics();
+  if (steps_ == tune_end_) {
+    tune_end_ = kNoTune;
+    tuned_ = true;
+    reset_statistics();
+  }
 }
 
 namespace {
@@ -211,14 +263,19 @@ void read_all(std::istream& in, std::vector<std::uint64_t>& v) {
 
 }  // namespace
 
-// Format: a header, the betas as bit patterns (exact), the rung assignment, the swap stream, the
-// statistics and trip bookkeeping, then each replica's chain snapshot preceded by its length.
-std::string Ladder::save() const {
+// Format: a header, the tuning schedule, the betas as bit patterns (exact), the rung assignment,
+// the swap stream, the statistics and trip bookkeeping (all of it the same on every holder of a
+// spread ladder), then "replicas K" and K chain snapshots, each after its replica number and length.
+constexpr int kSnapshotVersion = 2;
+constexpr std::string_view kReplicasMarker = "\nreplicas ";
+
+std::string Ladder::save_shared() const {
   std::ostringstream out;
   const std::size_t rungs = betas_.size();
-  out << "planmill-ladder 1\n"
+  out << "planmill-ladder " << kSnapshotVersion << '\n'
       << ladder_index_ << ' ' << rungs << ' ' << steps_ << ' ' << swap_rounds_ << ' '
-      << (tuned_ ? 1 : 0) << '\n';
+      << (tuned_ ? 1 : 0) << '\n'
+      << tune_start_ << ' ' << tune_end_ << ' ' << tune_block_ << ' ' << tune_blocks_ << '\n';
   for (double b : betas_) out << std::bit_cast<std::uint64_t>(b) << ' ';
   out << '\n';
   for (auto i : replica_on_rung_) out << i << ' ';
@@ -232,14 +289,83 @@ std::string Ladder::save() const {
   for (auto h : heading_) out << static_cast<unsigned>(h) << ' ';
   out << '\n';
   write_all(out, trip_start_);
-  for (const Chain& c : replicas_) {
-    const std::string snapshot = c.save();
-    out << snapshot.size() << '\n' << snapshot;
+  write_all(out, block_attempts_);
+  write_all(out, block_accepts_);
+  return out.str();
+}
+
+namespace {
+
+void write_replicas(std::ostream& out, const std::vector<std::pair<std::size_t, std::string>>& list) {
+  out << kReplicasMarker.substr(1) << list.size() << '\n';
+  for (const auto& [i, snapshot] : list) out << i << ' ' << snapshot.size() << '\n' << snapshot;
+}
+
+// Splits a snapshot into its shared part and its replica snapshots (by replica number).
+std::string_view split_snapshot(std::string_view snapshot,
+                                std::vector<std::pair<std::size_t, std::string>>& replicas) {
+  const std::size_t marker = snapshot.find(kReplicasMarker);
+  if (marker == std::string_view::npos) throw std::invalid_argument("ladder snapshot is truncated");
+  const std::string_view shared = snapshot.substr(0, marker + 1);
+  std::istringstream in{std::string(snapshot.substr(marker + kReplicasMarker.size()))};
+  std::size_t count = 0;
+  in >> count;
+  for (std::size_t k = 0; k < count && in; ++k) {
+    std::size_t i = 0, length = 0;
+    in >> i >> length;
+    in.get();  // the newline after the length
+    std::string text(length, '\0');
+    in.read(text.data(), static_cast<std::streamsize>(length));
+    replicas.emplace_back(i, std::move(text));
   }
+  if (!in) throw std::invalid_argument("ladder snapshot is truncated");
+  return shared;
+}
+
+}  // namespace
+
+std::string Ladder::save() const {
+  std::vector<std::pair<std::size_t, std::string>> list;
+  for (std::size_t i = 0; i < replicas_.size(); ++i) {
+    if (replicas_[i]) list.emplace_back(i, replicas_[i]->save());
+  }
+  std::ostringstream out;
+  out << save_shared();
+  write_replicas(out, list);
+  return out.str();
+}
+
+std::string Ladder::combine_snapshots(std::span<const std::string> parts) {
+  if (parts.empty()) throw std::invalid_argument("no ladder snapshots to combine");
+  std::vector<std::pair<std::size_t, std::string>> all;
+  std::string_view shared;
+  for (const auto& part : parts) {
+    const std::string_view mine = split_snapshot(part, all);
+    if (shared.empty()) shared = mine;
+    if (mine != shared)
+      throw std::invalid_argument("the holders of a ladder disagree about its rungs or statistics");
+  }
+  std::istringstream header{std::string(shared)};
+  std::string magic;
+  int version = 0;
+  std::uint64_t index = 0;
+  std::size_t rungs = 0;
+  header >> magic >> version >> index >> rungs;
+  std::sort(all.begin(), all.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+  if (!header || all.size() != rungs)
+    throw std::invalid_argument("the ladder snapshots do not hold each replica exactly once");
+  for (std::size_t k = 0; k < all.size(); ++k) {
+    if (all[k].first != k)
+      throw std::invalid_argument("the ladder snapshots do not hold each replica exactly once");
+  }
+  std::ostringstream out;
+  out << shared;
+  write_replicas(out, all);
   return out.str();
 }
 
 void Ladder::restore(std::string_view snapshot) {
+  std::vector<std::pair<std::size_t, std::string>> replica_snapshots;
   std::istringstream in{std::string(snapshot)};
   std::string magic;
   int version = 0;
@@ -247,10 +373,14 @@ void Ladder::restore(std::string_view snapshot) {
   std::size_t rungs = 0;
   int tuned = 0;
   in >> magic >> version >> index >> rungs >> steps >> rounds >> tuned;
-  if (!in || magic != "planmill-ladder" || version != 1)
-    throw std::invalid_argument("not a planmill ladder snapshot");
+  if (!in || magic != "planmill-ladder" || version != kSnapshotVersion)
+    throw std::invalid_argument("not a planmill ladder snapshot of format " +
+                                std::to_string(kSnapshotVersion));
   if (index != ladder_index_ || rungs != betas_.size())
     throw std::invalid_argument("ladder snapshot is for another ladder index or rung count");
+  (void)split_snapshot(snapshot, replica_snapshots);
+  std::uint64_t tune_start = 0, tune_end = 0, tune_block = 0, tune_blocks = 0;
+  in >> tune_start >> tune_end >> tune_block >> tune_blocks;
   std::vector<double> betas(rungs);
   for (double& b : betas) {
     std::uint64_t bits = 0;
@@ -275,8 +405,10 @@ void Ladder::restore(std::string_view snapshot) {
     if (value > kDown) throw std::invalid_argument("ladder snapshot has a bad heading");
     h = static_cast<std::uint8_t>(value);
   }
-  std::vector<std::uint64_t> trip_start(rungs);
+  std::vector<std::uint64_t> trip_start(rungs), block_attempts(rungs - 1), block_accepts(rungs - 1);
   read_all(in, trip_start);
+  read_all(in, block_attempts);
+  read_all(in, block_accepts);
   if (!in) throw std::invalid_argument("ladder snapshot is truncated");
   check_betas(betas);
   std::vector<std::uint8_t> seen(rungs, 0);
@@ -285,18 +417,19 @@ void Ladder::restore(std::string_view snapshot) {
       throw std::invalid_argument("ladder snapshot has a bad rung assignment");
     seen[i] = 1;
   }
-  std::vector<std::string> chains(rungs);
-  for (auto& c : chains) {
-    std::size_t length = 0;
-    in >> length;
-    in.get();  // the newline after the length
-    c.resize(length);
-    in.read(c.data(), static_cast<std::streamsize>(length));
-    if (!in) throw std::invalid_argument("ladder snapshot is truncated");
+  std::vector<const std::string*> mine(rungs, nullptr);
+  for (const auto& [i, text] : replica_snapshots) {
+    if (i < rungs) mine[i] = &text;
+  }
+  for (std::size_t i = 0; i < rungs; ++i) {
+    if (replicas_[i] && !mine[i])
+      throw std::invalid_argument("ladder snapshot lacks replica " + std::to_string(i));
   }
   // Everything of the ladder itself is read and checked. A replica snapshot of another map still
   // throws here, after which the ladder is in no defined state and must not be used.
-  for (std::size_t i = 0; i < rungs; ++i) replicas_[i].restore(chains[i]);
+  for (std::size_t i = 0; i < rungs; ++i) {
+    if (replicas_[i]) replicas_[i]->restore(*mine[i]);
+  }
   betas_ = std::move(betas);
   replica_on_rung_ = std::move(on_rung);
   for (std::uint32_t r = 0; r < rungs; ++r) rung_of_replica_[replica_on_rung_[r]] = r;
@@ -304,6 +437,12 @@ void Ladder::restore(std::string_view snapshot) {
   steps_ = steps;
   swap_rounds_ = rounds;
   tuned_ = tuned != 0;
+  tune_start_ = tune_start;
+  tune_end_ = tune_end;
+  tune_block_ = tune_block;
+  tune_blocks_ = tune_blocks;
+  block_attempts_ = std::move(block_attempts);
+  block_accepts_ = std::move(block_accepts);
   stats_ = std::move(stats);
   heading_ = std::move(heading);
   trip_start_ = std::move(trip_start);

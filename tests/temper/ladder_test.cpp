@@ -147,8 +147,8 @@ TEST(Ladder, RejectsASnapshotOfAnotherLadder) {
 }
 
 TEST(Ladder, SwapRoundOverSeparateChainsReproducesTheLadder) {
-  // The placement a later MPI driver will use: chains held apart, energies gathered, one
-  // swap_round on the ladder's own stream, betas sent back. It must give the same plans.
+  // The pure swap round on chains held apart (energies gathered, one swap_round on the ladder's
+  // own stream, betas sent back) must give the ladder's plans.
   Fixture f;
   const auto setup = f.setup(KernelKind::flip, geometric_betas(1.0, 0.1, 4), 2);
   Ladder ladder(setup, {f.start()});
@@ -177,6 +177,108 @@ TEST(Ladder, SwapRoundOverSeparateChainsReproducesTheLadder) {
     EXPECT_TRUE(chains[i].state().plan == ladder.replica(i).state().plan) << i;
   for (std::size_t r = 0; r < 4; ++r) EXPECT_EQ(on_rung[r], ladder.replica_on(r));
   EXPECT_GT(ladder.statistics().swap_accepts[0], 0u);
+}
+
+// Parts of one ladder held apart, as ranks hold them: each steps its replicas, the parts add
+// their energy vectors (zeros elsewhere) and every part runs the same swap round.
+struct SpreadLadder {
+  std::vector<Ladder> parts;
+  std::vector<double> sum, mine;
+  SpreadLadder(LadderSetup setup, const std::vector<std::vector<bool>>& holdings, const Plan& start) {
+    for (const auto& here : holdings) {
+      setup.here = here;
+      parts.emplace_back(setup, std::vector<Plan>{start});
+    }
+    sum.resize(setup.betas.size());
+    mine.resize(sum.size());
+  }
+  void step() {
+    for (auto& p : parts) p.step_replicas();
+    if (parts.front().swap_due()) {
+      std::fill(sum.begin(), sum.end(), 0.0);
+      for (auto& p : parts) {
+        p.local_energies(mine);
+        for (std::size_t i = 0; i < sum.size(); ++i) sum[i] += mine[i];
+      }
+    }
+    for (auto& p : parts) p.finish_step(sum);
+  }
+  [[nodiscard]] std::string combined() const {
+    std::vector<std::string> snapshots;
+    for (const auto& p : parts) snapshots.push_back(p.save());
+    return Ladder::combine_snapshots(snapshots);
+  }
+  [[nodiscard]] const Chain& replica(std::size_t i) const {
+    for (const auto& p : parts) {
+      if (p.holds(i)) return p.replica(i);
+    }
+    throw std::logic_error("nobody holds it");
+  }
+};
+
+TEST(Ladder, PartsHeldApartReproduceTheLadderThroughTuningAndRestore) {
+  Fixture f;
+  const auto setup = f.setup(KernelKind::flip, geometric_betas(1.5, 0.1, 4), 2);
+  const std::vector<std::vector<bool>> holdings{
+      {true, true, false, false}, {false, false, true, false}, {false, false, false, true}};
+  Ladder whole(setup, {f.start()});
+  SpreadLadder spread(setup, holdings, f.start());
+  whole.start_tuning(900, {3});
+  for (auto& p : spread.parts) p.start_tuning(900, {3});
+  for (int s = 0; s < 1301; ++s) whole.step(), spread.step();  // tuning ends, then a stretch
+  ASSERT_TRUE(whole.tuned());
+  EXPECT_NE(whole.betas(), setup.betas);  // the inner rungs moved
+  EXPECT_EQ(spread.combined(), whole.save());
+  EXPECT_THROW((void)spread.parts[1].replica(0), std::logic_error);
+  EXPECT_THROW(spread.parts[0].step(), std::logic_error);
+
+  // Every part restores from the combined snapshot and the parts go on as the whole ladder does.
+  SpreadLadder resumed(setup, holdings, f.start());
+  for (auto& p : resumed.parts) p.restore(whole.save());
+  for (int s = 0; s < 777; ++s) whole.step(), resumed.step();
+  for (std::size_t i = 0; i < 4; ++i) {
+    EXPECT_TRUE(resumed.replica(i).state().plan == whole.replica(i).state().plan) << i;
+    EXPECT_EQ(resumed.parts[2].rung_of(i), whole.rung_of(i));
+  }
+  EXPECT_GT(whole.statistics().swap_accepts[1], 0u);
+  EXPECT_EQ(resumed.combined(), whole.save());
+}
+
+TEST(Ladder, TuningInterruptedBySaveAndRestoreEqualsTuningInOneGo) {
+  Fixture f;
+  const auto setup = f.setup(KernelKind::flip, {2.0, 1.95, 1.9, 0.05}, 1);
+  Ladder in_one_go(setup, {f.start()});
+  in_one_go.tune(1000, {4});
+  Ladder interrupted(setup, {f.start()});
+  interrupted.start_tuning(1000, {4});
+  interrupted.run(370);  // inside the second block
+  Ladder resumed(setup, {f.start()});
+  resumed.restore(interrupted.save());
+  EXPECT_TRUE(resumed.tuning());
+  resumed.run(630);
+  EXPECT_FALSE(resumed.tuning());
+  EXPECT_TRUE(resumed.tuned());
+  EXPECT_EQ(resumed.save(), in_one_go.save());
+}
+
+TEST(Ladder, SnapshotPartsThatDoNotFitAreRefused) {
+  Fixture f;
+  auto setup = f.setup(KernelKind::flip, {1.0, 0.5, 0.25});
+  SpreadLadder spread(setup, {{true, false, false}, {false, true, true}}, f.start());
+  for (int s = 0; s < 10; ++s) spread.step();
+  const std::string a = spread.parts[0].save(), b = spread.parts[1].save();
+  EXPECT_THROW((void)Ladder::combine_snapshots(std::vector<std::string>{a}), std::invalid_argument);
+  EXPECT_THROW((void)Ladder::combine_snapshots(std::vector<std::string>{a, b, a}),
+               std::invalid_argument);
+  spread.parts[1].step_replicas();  // one part a step ahead: the shared parts differ
+  spread.parts[1].finish_step(spread.sum);
+  EXPECT_THROW((void)Ladder::combine_snapshots(std::vector<std::string>{a, spread.parts[1].save()}),
+               std::invalid_argument);
+  // A part's own snapshot lacks the other replicas, so a whole ladder cannot restore from it.
+  Ladder whole(setup, {f.start()});
+  EXPECT_THROW(whole.restore(a), std::invalid_argument);
+  setup.here = {false, false, false};
+  EXPECT_THROW(Ladder(setup, {f.start()}), std::invalid_argument);
 }
 
 TEST(Ladder, TuningEqualisesNeighbourAcceptanceAndFreezes) {
