@@ -69,67 +69,101 @@ const EnsembleReader& RunReader::reader_of(const Span& span) const {
   return *span.reader;
 }
 
+std::uint64_t RunReader::recorded_rungs(std::uint64_t chain) const {
+  for (const auto& c : state_.chains) {
+    if (c.index == chain) return c.recorded_rungs;
+  }
+  throw std::out_of_range("the run has no chain " + std::to_string(chain));
+}
+
+std::uint64_t RunReader::store_index(std::uint64_t chain, std::uint64_t rung) const {
+  const std::uint64_t rungs = recorded_rungs(chain);
+  if (rung >= rungs) {
+    throw std::out_of_range("chain " + std::to_string(chain) + " has no recorded rung " +
+                            std::to_string(rung) + " (" + std::to_string(rungs) + " recorded)");
+  }
+  return rung_record_index(chain, rung);
+}
+
 std::uint64_t RunReader::record_count(std::uint64_t chain) const {
   std::uint64_t n = 0;
   for (const auto& s : spans_of(chain)) n += s.records;
   return n;
 }
 
-std::vector<std::uint64_t> RunReader::record_steps(std::uint64_t chain) const {
+std::vector<std::uint64_t> RunReader::record_steps(std::uint64_t chain, std::uint64_t rung) const {
+  const std::uint64_t index = store_index(chain, rung);
   std::vector<std::uint64_t> out;
   for (const auto& s : spans_of(chain)) {
-    const auto steps = reader_of(s).record_steps(chain);
+    const auto steps = reader_of(s).record_steps(index);
     out.insert(out.end(), steps.begin(),
                steps.begin() + static_cast<std::ptrdiff_t>(std::min<std::uint64_t>(s.records, steps.size())));
   }
   return out;
 }
 
-std::vector<DistrictIndex> RunReader::read_plan(std::uint64_t chain, std::uint64_t record) const {
+std::vector<DistrictIndex> RunReader::read_plan(std::uint64_t chain, std::uint64_t record,
+                                                std::uint64_t rung) const {
+  const std::uint64_t index = store_index(chain, rung);
   for (const auto& s : spans_of(chain)) {
-    if (record < s.first + s.records) return reader_of(s).read_plan(chain, record - s.first);
+    if (record < s.first + s.records) return reader_of(s).read_plan(index, record - s.first);
   }
   throw std::out_of_range("chain " + std::to_string(chain) + " has " +
                           std::to_string(record_count(chain)) + " records, not " +
                           std::to_string(record + 1));
 }
 
-std::vector<double> RunReader::read_observables(std::uint64_t chain) const {
+std::vector<double> RunReader::read_observables(std::uint64_t chain, std::uint64_t rung) const {
+  const std::uint64_t index = store_index(chain, rung);
   const std::size_t width = state_.observable_names.size();
   std::vector<double> out;
   for (const auto& s : spans_of(chain)) {
-    const auto rows = reader_of(s).read_observables(chain);
+    const auto rows = reader_of(s).read_observables(index);
     const std::size_t take = std::min<std::size_t>(rows.size(), s.records * width);
     out.insert(out.end(), rows.begin(), rows.begin() + static_cast<std::ptrdiff_t>(take));
   }
   return out;
 }
 
-std::vector<ChainProblem> RunReader::verify() const {
+std::vector<ChainProblem> RunReader::verify() const { return verify_records(false); }
+std::vector<ChainProblem> RunReader::verify_rungs() const { return verify_records(true); }
+
+std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
+  const auto rung_text = [&](std::uint64_t rung) {
+    return rungs ? "rung " + std::to_string(rung) + ": " : std::string();
+  };
   std::vector<ChainProblem> problems;
   for (const auto& c : state_.chains) {
-    for (const auto& s : spans_of(c.index)) {
-      if (s.reader == nullptr) {
-        problems.push_back({c.index, s.first, s.first + s.records - 1,
-                            s.file + ": cannot be opened: " + unreadable_.at(s.file)});
-        continue;
-      }
-      const auto in_file = s.reader->record_count(c.index);
-      if (in_file < s.records) {
-        problems.push_back({c.index, s.first + in_file, s.first + s.records - 1,
-                            "the plan file holds fewer records than the run state lists"});
+    for (std::uint64_t rung = rungs ? 1 : 0; rung < (rungs ? c.recorded_rungs : 1); ++rung) {
+      for (const auto& s : spans_of(c.index)) {
+        if (s.reader == nullptr) {
+          problems.push_back({c.index, s.first, s.first + s.records - 1,
+                              s.file + ": " + rung_text(rung) + "cannot be opened: " +
+                                  unreadable_.at(s.file)});
+          continue;
+        }
+        const auto in_file = s.reader->record_count(rung_record_index(c.index, rung));
+        if (in_file < s.records) {
+          problems.push_back({c.index, s.first + in_file, s.first + s.records - 1,
+                              rung_text(rung) +
+                                  "the plan file holds fewer records than the run state lists"});
+        }
       }
     }
   }
   for (const auto& [name, reader] : files_) {
     if (reader == nullptr) continue;
     for (auto p : reader->verify()) {
-      for (const auto& s : spans_of(p.chain_index)) {
+      if (is_rung_record_index(p.chain_index) != rungs) continue;
+      const std::uint64_t offset = rungs ? p.chain_index - kRungRecordBase : 0;
+      const std::uint64_t chain = rungs ? offset / kMaxRungs : p.chain_index;
+      for (const auto& s : spans_of(chain)) {
         if (s.reader != reader.get()) continue;
         p.first_record += s.first;
         p.last_record = p.last_record == UINT64_MAX ? s.first + s.records - 1 : p.last_record + s.first;
       }
-      p.what = name + ": " + p.what;
+      p.what = name + ": " + rung_text(offset % kMaxRungs) + p.what;
+      p.chain_index = chain;
       problems.push_back(std::move(p));
     }
   }

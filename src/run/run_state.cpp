@@ -72,6 +72,7 @@ json to_json(const RunState& s) {
                            {"spans", spans},
                            {"snapshot", c.snapshot}};
     if (!c.ladder.empty()) entry["ladder"] = json::parse(c.ladder);
+    if (c.recorded_rungs != 1) entry["recorded_rungs"] = c.recorded_rungs;
     j["chains"].push_back(std::move(entry));
   }
   return j;
@@ -120,6 +121,11 @@ RunState from_json(const json& j) {
     e.last_checkpoint = c.at("last_checkpoint").get<std::string>();
     e.snapshot = c.at("snapshot").get<std::string>();
     if (c.contains("ladder")) e.ladder = c.at("ladder").dump();
+    if (c.contains("recorded_rungs")) e.recorded_rungs = c.at("recorded_rungs").get<std::uint64_t>();
+    if (e.recorded_rungs < 1 || e.recorded_rungs > kMaxRungs) {
+      throw std::invalid_argument("chain " + std::to_string(e.index) + " has recorded_rungs " +
+                                  std::to_string(e.recorded_rungs) + ", not 1 to 64");
+    }
     std::uint64_t total = 0;
     for (const auto& sp : c.at("spans")) {
       e.spans.push_back({sp.at("file").get<std::string>(), sp.at("records").get<std::uint64_t>()});

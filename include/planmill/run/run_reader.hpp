@@ -1,6 +1,8 @@
 #pragma once
 // Reads a run folder as the committed state lists it: per chain, its records across plan files
 // in order, as if they were one sequence. Files or records not in run-state.json are ignored.
+// With tempering and record = "all" a chain also has a sequence per hotter rung (rung 1..R-1),
+// recorded at the same steps; rung 0, the default, is the chain's ensemble.
 #include <map>
 #include <memory>
 #include <string>
@@ -25,17 +27,24 @@ class RunReader {
   [[nodiscard]] std::vector<std::uint64_t> chains() const;
   [[nodiscard]] std::size_t unit_count() const noexcept { return unit_count_; }
   [[nodiscard]] std::size_t district_count() const noexcept { return district_count_; }
+  // 1 unless every rung of the chain's ladder was recorded.
+  [[nodiscard]] std::uint64_t recorded_rungs(std::uint64_t chain) const;
   [[nodiscard]] std::uint64_t record_count(std::uint64_t chain) const;
-  [[nodiscard]] std::vector<std::uint64_t> record_steps(std::uint64_t chain) const;
-  [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain, std::uint64_t record) const;
+  [[nodiscard]] std::vector<std::uint64_t> record_steps(std::uint64_t chain,
+                                                        std::uint64_t rung = 0) const;
+  [[nodiscard]] std::vector<DistrictIndex> read_plan(std::uint64_t chain, std::uint64_t record,
+                                                     std::uint64_t rung = 0) const;
   [[nodiscard]] const std::vector<std::string>& observable_names() const noexcept {
     return state_.observable_names;
   }
   // Row-major records x observables, over all of the chain's records.
-  [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain) const;
+  [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain,
+                                                     std::uint64_t rung = 0) const;
   // Checksums and consistency of every listed file, with record ranges counted per chain across
-  // files; empty = all good.
+  // files; empty = all good. verify() covers the chains (the ensemble); verify_rungs() the hotter
+  // rungs' records, with ChainProblem::chain_index the chain and `what` naming the rung.
   [[nodiscard]] std::vector<ChainProblem> verify() const;
+  [[nodiscard]] std::vector<ChainProblem> verify_rungs() const;
 
  private:
   struct Span {
@@ -46,6 +55,8 @@ class RunReader {
   };
   [[nodiscard]] const std::vector<Span>& spans_of(std::uint64_t chain) const;
   [[nodiscard]] const EnsembleReader& reader_of(const Span& span) const;  // StoreError if unreadable
+  [[nodiscard]] std::uint64_t store_index(std::uint64_t chain, std::uint64_t rung) const;
+  [[nodiscard]] std::vector<ChainProblem> verify_records(bool rungs) const;
 
   RunLayout layout_;
   RunState state_;

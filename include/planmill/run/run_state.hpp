@@ -42,6 +42,18 @@ struct ChainFileSpan {
   std::uint64_t records = 0;
 };
 
+// With [tempering] record = "all", the hotter rungs of ladder c are recorded too, at the target
+// rung's steps and into the same files (chain c's spans): rung r under the store's chain index
+// rung_record_index(c, r). Rung 0 is chain c itself. Rungs number at most 64 (job/job.cpp).
+inline constexpr std::uint64_t kRungRecordBase = std::uint64_t{1} << 40;
+inline constexpr std::uint64_t kMaxRungs = 64;
+[[nodiscard]] constexpr std::uint64_t rung_record_index(std::uint64_t chain, std::uint64_t rung) {
+  return rung == 0 ? chain : kRungRecordBase + chain * kMaxRungs + rung;
+}
+[[nodiscard]] constexpr bool is_rung_record_index(std::uint64_t store_index) {
+  return store_index >= kRungRecordBase;
+}
+
 struct ChainEntry {
   std::uint64_t index = 0;
   std::uint64_t steps = 0;    // steps taken so far
@@ -51,6 +63,7 @@ struct ChainEntry {
   std::string ladder;                // with tempering: ladder_summary() as JSON text; else empty
   std::string last_checkpoint;       // UTC, ISO 8601
   std::vector<ChainFileSpan> spans;  // where its records are
+  std::uint64_t recorded_rungs = 1;  // 1: the chain (a ladder's target rung); R: every rung
 };
 
 struct PlanFileEntry {
