@@ -11,9 +11,11 @@
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
+#include <map>
 #include <memory>
 #include <optional>
 #include <stdexcept>
+#include <utility>
 #include <vector>
 
 #include "planmill/base/error.hpp"
@@ -24,6 +26,7 @@
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/run/observables.hpp"
+#include "planmill/run/placement.hpp"
 #include "planmill/run/run_reader.hpp"
 #include "planmill/run/run_state.hpp"
 #include "planmill/seed/seed_plan.hpp"
@@ -42,6 +45,10 @@ volatile std::sig_atomic_t g_stop_requested = 0;
 volatile std::sig_atomic_t g_checkpoint_requested = 0;
 extern "C" void on_stop_signal(int /*signal*/) { g_stop_requested = 1; }
 extern "C" void on_checkpoint_signal(int /*signal*/) { g_checkpoint_requested = 1; }
+
+// Point-to-point messages: a plan recorded by a ladder's home rank from a replica held elsewhere.
+constexpr int kRecordTag = 17;
+static_assert(sizeof(DistrictIndex) == 2, "plans travel as MPI_UINT16_T");
 
 // Seed plans draw from their own streams, apart from the chains' (keyed by the chain index) and
 // the ladders' swap streams (temper/ladder.hpp: 2^62 + ladder index).
@@ -194,27 +201,39 @@ void remove_unlisted_plan_files(const RunLayout& layout, const RunState& state) 
   }
 }
 
-// One chain of the run: a plain chain, or a ladder whose target rung is what gets recorded.
+StoredCounters add_over(const StoredCounters& mine, MPI_Comm comm) {
+  std::uint64_t in[5] = {mine.steps, mine.accepted, mine.rejected, mine.no_cut, mine.invalid};
+  std::uint64_t out[5] = {};
+  MPI_Allreduce(in, out, 5, MPI_UINT64_T, MPI_SUM, comm);
+  return {out[0], out[1], out[2], out[3], out[4]};
+}
+
+// One chain of the run: a plain chain, or (this rank's part of) a ladder whose target rung is what
+// gets recorded.
 struct LocalChain {
   std::unique_ptr<Chain> chain;
   std::unique_ptr<Ladder> ladder;
-  bool tune = false;  // ladder: tune during burn-in (one call, before the first recorded step)
+  bool tune = false;  // ladder: tune during burn-in
+  // A ladder: the rank of each replica, the rank that records it (the holder of replica 0), and
+  // when it is shared, a communicator of its holders; energies per replica for swap rounds.
+  std::vector<int> replica_ranks;
+  int home = 0;
+  MPI_Comm holders = MPI_COMM_NULL;
+  std::vector<double> own_energy, energy;
+
   [[nodiscard]] std::uint64_t steps() const { return ladder ? ladder->steps() : chain->counters().steps; }
-  void step() {
-    if (ladder) {
-      ladder->step();
-    } else {
-      (void)chain->step();
-    }
+  [[nodiscard]] std::size_t replicas_here() const {
+    if (!ladder) return 1;
+    std::size_t n = 0;
+    for (std::size_t i = 0; i < ladder->rungs(); ++i) n += ladder->holds(i) ? 1 : 0;
+    return n;
   }
-  [[nodiscard]] const ChainState& recorded_state() const {
-    return ladder ? ladder->on_rung(0).state() : chain->state();
-  }
-  // Kernel steps and outcomes, summed over a ladder's replicas.
+  // Kernel steps and outcomes, summed over the replicas held here.
   [[nodiscard]] ChainCounters counters() const {
     if (!ladder) return chain->counters();
     ChainCounters sum;
     for (std::size_t i = 0; i < ladder->rungs(); ++i) {
+      if (!ladder->holds(i)) continue;
       const auto& c = ladder->replica(i).counters();
       sum.steps += c.steps;
       for (std::size_t k = 0; k < kStepResultCount; ++k) sum.outcomes[k] += c.outcomes[k];
@@ -223,13 +242,20 @@ struct LocalChain {
   }
   [[nodiscard]] std::string save() const { return ladder ? ladder->save() : chain->save(); }
   ChainEntry entry;                      // as last committed
-  std::size_t handle = SIZE_MAX;         // in the open writer; SIZE_MAX: none yet this segment
-  std::uint64_t segment_records = 0;     // recorded since the last checkpoint
+  std::vector<std::size_t> handles;      // in the open writer, per recorded rung; SIZE_MAX: none yet
+  std::uint64_t segment_records = 0;     // recorded since the last checkpoint (on the home rank)
 };
 
 class ChainRunner {
  public:
   ChainRunner(const RunOptions& options, World w) : options_(options), w_(w) {}
+  ChainRunner(const ChainRunner&) = delete;
+  ChainRunner& operator=(const ChainRunner&) = delete;
+  ~ChainRunner() {
+    for (auto& local : chains_) {
+      if (local.holders != MPI_COMM_NULL) MPI_Comm_free(&local.holders);
+    }
+  }
 
   RunOutcome run() {
     prepare();
@@ -256,11 +282,6 @@ class ChainRunner {
     const std::vector<std::string> hosts = gather_strings(host_, w_);
     std::string encoded;
     on_root_then_agree(w_, [&] {
-      if (job_uses_all_rungs()) {
-        throw InputError({options_.job_path, 0, "tempering.record"},
-                         "\"all\" is not supported by planmill run yet (only the target rung is "
-                         "recorded)", "write record = \"target\" or leave the key out");
-      }
       if (dir.empty()) {
         throw InputError({options_.job_path, 0, "output.dir"}, "names no output folder",
                          "set [output] dir in the job file or give --output DIR");
@@ -278,15 +299,23 @@ class ChainRunner {
     row_.assign(names_.size(), 0.0);
     if (w_.root()) {
       for (const auto& warning : loaded_->report.warnings) spdlog::warn("{}", warning);
-      if (state_.chains.size() < static_cast<std::size_t>(w_.size)) {
-        spdlog::warn("{} chains on {} ranks: {} ranks have nothing to do", state_.chains.size(),
-                     w_.size, static_cast<std::size_t>(w_.size) - state_.chains.size());
+      const std::size_t units = state_.chains.size() * rungs();
+      if (units < static_cast<std::size_t>(w_.size)) {
+        spdlog::warn("{} {} on {} ranks: {} ranks have nothing to do", units,
+                     rungs() > 1 ? "replicas" : "chains", w_.size,
+                     static_cast<std::size_t>(w_.size) - units);
       }
     }
   }
 
-  [[nodiscard]] bool job_uses_all_rungs() const {
-    return loaded_->job.tempering.enabled && loaded_->job.tempering.record == TemperingRecord::all;
+  // Replicas per chain: 1 without tempering.
+  [[nodiscard]] std::uint64_t rungs() const {
+    return loaded_->job.tempering.enabled ? loaded_->job.tempering.rungs : 1;
+  }
+  [[nodiscard]] bool tempered() const { return loaded_->job.tempering.enabled; }
+  [[nodiscard]] int home_rank(std::uint64_t chain) const {
+    return tempered() ? replica_rank(chain, 0, state_.chains.size(), rungs(), w_.size)
+                      : chain_rank(chain, w_.size);
   }
 
   RunState new_state() {
@@ -321,6 +350,9 @@ class ChainRunner {
     for (std::uint64_t c = 0; c < job.sampler.chains; ++c) {
       ChainEntry entry;
       entry.index = c;
+      if (job.tempering.enabled && job.tempering.record == TemperingRecord::all) {
+        entry.recorded_rungs = job.tempering.rungs;
+      }
       s.chains.push_back(std::move(entry));
     }
     return s;
@@ -347,28 +379,49 @@ class ChainRunner {
   }
 
   void build_chains() {
+    const std::uint64_t count = state_.chains.size();
+    // The holders of a shared ladder get a communicator of their own. Every rank takes part in
+    // every split, in ladder order, before anything can fail.
+    std::vector<MPI_Comm> holders(count, MPI_COMM_NULL);
+    for (std::uint64_t l = 0; tempered() && l < count; ++l) {
+      const auto where = ladder_ranks(l, count, rungs(), w_.size);
+      if (where.front() == where.back()) continue;
+      const bool mine = std::find(where.begin(), where.end(), w_.rank) != where.end();
+      MPI_Comm_split(MPI_COMM_WORLD, mine ? 0 : MPI_UNDEFINED, w_.rank, &holders[l]);
+    }
     everywhere_then_agree([&] {
       const JobSpec& job = loaded_->job;
       const KernelSettings kernel = make_kernel_settings(job);
       for (const auto& entry : state_.chains) {
-        if (entry.index % static_cast<std::uint64_t>(w_.size) != static_cast<std::uint64_t>(w_.rank)) {
-          continue;
-        }
         LocalChain local;
         local.entry = entry;
-        if (job.tempering.enabled) {
-          local.ladder = std::make_unique<Ladder>(
-              make_ladder_setup(job, loaded_->graph, rules_, entry.index),
-              std::vector<Plan>{start_plan(entry.index)});
+        local.handles.assign(entry.recorded_rungs, SIZE_MAX);
+        if (tempered()) {
+          local.replica_ranks = ladder_ranks(entry.index, count, rungs(), w_.size);
+          LadderSetup setup = make_ladder_setup(job, loaded_->graph, rules_, entry.index);
+          setup.here.resize(rungs());
+          for (std::size_t i = 0; i < rungs(); ++i) setup.here[i] = local.replica_ranks[i] == w_.rank;
+          if (std::find(setup.here.begin(), setup.here.end(), true) == setup.here.end()) continue;
+          local.home = local.replica_ranks.front();
+          local.holders = std::exchange(holders[entry.index], MPI_COMM_NULL);
+          local.own_energy.assign(rungs(), 0.0);
+          local.energy.assign(rungs(), 0.0);
+          local.ladder = std::make_unique<Ladder>(setup, std::vector<Plan>{start_plan(entry.index)});
           local.tune = job.tempering.tune;
           if (!entry.snapshot.empty()) local.ladder->restore(entry.snapshot);
+          if (local.tune && local.ladder->steps() == 0 && state_.burn_in > 0) {
+            local.ladder->start_tuning(std::min(state_.burn_in, state_.target_steps));
+          }
         } else {
+          if (chain_rank(entry.index, w_.size) != w_.rank) continue;
+          local.home = w_.rank;
           ChainSetup setup{&loaded_->graph, rules_, kernel, state_.seed, entry.index};
           local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
           if (!entry.snapshot.empty()) local.chain->restore(entry.snapshot);
         }
         chains_.push_back(std::move(local));
       }
+      incoming_plan_.resize(loaded_->graph.unit_count());
     });
   }
 
@@ -446,70 +499,149 @@ class ChainRunner {
   }
 
   std::uint64_t step_round(std::uint64_t round_steps) {
+    return tempered() ? step_ladders(round_steps) : step_chains(round_steps);
+  }
+
+  std::uint64_t step_chains(std::uint64_t round_steps) {
     std::uint64_t done = 0;
     const std::uint64_t target = state_.target_steps;
     for (auto& local : chains_) {
-      if (local.ladder && local.tune && local.ladder->steps() == 0 && state_.burn_in > 0) {
-        local.ladder->tune(std::min(state_.burn_in, target));  // adapts, freezes, clears statistics
-        done += local.ladder->steps();
-      }
       const std::uint64_t steps = local.steps();
       if (steps >= target) continue;
       const std::uint64_t n = std::min(round_steps, target - steps);
       for (std::uint64_t i = 0; i < n; ++i) {
-        local.step();
-        const std::uint64_t s = local.steps();
-        if (local.ladder && !local.tune && s == state_.burn_in) local.ladder->reset_statistics();
-        if (s > state_.burn_in && s % state_.record_every == 0) record(local, s);
+        (void)local.chain->step();
+        const std::uint64_t s = local.chain->counters().steps;
+        if (s > state_.burn_in && s % state_.record_every == 0) record_chain(local, s);
       }
       done += n;
     }
     return done;
   }
 
-  void record(LocalChain& local, std::uint64_t step) {
-    if (!writer_) {
-      writer_file_ = RunLayout::plan_file_name(segment_, w_.rank);
-      if (header_.unit_count == 0) {
-        header_.unit_count = loaded_->graph.unit_count();
-        header_.district_count = loaded_->job.districts;
-        header_.job_text = loaded_->job.text;
-        header_.adjacency = unit_adjacency(loaded_->graph);
+  // Every ladder of the run has taken the same number of steps, so this rank's ladders step
+  // together, one ladder step at a time: first every replica held here, then in ladder order
+  // the swap rounds (the holders of a shared ladder add their energies) and the records. Every
+  // rank meets its partners in that same order, so no two ranks wait on each other.
+  std::uint64_t step_ladders(std::uint64_t round_steps) {
+    if (chains_.empty()) return 0;
+    const std::uint64_t steps = chains_.front().ladder->steps(), target = state_.target_steps;
+    if (steps >= target) return 0;
+    const std::uint64_t n = std::min(round_steps, target - steps);
+    for (std::uint64_t i = 0; i < n; ++i) {
+      for (auto& local : chains_) local.ladder->step_replicas();
+      for (auto& local : chains_) {
+        Ladder& ladder = *local.ladder;
+        if (ladder.swap_due()) {
+          ladder.local_energies(local.own_energy);
+          if (local.holders == MPI_COMM_NULL) {
+            std::copy(local.own_energy.begin(), local.own_energy.end(), local.energy.begin());
+          } else {
+            MPI_Allreduce(local.own_energy.data(), local.energy.data(),
+                          static_cast<int>(local.energy.size()), MPI_DOUBLE, MPI_SUM, local.holders);
+          }
+        }
+        ladder.finish_step(local.energy);
+        const std::uint64_t s = ladder.steps();
+        if (!local.tune && s == state_.burn_in) ladder.reset_statistics();
+        if (s > state_.burn_in && s % state_.record_every == 0) record_ladder(local, s);
       }
-      writer_ = std::make_unique<EnsembleWriter>(layout_.resolve(writer_file_).string(), header_);
     }
-    if (local.handle == SIZE_MAX) local.handle = writer_->add_chain(local.entry.index, names_);
-    const ChainState& state = local.recorded_state();
+    return n;
+  }
+
+  void open_writer() {
+    if (writer_) return;
+    writer_file_ = RunLayout::plan_file_name(segment_, w_.rank);
+    if (header_.unit_count == 0) {
+      header_.unit_count = loaded_->graph.unit_count();
+      header_.district_count = loaded_->job.districts;
+      header_.job_text = loaded_->job.text;
+      header_.adjacency = unit_adjacency(loaded_->graph);
+    }
+    writer_ = std::make_unique<EnsembleWriter>(layout_.resolve(writer_file_).string(), header_);
+  }
+
+  std::size_t writer_handle(LocalChain& local, std::uint64_t rung) {
+    std::size_t& handle = local.handles[rung];
+    if (handle == SIZE_MAX) handle = writer_->add_chain(rung_record_index(local.entry.index, rung), names_);
+    return handle;
+  }
+
+  void record_chain(LocalChain& local, std::uint64_t step) {
+    open_writer();
+    const ChainState& state = local.chain->state();
     compute_observables(loaded_->graph, state, row_);
-    if (local.chain) {
-      // The units moved since the last record spare the writer a scan of the whole plan. (A
-      // ladder's target rung changes hands on swaps, so its plans go without the hint.)
-      writer_->record(local.handle, step, state.plan.assignment(), row_, state.plan.changes());
-      local.chain->clear_plan_changes();
-    } else {
-      writer_->record(local.handle, step, state.plan.assignment(), row_);
-    }
+    // The units moved since the last record spare the writer a scan of the whole plan.
+    writer_->record(writer_handle(local, 0), step, state.plan.assignment(), row_,
+                    state.plan.changes());
+    local.chain->clear_plan_changes();
     ++local.segment_records;
+  }
+
+  // The home rank records the plan on each recorded rung; a replica held elsewhere sends its plan
+  // and observables there. (The target rung changes hands on swaps, so ladders' plans go without
+  // the writer's change hint.)
+  void record_ladder(LocalChain& local, std::uint64_t step) {
+    const Ladder& ladder = *local.ladder;
+    const bool home = local.home == w_.rank;
+    if (home) open_writer();
+    for (std::uint64_t r = 0; r < local.entry.recorded_rungs; ++r) {
+      const std::size_t replica = ladder.replica_on(r);
+      const int owner = local.replica_ranks[replica];
+      std::span<const DistrictIndex> plan;
+      if (owner == w_.rank) {
+        const ChainState& state = ladder.replica(replica).state();
+        compute_observables(loaded_->graph, state, row_);
+        plan = state.plan.assignment();
+        if (!home) {
+          MPI_Send(row_.data(), static_cast<int>(row_.size()), MPI_DOUBLE, local.home, kRecordTag,
+                   MPI_COMM_WORLD);
+          MPI_Send(plan.data(), static_cast<int>(plan.size()), MPI_UINT16_T, local.home, kRecordTag,
+                   MPI_COMM_WORLD);
+          continue;
+        }
+      } else if (home) {
+        MPI_Recv(row_.data(), static_cast<int>(row_.size()), MPI_DOUBLE, owner, kRecordTag,
+                 MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+        MPI_Recv(incoming_plan_.data(), static_cast<int>(incoming_plan_.size()), MPI_UINT16_T,
+                 owner, kRecordTag, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+        plan = incoming_plan_;
+      } else {
+        continue;
+      }
+      writer_->record(writer_handle(local, r), step, plan, row_);
+    }
+    if (home) ++local.segment_records;
   }
 
   // Closes this rank's plan file, then rank 0 commits every rank's chains in one atomic write.
   // A final commit (how_ended not empty) also closes the session.
   void commit(const std::string& how_ended) {
+    // First, as nothing can fail yet: the holders of a shared ladder add up their kernel counters.
+    std::vector<StoredCounters> counters;
+    for (auto& local : chains_) {
+      counters.push_back(stored(local.counters()));
+      if (local.holders != MPI_COMM_NULL) counters.back() = add_over(counters.back(), local.holders);
+    }
     RunState part;
     everywhere_then_agree([&] {
       if (writer_) {
-        for (auto& local : chains_) {
-          if (local.handle != SIZE_MAX) writer_->set_counters(local.handle, stored(local.counters()));
+        for (std::size_t k = 0; k < chains_.size(); ++k) {
+          for (const std::size_t handle : chains_[k].handles) {
+            if (handle != SIZE_MAX) writer_->set_counters(handle, counters[k]);
+          }
         }
         writer_.reset();  // closes the HDF5 file
         fsync_path(layout_.resolve(writer_file_));
         part.files.push_back({writer_file_, segment_, w_.rank, host_});
       }
       const std::string now = utc_now_iso8601();
-      for (auto& local : chains_) {
+      for (std::size_t k = 0; k < chains_.size(); ++k) {
+        LocalChain& local = chains_[k];
         ChainEntry& e = local.entry;
         e.steps = local.steps();
-        e.counters = stored(local.counters());
+        e.counters = counters[k];
         e.snapshot = local.save();
         if (local.ladder) e.ladder = ladder_summary(*local.ladder).dump();
         e.last_checkpoint = now;
@@ -518,7 +650,7 @@ class ChainRunner {
           e.records += local.segment_records;
         }
         local.segment_records = 0;
-        local.handle = SIZE_MAX;
+        std::fill(local.handles.begin(), local.handles.end(), SIZE_MAX);
         part.chains.push_back(e);
       }
     });
@@ -526,14 +658,23 @@ class ChainRunner {
     std::string encoded;
     on_root_then_agree(w_, [&] {
       fsync_path(layout_.plans_dir());
-      for (const auto& text : parts) {
-        const RunState from_rank = decode_run_state(text);
+      // A shared ladder comes from each of its holders: the home rank's entry holds its records,
+      // and the holders' snapshots combine into one.
+      std::map<std::uint64_t, std::vector<std::string>> snapshots;
+      for (std::size_t rank = 0; rank < parts.size(); ++rank) {
+        const RunState from_rank = decode_run_state(parts[rank]);
         for (const auto& f : from_rank.files) state_.files.push_back(f);
         for (const auto& c : from_rank.chains) {
+          snapshots[c.index].push_back(c.snapshot);
+          if (home_rank(c.index) != static_cast<int>(rank)) continue;
           auto it = std::find_if(state_.chains.begin(), state_.chains.end(),
                                  [&](const ChainEntry& e) { return e.index == c.index; });
           *it = c;
         }
+      }
+      for (auto& e : state_.chains) {
+        const auto& list = snapshots[e.index];
+        if (list.size() > 1) e.snapshot = Ladder::combine_snapshots(list);
       }
       state_.checkpoints = segment_ + 1;
       state_.finished = how_ended == "finished";
@@ -708,14 +849,16 @@ class ChainRunner {
   }
   std::uint64_t records_local() const {
     std::uint64_t n = 0;
-    for (const auto& c : chains_) n += c.entry.records + c.segment_records;
+    for (const auto& c : chains_) {
+      if (c.home == w_.rank) n += c.entry.records + c.segment_records;
+    }
     return n;
   }
   std::uint64_t remaining_local() const {
     std::uint64_t n = 0;
     for (const auto& c : chains_) {
       const std::uint64_t s = c.steps();
-      const std::uint64_t replicas = c.ladder ? c.ladder->rungs() : 1;  // kernel steps, as counted
+      const std::uint64_t replicas = c.replicas_here();  // kernel steps, as counted
       n += s < state_.target_steps ? (state_.target_steps - s) * replicas : 0;
     }
     return n;
@@ -734,6 +877,7 @@ class ChainRunner {
   std::vector<LocalChain> chains_;
   EnsembleHeader header_;
   std::unique_ptr<EnsembleWriter> writer_;
+  std::vector<DistrictIndex> incoming_plan_;  // a plan sent by the holder of a shared ladder's replica
   std::string writer_file_;
   std::string verdict_summary_;
   bool bar_shown_ = false;
