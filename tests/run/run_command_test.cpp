@@ -60,23 +60,30 @@ int run(int ranks, const fs::path& job, const fs::path& out, const std::string& 
                " --quiet " + extra + " >" + out.string() + ".log 2>&1");
 }
 
-// Every recorded plan, step and observable of every chain must be identical.
+// Every recorded plan, step and observable of every chain (and of every recorded rung) must be
+// identical.
 void expect_same_records(const fs::path& a, const fs::path& b) {
   RunReader x(a.string()), y(b.string());
   ASSERT_EQ(x.chains(), y.chains());
   for (const auto c : x.chains()) {
     ASSERT_EQ(x.record_count(c), y.record_count(c)) << "chain " << c;
-    EXPECT_EQ(x.record_steps(c), y.record_steps(c)) << "chain " << c;
-    EXPECT_EQ(x.read_observables(c), y.read_observables(c)) << "chain " << c;
-    for (std::uint64_t r = 0; r < x.record_count(c); ++r) {
-      if (x.read_plan(c, r) != y.read_plan(c, r)) {
-        ADD_FAILURE() << "chain " << c << " record " << r << " differs between " << a << " and " << b;
-        return;
+    ASSERT_EQ(x.recorded_rungs(c), y.recorded_rungs(c)) << "chain " << c;
+    for (std::uint64_t rung = 0; rung < x.recorded_rungs(c); ++rung) {
+      EXPECT_EQ(x.record_steps(c, rung), y.record_steps(c, rung)) << "chain " << c << " rung " << rung;
+      EXPECT_EQ(x.read_observables(c, rung), y.read_observables(c, rung)) << "chain " << c << " rung " << rung;
+      for (std::uint64_t r = 0; r < x.record_count(c); ++r) {
+        if (x.read_plan(c, r, rung) != y.read_plan(c, r, rung)) {
+          ADD_FAILURE() << "chain " << c << " rung " << rung << " record " << r << " differs between "
+                        << a << " and " << b;
+          return;
+        }
       }
     }
   }
   EXPECT_TRUE(x.verify().empty());
   EXPECT_TRUE(y.verify().empty());
+  EXPECT_TRUE(x.verify_rungs().empty());
+  EXPECT_TRUE(y.verify_rungs().empty());
 }
 
 TEST(Run, RecordsTheSamePlansWhateverTheNumberOfRanks) {
@@ -266,8 +273,8 @@ TEST(Run, UntilConvergedStopsWhenTheVerdictPassesOrTheBudgetIsSpent) {
   EXPECT_EQ(run(1, hard, out, "--until-converged"), 2) << "--until-converged needs --max-steps";
 }
 
-// Tempering: each chain of the run is a ladder of replicas, all on one rank; the target rung is
-// recorded. The same determinism and resume guarantees hold.
+// Tempering: each chain of the run is a ladder of replicas (on 2 ranks, ladder 1 of 3 is shared
+// by both); the target rung is recorded. The same determinism and resume guarantees hold.
 constexpr const char* kLadderSampler =
     "kernel = \"flip\"\nchains = 3\nsteps = 300\nburn_in = 60\nrecord_every = 3\nseed = 8\n"
     "[tempering]\nrungs = 3\nhottest_beta = 0.2\nswap_every = 5\ntune = true\n"
@@ -291,6 +298,47 @@ TEST(Run, LaddersRecordTheSamePlansOnAnyRankCountAndResumeExactly) {
   ASSERT_EQ(run(1, job, dir / "resumed", "--resume --until-converged --max-steps 780"), 3);
   EXPECT_EQ(read_run_state(RunLayout{dir / "resumed"}).chains[2].steps, 780U);
   expect_same_records(dir / "straight", dir / "resumed");
+}
+
+// Replicas of one ladder spread over ranks, every rung recorded, checkpoints at block ends: the
+// records of every rung and the committed ladder snapshots are the same on 1, 3 and 4 ranks
+// (4 ranks: each ladder on two; 3 ranks: 3 + 3 + 2 replicas, both ladders shared).
+TEST(Run, LadderReplicasOnDifferentRanksGiveTheSameRunAndEveryRungIsRecorded) {
+  const auto dir = scratch("spread-ladders");
+  const auto job = write_job(dir,
+                             "kernel = \"flip\"\nchains = 2\nsteps = 600\nburn_in = 200\n"
+                             "record_every = 4\nseed = 13\n"
+                             "[tempering]\nrungs = 4\nhottest_beta = 0.1\nswap_every = 3\n"
+                             "tune = true\nrecord = \"all\"\n[rules.weights]\ncut_edges = 0.5\n"
+                             "[verdict]\ness_min = 1000000");
+  // Blocks of 400 steps end at 600, 1000, 1400, 1800 and 2000, each with a checkpoint.
+  const std::string blocks = "--until-converged --max-steps 2000";
+  ASSERT_EQ(run(1, job, dir / "r1", blocks), 3);
+  ASSERT_EQ(run(4, job, dir / "r4", blocks), 3);
+  ASSERT_EQ(run(3, job, dir / "r3", blocks), 3);
+  expect_same_records(dir / "r1", dir / "r4");
+  expect_same_records(dir / "r1", dir / "r3");
+  // Stopped at 1000 steps on 4 ranks, resumed on 3: the ladders' parts are put back elsewhere.
+  ASSERT_EQ(run(4, job, dir / "resumed", "--until-converged --max-steps 1000"), 3);
+  ASSERT_EQ(run(3, job, dir / "resumed", "--resume " + blocks), 3);
+  expect_same_records(dir / "r1", dir / "resumed");
+  const RunState one = read_run_state(RunLayout{dir / "r1"});
+  const RunState four = read_run_state(RunLayout{dir / "r4"});
+  const RunState three = read_run_state(RunLayout{dir / "r3"});
+  EXPECT_EQ(four.checkpoints, 5U) << "checkpoints mid-run, with the holders' snapshots combined";
+  for (std::size_t c = 0; c < 2; ++c) {
+    EXPECT_EQ(one.chains[c].recorded_rungs, 4U);
+    EXPECT_EQ(one.chains[c].records, (2000U - 200U) / 4U);
+    EXPECT_EQ(one.chains[c].snapshot, four.chains[c].snapshot) << "chain " << c;
+    EXPECT_EQ(one.chains[c].snapshot, three.chains[c].snapshot) << "chain " << c;
+    EXPECT_EQ(one.chains[c].ladder, four.chains[c].ladder) << "chain " << c;
+    EXPECT_EQ(four.chains[c].counters.steps, 4U * 2000U) << "summed over the holders";
+  }
+  // The hot rungs hold other plans than the target rung: they are separate sequences.
+  RunReader reader((dir / "r4").string());
+  EXPECT_NE(reader.read_observables(0, 0), reader.read_observables(0, 3));
+  // A plain reader of the ensemble sees the two chains only.
+  EXPECT_EQ(reader.chains(), (std::vector<std::uint64_t>{0, 1}));
 }
 
 }  // namespace
