@@ -810,9 +810,12 @@ class ChainRunner {
     for (const auto& c : state_.chains) out.records += c.records, out.steps += c.steps;
     const double seconds = std::chrono::duration<double>(Clock::now() - started).count();
     const std::uint64_t stepped = sum_over_ranks(total_steps_local() - steps_at_start);
+    const std::string what = tempered() ? std::to_string(state_.chains.size()) + " ladders of " +
+                                              std::to_string(rungs()) + " rungs"
+                                        : std::to_string(state_.chains.size()) + " chains";
     char line[256];
-    std::snprintf(line, sizeof line, "%zu chains on %d rank%s: %llu plans recorded, %llu steps in %s",
-                  state_.chains.size(), w_.size, w_.size == 1 ? "" : "s",
+    std::snprintf(line, sizeof line, "%s on %d rank%s: %llu plans recorded, %llu kernel steps in %s",
+                  what.c_str(), w_.size, w_.size == 1 ? "" : "s",
                   static_cast<unsigned long long>(out.records),
                   static_cast<unsigned long long>(stepped), duration_text(seconds).c_str());
     out.summary = line;
