@@ -810,9 +810,11 @@ class ChainRunner {
     for (const auto& c : state_.chains) out.records += c.records, out.steps += c.steps;
     const double seconds = std::chrono::duration<double>(Clock::now() - started).count();
     const std::uint64_t stepped = sum_over_ranks(total_steps_local() - steps_at_start);
-    const std::string what = tempered() ? std::to_string(state_.chains.size()) + " ladders of " +
+    const std::size_t n = state_.chains.size();
+    const std::string what =
+        std::to_string(n) + (tempered() ? (n == 1 ? " ladder of " : " ladders of ") +
                                               std::to_string(rungs()) + " rungs"
-                                        : std::to_string(state_.chains.size()) + " chains";
+                                        : (n == 1 ? " chain" : " chains"));
     char line[256];
     std::snprintf(line, sizeof line, "%s on %d rank%s: %llu plans recorded, %llu kernel steps in %s",
                   what.c_str(), w_.size, w_.size == 1 ? "" : "s",
