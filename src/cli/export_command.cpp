@@ -28,7 +28,9 @@ int run_export(ExportArgs& args) {
   const ExportResult result = export_run(o);
   for (const std::string& w : result.warnings) std::cerr << "planmill: warning: " << w << "\n";
   std::cout << "wrote " << result.observable_rows << " observable rows and " << result.plans
-            << " plans to " << o.out_dir << "\n";
+            << " plans";
+  if (o.rung > 0) std::cout << " of rung " << o.rung;
+  std::cout << " to " << o.out_dir << "\n";
   for (const ChainProblem& p : result.left_out) {
     std::cerr << "planmill: chain " << p.chain_index << ", records " << p.first_record << "-";
     if (p.last_record == UINT64_MAX) {
@@ -58,6 +60,9 @@ void add_export_command(CLI::App& app, Action& action) {
   sub->add_option("--plan-layout", args->layout,
                   "files: one CSV per plan; wide: one CSV, a column per plan; both")
       ->check(CLI::IsMember({"files", "wide", "both"}));
+  sub->add_option("--rung", args->options.rung,
+                  "rung of each ladder to export (0, the default: the ensemble; R > 0 needs "
+                  "[tempering] record = \"all\")");
   sub->add_option("--map-units", args->options.units_path,
                   "unit table giving the unit ids (default: the one the run's job names)");
   sub->add_option("--map-id-column", args->options.id_column,

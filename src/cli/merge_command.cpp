@@ -1,6 +1,6 @@
 // planmill merge RUNDIR: checks every plan file of a run and writes RUNDIR/manifest.json
 // (docs/manifest.md). Exit status: 0 written and all files intact, 3 written but some records
-// are damaged (listed), 2 not a readable run dir.
+// are damaged (listed; hot-rung records too), 2 not a readable run dir.
 #include <filesystem>
 #include <iostream>
 #include <memory>
@@ -23,7 +23,8 @@ int run_merge(const std::string& run_dir) {
   const RunVerdictRule rule = verdict_rule_of_run(reader);
   RunDiagnostics diagnostics = diagnose_run(reader, rule.rule, {.problems = problems});
   diagnostics.rule_source = rule.source;
-  const auto manifest = build_manifest(reader, problems, diagnostics);
+  const auto rung_problems = reader.verify_rungs();  // hot rungs: never part of the verdict
+  const auto manifest = build_manifest(reader, problems, rung_problems, diagnostics);
   write_manifest(reader.layout(), manifest);
 
   const auto& totals = manifest["totals"];
@@ -40,7 +41,14 @@ int run_merge(const std::string& run_dir) {
               << ".." << (p["last_record"].is_null() ? std::string("end") : p["last_record"].dump())
               << ": " << p["what"].get<std::string>() << "\n";
   }
-  return problems.empty() ? 0 : 3;
+  for (const auto& p : manifest["rung_problems"]) {
+    std::cerr << "planmill: damaged: chain " << p["chain"] << " rung "
+              << (p["rung"].is_null() ? std::string("?") : p["rung"].dump()) << ", records "
+              << p["first_record"] << ".."
+              << (p["last_record"].is_null() ? std::string("end") : p["last_record"].dump()) << ": "
+              << p["what"].get<std::string>() << " (the ensemble is not affected)\n";
+  }
+  return problems.empty() && rung_problems.empty() ? 0 : 3;
 }
 
 }  // namespace

@@ -99,26 +99,55 @@ std::string csv_number(double value) {
   return {buffer, end};
 }
 
-std::string observables_file_name() { return "observables.csv"; }
-std::string wide_file_name() { return "plans-wide.csv"; }
-std::string plan_file_name(const RecordRef& ref) {
-  return "plans/chain-" + std::to_string(ref.chain) + "-record-" + std::to_string(ref.record) +
-         ".csv";
+namespace {
+std::string rung_part(std::uint64_t rung) {
+  return rung == 0 ? std::string() : "-rung-" + std::to_string(rung);
+}
+}  // namespace
+
+std::string observables_file_name(std::uint64_t rung) {
+  return "observables" + rung_part(rung) + ".csv";
+}
+std::string wide_file_name(std::uint64_t rung) { return "plans-wide" + rung_part(rung) + ".csv"; }
+std::string plan_file_name(const RecordRef& ref, std::uint64_t rung) {
+  return "plans/chain-" + std::to_string(ref.chain) + rung_part(rung) + "-record-" +
+         std::to_string(ref.record) + ".csv";
 }
 std::string wide_column_name(const RecordRef& ref) {
   return "c" + std::to_string(ref.chain) + "_r" + std::to_string(ref.record);
 }
 
+void check_rung_recorded(const RunReader& run, std::uint64_t rung) {
+  if (rung == 0) return;
+  for (std::uint64_t chain : run.chains()) {
+    const std::uint64_t rungs = run.recorded_rungs(chain);
+    if (rung < rungs) continue;
+    throw InputError(
+        {run.layout().state_file().string(), 0, "--rung"},
+        "chain " + std::to_string(chain) + " recorded " + std::to_string(rungs) +
+            (rungs == 1 ? " rung (rung 0 only)" : " rungs (0.." + std::to_string(rungs - 1) + ")") +
+            ", so it has no rung " + std::to_string(rung) + " to export",
+        "export a rung it recorded, or run the job with [tempering] record = \"all\" "
+        "to record every rung of each ladder");
+  }
+}
+
 ExportResult export_run(const ExportOptions& o) {
   ExportResult result;
   const RunReader run(o.run_dir);
+  const std::uint64_t rung = o.rung;
   // Everything that can be the user's mistake is checked before anything is written.
+  check_rung_recorded(run, rung);
   const std::vector<RecordRef> chosen = choose_records(run, o.plans);
   std::vector<std::string> ids;
   if (!chosen.empty()) ids = run_unit_ids(run, o, result);
 
+  // Only damage to the rung exported leaves a chain out. verify_rungs() names the rung right
+  // after the file name: "FILE: rung R: ...".
   std::set<std::uint64_t> bad;
-  for (const ChainProblem& p : run.verify()) {
+  const std::string rung_marker = ": rung " + std::to_string(rung) + ": ";
+  for (const ChainProblem& p : rung == 0 ? run.verify() : run.verify_rungs()) {
+    if (rung != 0 && p.what.find(rung_marker) != p.what.find(": ")) continue;
     if (bad.insert(p.chain_index).second) result.left_out.push_back(p);
   }
   const std::vector<std::string>& names = run.observable_names();
@@ -126,7 +155,7 @@ ExportResult export_run(const ExportOptions& o) {
   for (std::uint64_t chain : run.chains()) {
     if (left_out(bad, chain)) continue;
     try {
-      ChainRows r{chain, run.record_steps(chain), run.read_observables(chain)};
+      ChainRows r{chain, run.record_steps(chain, rung), run.read_observables(chain, rung)};
       if (r.values.size() != r.steps.size() * names.size()) {
         throw StoreError(run.layout().state_file().string(), "reading observables",
                          "the observable table does not have one row per record");
@@ -163,13 +192,13 @@ ExportResult export_run(const ExportOptions& o) {
     if (left_out(bad, ref.chain)) continue;
     std::vector<DistrictIndex> labels;
     try {
-      labels = run.read_plan(ref.chain, ref.record);
+      labels = run.read_plan(ref.chain, ref.record, rung);
     } catch (const StoreError& e) {
       leave_out(result, bad, ref.chain, run.record_count(ref.chain), e.what());
       continue;
     }
     if (o.layout != PlanLayout::wide) {
-      write(plan_file_name(ref), plan_csv_text(Plan(id_graph, run.district_count(), labels)));
+      write(plan_file_name(ref, rung), plan_csv_text(Plan(id_graph, run.district_count(), labels)));
     }
     if (o.layout != PlanLayout::files) wide_plans.emplace_back(ref, std::move(labels));
   }
@@ -192,7 +221,7 @@ ExportResult export_run(const ExportOptions& o) {
       ++result.observable_rows;
     }
   }
-  write(observables_file_name(), table);
+  write(observables_file_name(rung), table);
 
   if (!wide_plans.empty()) {
     std::string wide = "unit";
@@ -206,7 +235,7 @@ ExportResult export_run(const ExportOptions& o) {
       }
       wide += '\n';
     }
-    write(wide_file_name(), wide);
+    write(wide_file_name(rung), wide);
   }
   for (const RecordRef& ref : chosen) result.plans += left_out(bad, ref.chain) ? 0 : 1;
   return result;

@@ -50,6 +50,21 @@ json problem_json(const ChainProblem& p, const std::string& file) {
           {"what", p.what}};
 }
 
+// The rung a verify_rungs() problem names right after its file ("FILE: rung R: ..."); null if none.
+json rung_of(const std::string& what) {
+  const std::string marker = ": rung ";
+  const std::size_t at = what.find(": ");
+  if (at == std::string::npos || what.compare(at, marker.size(), marker) != 0) return nullptr;
+  std::size_t end = at + marker.size();
+  std::uint64_t rung = 0;
+  bool digits = false;
+  for (; end < what.size() && what[end] >= '0' && what[end] <= '9'; ++end, digits = true) {
+    rung = rung * 10 + static_cast<std::uint64_t>(what[end] - '0');
+  }
+  if (!digits || end >= what.size() || what[end] != ':') return nullptr;
+  return rung;
+}
+
 // The plan file that holds a problem's first record, from the chain's spans in the state.
 std::string file_of(const RunState& state, const ChainProblem& p) {
   for (const auto& c : state.chains) {
@@ -88,6 +103,7 @@ std::vector<ChainProblem> coalesced(std::vector<ChainProblem> problems) {
 }  // namespace
 
 json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& problems,
+                    const std::vector<ChainProblem>& rung_problems,
                     const RunDiagnostics& diagnostics) {
   const RunState& s = reader.state();
   const RunLayout& layout = reader.layout();
@@ -150,6 +166,18 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
     chain_problems[p.chain_index].push_back(j);
     if (!file.empty()) file_problems[file].push_back(j);
   }
+  // Hot-rung damage, kept apart: it leaves the ensemble and its diagnostics alone.
+  std::map<std::uint64_t, json> chain_rung_problems;
+  std::map<std::string, json> file_rung_problems;
+  json all_rung_problems = json::array();
+  for (const auto& p : coalesced(rung_problems)) {
+    const std::string file = file_of(s, p);
+    json j = problem_json(p, file);
+    j["rung"] = rung_of(p.what);
+    all_rung_problems.push_back(j);
+    chain_rung_problems[p.chain_index].push_back(j);
+    if (!file.empty()) file_rung_problems[file].push_back(j);
+  }
 
   std::map<std::string, json> file_chains;  // file -> the chain record ranges it holds
   json chains = json::array();
@@ -180,6 +208,12 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"problems", chain_problems.count(c.index) ? chain_problems[c.index] : json::array()}});
     // With tempering: the frozen ladder and its swap statistics (temper/ladder_summary.hpp).
     if (!c.ladder.empty()) chains.back()["ladder"] = json::parse(c.ladder);
+    // With [tempering] record = "all": how many rungs were recorded, and damage to rungs 1..R-1.
+    if (c.recorded_rungs > 1 || chain_rung_problems.count(c.index)) {
+      chains.back()["recorded_rungs"] = c.recorded_rungs;
+      chains.back()["rung_problems"] =
+          chain_rung_problems.count(c.index) ? chain_rung_problems[c.index] : json::array();
+    }
     total_records += c.records;
     total_steps += c.steps;
     total_accepted += k.accepted;
@@ -193,7 +227,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
     std::error_code ec;
     const auto size = fs::file_size(path, ec);
     if (!ec) total_bytes += size;
-    const bool damaged = file_problems.count(f.file) != 0;
+    const bool damaged = file_problems.count(f.file) != 0 || file_rung_problems.count(f.file) != 0;
     plan_files.push_back(
         {{"file", f.file},
          {"segment", f.segment},
@@ -203,10 +237,13 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"sha256", sha256_now(path)},
          {"verify", damaged ? "damaged" : "ok"},
          {"chains", file_chains.count(f.file) ? file_chains[f.file] : json::array()},
-         {"problems", damaged ? file_problems[f.file] : json::array()}});
+         {"problems", file_problems.count(f.file) ? file_problems[f.file] : json::array()},
+         {"rung_problems",
+          file_rung_problems.count(f.file) ? file_rung_problems[f.file] : json::array()}});
   }
   m["plan_files"] = plan_files;
   m["problems"] = all_problems;
+  m["rung_problems"] = all_rung_problems;
   m["totals"] = {{"chains", s.chains.size()},
                  {"records", total_records},
                  {"steps", total_steps},
@@ -214,6 +251,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
                  {"plan_files", s.files.size()},
                  {"plan_bytes", total_bytes},
                  {"problems", all_problems.size()},
+                 {"rung_problems", all_rung_problems.size()},
                  {"inputs_not_matching", inputs_changed}};
   m["diagnostics"] = diagnostics_to_json(diagnostics);
   return m;
@@ -235,7 +273,7 @@ bool write_manifest_diagnostics(const RunReader& reader, const std::vector<Chain
   const bool fresh = !manifest.is_object() || !manifest.contains("manifest_schema") ||
                      manifest["manifest_schema"] != kManifestSchemaVersion;
   if (fresh) {
-    manifest = build_manifest(reader, problems, diagnostics);
+    manifest = build_manifest(reader, problems, reader.verify_rungs(), diagnostics);
   } else {
     manifest["diagnostics"] = diagnostics_to_json(diagnostics);
   }

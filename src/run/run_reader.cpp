@@ -8,7 +8,8 @@
 
 namespace planmill {
 
-RunReader::RunReader(const std::string& run_dir) : layout_{run_dir}, state_(read_run_state(layout_)) {
+RunReader::RunReader(const std::string& run_dir)
+    : layout_{run_dir}, state_(read_run_state(layout_)) {
   for (const auto& f : state_.files) {
     std::unique_ptr<EnsembleReader> reader;
     try {
@@ -97,7 +98,8 @@ std::vector<std::uint64_t> RunReader::record_steps(std::uint64_t chain, std::uin
   for (const auto& s : spans_of(chain)) {
     const auto steps = reader_of(s).record_steps(index);
     out.insert(out.end(), steps.begin(),
-               steps.begin() + static_cast<std::ptrdiff_t>(std::min<std::uint64_t>(s.records, steps.size())));
+               steps.begin() +
+                   static_cast<std::ptrdiff_t>(std::min<std::uint64_t>(s.records, steps.size())));
   }
   return out;
 }
@@ -140,9 +142,9 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
     for (std::uint64_t rung = rungs ? 1 : 0; rung < (rungs ? c.recorded_rungs : 1); ++rung) {
       for (const auto& s : spans_of(c.index)) {
         if (s.reader == nullptr) {
-          problems.push_back({c.index, s.first, s.first + s.records - 1,
-                              s.file + ": " + rung_text(rung) + "cannot be opened: " +
-                                  unreadable_.at(s.file)});
+          problems.push_back(
+              {c.index, s.first, s.first + s.records - 1,
+               s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file)});
           continue;
         }
         // A group the file lacks holds no records; an unreadable index is left to verify() below.
@@ -180,7 +182,8 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
         if (s.reader != reader.get()) continue;
         listed = true;
         p.first_record += s.first;
-        p.last_record = p.last_record == UINT64_MAX ? s.first + s.records - 1 : p.last_record + s.first;
+        p.last_record =
+            p.last_record == UINT64_MAX ? s.first + s.records - 1 : p.last_record + s.first;
       }
       if (!listed) continue;  // the chain's spans do not name this file
       p.what = name + ": " + rung_text(offset % kMaxRungs) + p.what;

@@ -15,14 +15,19 @@ namespace {
 
 namespace fs = std::filesystem;
 
-// argv: run_dir out_dir units_csv id_column. Prints "checked ROWS PLANS WIDE_COLUMNS", then the
-// record kinds it decoded ("kinds 0 2 3").
+// argv: run_dir out_dir units_csv id_column [rung]. Prints "checked ROWS PLANS WIDE_COLUMNS", then
+// the record kinds it decoded ("kinds 0 2 3"). With a rung R > 0 it reads the group of rung R of
+// each chain (chain_<2^40 + 64 c + R>, run_state.hpp rung_record_index) and the files export
+// names with the rung.
 const char* const kPythonCheck = R"PY(
 import csv, json, math, os, re, sys
 import h5py
 import numpy as np
 
 run_dir, out_dir, units_csv, id_column = sys.argv[1:5]
+rung = int(sys.argv[5]) if len(sys.argv) > 5 else 0
+group_of = lambda c: c if rung == 0 else (1 << 40) + 64 * c + rung
+suffix = "" if rung == 0 else "-rung-%d" % rung
 
 def varint(b, i):
     v = s = 0
@@ -85,7 +90,7 @@ def decode(f, chain):
     if "unit_adjacency" in f:
         off, nb = f["unit_adjacency/offsets"][...], f["unit_adjacency/neighbors"][...]
         lower = [[int(v) for v in nb[off[u]:off[u + 1]] if v < u] for u in range(len(off) - 1)]
-    g = f["chain_%d" % chain]
+    g = f["chain_%d" % group_of(chain)]
     data, plan = g["plan_bytes"][...], None
     lab = lambda b, i: int.from_bytes(bytes(b[i:i + w]), "little")
     for step, off, length, kind in g["plan_records"][...]:
@@ -130,7 +135,7 @@ for c in state["chains"]:
             for step, plan in list(decode(f, i))[:n]:
                 steps[i].append(step)
                 plans[i].append(plan)
-            table = f["chain_%d/observables" % i]
+            table = f["chain_%d/observables" % group_of(i)]
             obs[i].extend(table[...][:n])
             names = [x.decode() if isinstance(x, bytes) else str(x) for x in table.attrs["names"]]
 
@@ -141,7 +146,7 @@ def fail(what):
     sys.exit("mismatch: " + what)
 
 rows = 0
-with open(os.path.join(out_dir, "observables.csv"), newline="") as fh:
+with open(os.path.join(out_dir, "observables%s.csv" % suffix), newline="") as fh:
     reader = csv.reader(fh)
     header = next(reader)
     if header[:3] != ["chain", "record", "step"] or header[3:] != names:
@@ -168,7 +173,7 @@ def check_plan(c, r, units, labels, where):
 checked = 0
 plan_dir = os.path.join(out_dir, "plans")
 for name in sorted(os.listdir(plan_dir)) if os.path.isdir(plan_dir) else []:
-    m = re.fullmatch(r"chain-(\d+)-record-(\d+)\.csv", name)
+    m = re.fullmatch(r"chain-(\d+)%s-record-(\d+)\.csv" % suffix, name)
     if not m:
         fail("unexpected file " + name)
     with open(os.path.join(plan_dir, name), newline="") as fh:
@@ -177,7 +182,7 @@ for name in sorted(os.listdir(plan_dir)) if os.path.isdir(plan_dir) else []:
     checked += 1
 
 wide_columns = 0
-wide = os.path.join(out_dir, "plans-wide.csv")
+wide = os.path.join(out_dir, "plans-wide%s.csv" % suffix)
 if os.path.exists(wide):
     with open(wide, newline="") as fh:
         table = list(csv.reader(fh))
@@ -192,10 +197,11 @@ print("kinds " + " ".join(str(x) for x in sorted(kinds_seen)))
 
 // Runs the check; returns its output ("checked ...\nkinds ...\n") or the failure it printed.
 std::string python_check(const test::TempDir& dir, const fs::path& run_dir, const fs::path& out_dir,
-                         const fs::path& units_csv) {
+                         const fs::path& units_csv, std::uint64_t rung = 0) {
   const std::string script = dir.write("check.py", kPythonCheck);
   const std::string command = "/usr/bin/python3 " + script + " " + run_dir.string() + " " +
-                              out_dir.string() + " " + units_csv.string() + " unit 2>&1";
+                              out_dir.string() + " " + units_csv.string() + " unit " +
+                              std::to_string(rung) + " 2>&1";
   FILE* pipe = ::popen(command.c_str(), "r");
   std::string output;
   char buffer[512];
@@ -204,8 +210,8 @@ std::string python_check(const test::TempDir& dir, const fs::path& run_dir, cons
   return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
 }
 
-std::string python_check(const test::ExportFixture& f) {
-  return python_check(f.dir, f.run_dir, f.out_dir, f.units_csv);
+std::string python_check(const test::ExportFixture& f, std::uint64_t rung = 0) {
+  return python_check(f.dir, f.run_dir, f.out_dir, f.units_csv, rung);
 }
 
 std::string first_line(const std::string& text) { return text.substr(0, text.find('\n')); }
@@ -236,6 +242,29 @@ TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
             0);
   EXPECT_EQ(first_line(python_check(f)),
             "checked 120 11 11");  // records 0,7,...,56 of chain 1, and two
+}
+
+// A hot rung of a run that recorded every rung: h5py reads that rung's own group in each file.
+// The export of rung 0 beside it must not pass the rung-2 check, so the check tells them apart.
+TEST(ExportH5py, AHotRungMatchesAnIndependentReaderOfItsGroup) {
+  test::ExportFixture f({.chains = 3,
+                         .ranks = 2,
+                         .segments = 2,
+                         .records_per_segment = 15,
+                         .units = 40,
+                         .districts = 4,
+                         .recorded_rungs = 3});
+  ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
+                             " --rung 2 --every 4 --plan-layout both"),
+            0);
+  EXPECT_EQ(first_line(python_check(f, 2)), "checked 90 24 24");  // 3 x 30 rows, 8 plans each
+  // Rung 2's files given to a check that reads rung 1's groups: a mismatch, not a pass.
+  for (const auto& name : {"observables", "plans-wide"}) {
+    fs::rename(f.out_dir / (std::string(name) + "-rung-2.csv"),
+               f.out_dir / (std::string(name) + "-rung-1.csv"));
+  }
+  fs::remove_all(f.out_dir / "plans");
+  EXPECT_NE(python_check(f, 1).find("mismatch"), std::string::npos);
 }
 
 // A real run of `planmill run` on a `planmill synth` state: 2 chains, records at steps

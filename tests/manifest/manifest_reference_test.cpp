@@ -56,7 +56,8 @@ TEST(ManifestReference, EveryDigestEqualsPythonHashlib) {
 
   const RunReader reader(dir.string());
   const auto problems = reader.verify();
-  const json m = build_manifest(reader, problems, diagnose_run(reader, {}, {.problems = problems}));
+  const json m = build_manifest(reader, problems, reader.verify_rungs(),
+                                diagnose_run(reader, {}, {.problems = problems}));
 
   std::vector<std::string> paths;
   std::vector<json> ours;
@@ -106,7 +107,8 @@ TEST(ManifestReference, AFlippedByteIsReportedForTheRecordsOfItsChunk) {
   }
   const RunReader reader(dir.string());
   const auto problems = reader.verify();
-  const json m = build_manifest(reader, problems, diagnose_run(reader, {}, {.problems = problems}));
+  const json m = build_manifest(reader, problems, reader.verify_rungs(),
+                                diagnose_run(reader, {}, {.problems = problems}));
   ASSERT_EQ(m["problems"].size(), 1U) << m["problems"].dump(1);
   EXPECT_EQ(m["problems"][0]["chain"], 1U);
   EXPECT_EQ(m["problems"][0]["first_record"], std::stoull(found[1]));

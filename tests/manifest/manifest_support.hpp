@@ -66,7 +66,8 @@ inline Outcome run_planmill(const std::filesystem::path& dir, const std::string&
 
 // The fixture run of `options`, with its plan files written again so that observable q of chain
 // c, record r is value(c, r, q) (the fixture's own observables include a 4-valued count whose
-// tail ESS is NaN). Plans, steps, files and run-state.json stay as the fixture wrote them.
+// tail ESS is NaN). Plans, steps, files, hot rungs and run-state.json stay as the fixture wrote
+// them.
 template <class Value>
 FixtureRun write_run_with_observables(const std::filesystem::path& dir,
                                       const FixtureRunOptions& options, Value value) {
@@ -91,6 +92,16 @@ FixtureRun write_run_with_observables(const std::filesystem::path& dir,
                           run.observables.at(chain.index)[r]);
           }
           writer.set_counters(handle, chain.counters);
+          // Hot rungs (recorded_rungs > 1) keep what the fixture wrote for them.
+          for (std::uint64_t rung = 1; rung < chain.recorded_rungs; ++rung) {
+            const auto& written = run.rungs.at({chain.index, rung});
+            const auto rung_handle =
+                writer.add_chain(rung_record_index(chain.index, rung), run.state.observable_names);
+            for (std::uint64_t r = first; r < first + span.records; ++r) {
+              writer.record(rung_handle, written.steps[r], written.plans[r],
+                            written.observables[r]);
+            }
+          }
         }
         first += span.records;
       }

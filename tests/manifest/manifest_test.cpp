@@ -24,7 +24,7 @@ using json = nlohmann::ordered_json;
 
 struct Built {
   json manifest;
-  std::vector<ChainProblem> problems;
+  std::vector<ChainProblem> problems, rung_problems;
   RunDiagnostics diagnostics;
 };
 
@@ -33,7 +33,8 @@ Built merge(const fs::path& dir) {
   Built b;
   b.problems = reader.verify();
   b.diagnostics = diagnose_run(reader, verdict_rule_of_run(reader).rule, {.problems = b.problems});
-  b.manifest = build_manifest(reader, b.problems, b.diagnostics);
+  b.rung_problems = reader.verify_rungs();
+  b.manifest = build_manifest(reader, b.problems, b.rung_problems, b.diagnostics);
   return b;
 }
 

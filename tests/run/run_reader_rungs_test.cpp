@@ -28,8 +28,8 @@ bool starts_with(const std::string& text, const std::string& prefix) {
 
 TEST(RunReaderRungs, EveryRungOfEveryChainReadsBackAsWritten) {
   const auto dir = fresh_dir("all");
-  const auto run = test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 3,
-                                                 .recorded_rungs = 4});
+  const auto run =
+      test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 3, .recorded_rungs = 4});
   const RunReader reader(dir.string());
   for (const auto c : reader.chains()) {
     ASSERT_EQ(reader.recorded_rungs(c), 4U);
@@ -97,7 +97,7 @@ TEST(RunReaderRungs, DamageToAHotRungShowsInVerifyRungsOnly) {
   EXPECT_EQ(problems[0].last_record, 39U);
   EXPECT_TRUE(starts_with(problems[0].what, file + ": rung 2: ")) << problems[0].what;
   EXPECT_THROW((void)reader.read_observables(1, 2), StoreError);
-  EXPECT_EQ(reader.read_observables(1, 1).size(), 40U * 4);  // another rung, same file
+  EXPECT_EQ(reader.read_observables(1, 1).size(), 40U * 4);               // another rung, same file
   EXPECT_EQ(reader.read_plan(1, 30, 2), run.rungs.at({1, 2}).plans[30]);  // plans are apart
 }
 

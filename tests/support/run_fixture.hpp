@@ -9,12 +9,11 @@
 //   auto run = planmill::test::write_fixture_run(dir, {.chains = 3, .segments = 2});
 #include <cstdint>
 #include <filesystem>
+#include <fstream>
 #include <map>
 #include <string>
 #include <utility>
 #include <vector>
-
-#include <fstream>
 
 #include "planmill/base/random.hpp"
 #include "planmill/run/run_state.hpp"

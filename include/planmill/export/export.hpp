@@ -3,7 +3,8 @@
 // (docs/export.md). Everything the user asked for is checked before the first file is written, so
 // a bad choice (a chain or record that does not exist, a map that cannot be found) writes nothing.
 // Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
-// the other chains are still exported.
+// the other chains are still exported. With a rung R > 0 everything written is rung R of each
+// chain's ladder, and only damage to that rung's records leaves a chain out.
 #include <cstdint>
 #include <string>
 #include <string_view>
@@ -36,6 +37,9 @@ struct ExportOptions {
   PlanLayout layout = PlanLayout::files;
   std::string units_path;  // unit table overriding the job's map.units; empty = the job's
   std::string id_column;   // overriding the job's map.id; empty = the job's
+  // Rung of each chain's ladder to export: 0 = the chains (the ensemble); R > 0 needs every chain
+  // of the run to have recorded rung R ([tempering] record = "all"), else InputError.
+  std::uint64_t rung = 0;
 };
 
 struct ExportResult {
@@ -66,11 +70,15 @@ struct ExportResult {
 // Inf and -Inf for infinities (what R's read.csv and pandas read as such).
 [[nodiscard]] std::string csv_number(double value);
 
-// File names inside out_dir.
-[[nodiscard]] std::string observables_file_name();
-[[nodiscard]] std::string plan_file_name(const RecordRef& ref);  // plans/chain-C-record-R.csv
-[[nodiscard]] std::string wide_file_name();
-[[nodiscard]] std::string wide_column_name(const RecordRef& ref);  // cC_rR
+// File names inside out_dir; a rung R > 0 appears in them, rung 0 (the ensemble) does not.
+[[nodiscard]] std::string observables_file_name(std::uint64_t rung = 0);  // observables-rung-R.csv
+// plans/chain-C-record-N.csv; plans/chain-C-rung-R-record-N.csv
+[[nodiscard]] std::string plan_file_name(const RecordRef& ref, std::uint64_t rung = 0);
+[[nodiscard]] std::string wide_file_name(std::uint64_t rung = 0);  // plans-wide-rung-R.csv
+[[nodiscard]] std::string wide_column_name(const RecordRef& ref);  // cC_rN, whatever the rung
+
+// InputError naming the first chain of the run that did not record `rung` (0 always passes).
+void check_rung_recorded(const RunReader& run, std::uint64_t rung);
 
 [[nodiscard]] ExportResult export_run(const ExportOptions& options);
 

@@ -14,16 +14,20 @@ namespace planmill {
 
 inline constexpr std::int64_t kManifestSchemaVersion = 1;
 
-// `problems` is reader.verify(); `diagnostics` goes in as the "diagnostics" section.
+// `problems` is reader.verify() (the ensemble), `rung_problems` reader.verify_rungs() (the hotter
+// rungs of ladders that recorded every rung; they never touch the diagnostics); `diagnostics`
+// goes in as the "diagnostics" section.
 [[nodiscard]] nlohmann::ordered_json build_manifest(const RunReader& reader,
                                                     const std::vector<ChainProblem>& problems,
+                                                    const std::vector<ChainProblem>& rung_problems,
                                                     const RunDiagnostics& diagnostics);
 
 // Replaces RUNDIR/manifest.json atomically (a reader sees the old or the new file, never half).
 void write_manifest(const RunLayout& layout, const nlohmann::ordered_json& manifest);
 
 // Replaces only the "diagnostics" section of RUNDIR/manifest.json; when there is no manifest of
-// this schema version yet (or it cannot be parsed), builds and writes the whole manifest.
+// this schema version yet (or it cannot be parsed), builds and writes the whole manifest (with
+// reader.verify_rungs() for its rung problems).
 // Returns true when a whole new manifest was written.
 bool write_manifest_diagnostics(const RunReader& reader, const std::vector<ChainProblem>& problems,
                                 const RunDiagnostics& diagnostics);
