@@ -142,12 +142,10 @@ ExportResult export_run(const ExportOptions& o) {
   std::vector<std::string> ids;
   if (!chosen.empty()) ids = run_unit_ids(run, o, result);
 
-  // Only damage to the rung exported leaves a chain out. verify_rungs() names the rung right
-  // after the file name: "FILE: rung R: ...".
+  // Only damage to the rung exported leaves a chain out.
   std::set<std::uint64_t> bad;
-  const std::string rung_marker = ": rung " + std::to_string(rung) + ": ";
   for (const ChainProblem& p : rung == 0 ? run.verify() : run.verify_rungs()) {
-    if (rung != 0 && p.what.find(rung_marker) != p.what.find(": ")) continue;
+    if (p.rung != rung) continue;
     if (bad.insert(p.chain_index).second) result.left_out.push_back(p);
   }
   const std::vector<std::string>& names = run.observable_names();

@@ -50,21 +50,6 @@ json problem_json(const ChainProblem& p, const std::string& file) {
           {"what", p.what}};
 }
 
-// The rung a verify_rungs() problem names right after its file ("FILE: rung R: ..."); null if none.
-json rung_of(const std::string& what) {
-  const std::string marker = ": rung ";
-  const std::size_t at = what.find(": ");
-  if (at == std::string::npos || what.compare(at, marker.size(), marker) != 0) return nullptr;
-  std::size_t end = at + marker.size();
-  std::uint64_t rung = 0;
-  bool digits = false;
-  for (; end < what.size() && what[end] >= '0' && what[end] <= '9'; ++end, digits = true) {
-    rung = rung * 10 + static_cast<std::uint64_t>(what[end] - '0');
-  }
-  if (!digits || end >= what.size() || what[end] != ':') return nullptr;
-  return rung;
-}
-
 // The plan file that holds a problem's first record, from the chain's spans in the state.
 std::string file_of(const RunState& state, const ChainProblem& p) {
   for (const auto& c : state.chains) {
@@ -89,7 +74,7 @@ std::vector<ChainProblem> coalesced(std::vector<ChainProblem> problems) {
   for (auto& p : problems) {
     if (!out.empty()) {
       auto& last = out.back();
-      if (last.chain_index == p.chain_index && last.what == p.what &&
+      if (last.chain_index == p.chain_index && last.rung == p.rung && last.what == p.what &&
           last.last_record != UINT64_MAX && p.first_record <= last.last_record + 1) {
         last.last_record = std::max(last.last_record, p.last_record);
         continue;
@@ -173,7 +158,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   for (const auto& p : coalesced(rung_problems)) {
     const std::string file = file_of(s, p);
     json j = problem_json(p, file);
-    j["rung"] = rung_of(p.what);
+    j["rung"] = p.rung;
     all_rung_problems.push_back(j);
     chain_rung_problems[p.chain_index].push_back(j);
     if (!file.empty()) file_rung_problems[file].push_back(j);

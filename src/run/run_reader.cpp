@@ -144,7 +144,8 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
         if (s.reader == nullptr) {
           problems.push_back(
               {c.index, s.first, s.first + s.records - 1,
-               s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file)});
+               s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file),
+               rung});
           continue;
         }
         // A group the file lacks holds no records; an unreadable index is left to verify() below.
@@ -161,14 +162,21 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
         if (in_file < s.records) {
           problems.push_back({c.index, s.first + in_file, s.first + s.records - 1,
                               s.file + ": " + rung_text(rung) +
-                                  "the plan file holds fewer records than the run state lists"});
+                                  "the plan file holds fewer records than the run state lists",
+                              rung});
         }
       }
     }
   }
-  for (const auto& [name, reader] : files_) {
-    if (reader == nullptr) continue;
-    for (auto p : reader->verify()) {
+  if (!file_checks_) {
+    file_checks_.emplace();
+    for (const auto& [name, reader] : files_) {
+      if (reader != nullptr) (*file_checks_)[name] = reader->verify();
+    }
+  }
+  for (const auto& [name, checks] : *file_checks_) {
+    const EnsembleReader* reader = files_.at(name).get();
+    for (auto p : checks) {
       if (is_rung_record_index(p.chain_index) != rungs) continue;
       const std::uint64_t offset = rungs ? p.chain_index - kRungRecordBase : 0;
       const std::uint64_t chain = rungs ? offset / kMaxRungs : p.chain_index;
@@ -179,7 +187,7 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
       if (rungs && offset % kMaxRungs >= state_chain->recorded_rungs) continue;
       bool listed = false;
       for (const auto& s : spans_of(chain)) {
-        if (s.reader != reader.get()) continue;
+        if (s.reader != reader) continue;
         listed = true;
         p.first_record += s.first;
         p.last_record =
@@ -188,6 +196,7 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
       if (!listed) continue;  // the chain's spans do not name this file
       p.what = name + ": " + rung_text(offset % kMaxRungs) + p.what;
       p.chain_index = chain;
+      p.rung = offset % kMaxRungs;
       problems.push_back(std::move(p));
     }
   }

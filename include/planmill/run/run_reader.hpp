@@ -5,6 +5,7 @@
 // recorded at the same steps; rung 0, the default, is the chain's ensemble.
 #include <map>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -64,6 +65,8 @@ class RunReader {
   std::map<std::string, std::unique_ptr<EnsembleReader>> files_;
   std::map<std::uint64_t, std::vector<Span>> spans_;
   std::map<std::string, std::string> unreadable_;  // file -> why it could not be opened
+  // Each opened file's own check, done once for verify() and verify_rungs() together.
+  mutable std::optional<std::map<std::string, std::vector<ChainProblem>>> file_checks_;
 };
 
 }  // namespace planmill

@@ -76,6 +76,7 @@ struct ChainProblem {
   std::uint64_t first_record = 0;  // records [first_record, last_record] are affected
   std::uint64_t last_record = 0;   // UINT64_MAX: up to the end, count unknown (index unreadable)
   std::string what;
+  std::uint64_t rung = 0;  // in a run: the ladder rung whose records these are (RunReader)
 };
 
 class EnsembleReader {
