@@ -1,9 +1,11 @@
 // export_run: check every choice, read what is needed, then write each file atomically.
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <iterator>
+#include <map>
 #include <set>
 
 #include "planmill/base/error.hpp"
@@ -184,21 +186,49 @@ ExportResult export_run(const ExportOptions& o) {
   };
 
   // Plan files are written as they are read, so memory holds one plan (the wide table needs all).
+  // Each chain's chosen records are read in stretches, decoding every record of a stretch once; a
+  // gap of more than kNewStretchGap records starts a new stretch (from its nearest self-contained
+  // record) rather than decoding the gap.
+  constexpr std::uint64_t kNewStretchGap = 256;
   if (o.layout != PlanLayout::wide && !chosen.empty()) fs::create_directories(out / "plans", ec);
+  std::map<std::uint64_t, std::vector<std::uint64_t>> wanted;
+  for (const RecordRef& ref : chosen) wanted[ref.chain].push_back(ref.record);
+  std::map<RecordRef, std::vector<DistrictIndex>> wide_labels;
+  for (auto& [chain, records] : wanted) {
+    if (left_out(bad, chain)) continue;
+    std::sort(records.begin(), records.end());
+    records.erase(std::unique(records.begin(), records.end()), records.end());
+    try {
+      for (std::size_t begin = 0; begin < records.size();) {
+        std::size_t end = begin + 1;
+        while (end < records.size() && records[end] - records[end - 1] <= kNewStretchGap) ++end;
+        std::size_t next = begin;
+        run.for_each_plan(
+            chain, records[begin], records[end - 1],
+            [&](std::uint64_t record, std::span<const DistrictIndex> labels) {
+              if (next >= end || records[next] != record) return;
+              ++next;
+              const RecordRef ref{chain, record};
+              if (o.layout != PlanLayout::wide) {
+                const std::vector<DistrictIndex> copy(labels.begin(), labels.end());
+                write(plan_file_name(ref, rung),
+                      plan_csv_text(Plan(id_graph, run.district_count(), copy)));
+              }
+              if (o.layout != PlanLayout::files) {
+                wide_labels.emplace(ref, std::vector<DistrictIndex>(labels.begin(), labels.end()));
+              }
+            },
+            rung);
+        begin = end;
+      }
+    } catch (const StoreError& e) {
+      leave_out(result, bad, chain, run.record_count(chain), e.what());
+    }
+  }
   std::vector<std::pair<RecordRef, std::vector<DistrictIndex>>> wide_plans;
   for (const RecordRef& ref : chosen) {
-    if (left_out(bad, ref.chain)) continue;
-    std::vector<DistrictIndex> labels;
-    try {
-      labels = run.read_plan(ref.chain, ref.record, rung);
-    } catch (const StoreError& e) {
-      leave_out(result, bad, ref.chain, run.record_count(ref.chain), e.what());
-      continue;
-    }
-    if (o.layout != PlanLayout::wide) {
-      write(plan_file_name(ref, rung), plan_csv_text(Plan(id_graph, run.district_count(), labels)));
-    }
-    if (o.layout != PlanLayout::files) wide_plans.emplace_back(ref, std::move(labels));
+    const auto it = wide_labels.find(ref);
+    if (it != wide_labels.end()) wide_plans.emplace_back(ref, it->second);
   }
   // A chain found damaged while reading plans is left out of the tables too.
   std::erase_if(wide_plans, [&](const auto& p) { return left_out(bad, p.first.chain); });

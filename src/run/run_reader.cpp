@@ -115,6 +115,26 @@ std::vector<DistrictIndex> RunReader::read_plan(std::uint64_t chain, std::uint64
                           std::to_string(record + 1));
 }
 
+void RunReader::for_each_plan(
+    std::uint64_t chain, std::uint64_t first, std::uint64_t last,
+    const std::function<void(std::uint64_t, std::span<const DistrictIndex>)>& visit,
+    std::uint64_t rung) const {
+  const std::uint64_t index = store_index(chain, rung);
+  if (first > last || last >= record_count(chain)) {
+    throw std::out_of_range("chain " + std::to_string(chain) + " has " +
+                            std::to_string(record_count(chain)) + " records, not " +
+                            std::to_string(first) + ".." + std::to_string(last));
+  }
+  for (const auto& s : spans_of(chain)) {
+    if (s.records == 0 || s.first + s.records <= first || s.first > last) continue;
+    const std::uint64_t lo = std::max(first, s.first), hi = std::min(last, s.first + s.records - 1);
+    reader_of(s).for_each_plan(index, lo - s.first, hi - s.first,
+                               [&](std::size_t r, std::span<const DistrictIndex> plan) {
+                                 visit(s.first + r, plan);
+                               });
+  }
+}
+
 std::vector<double> RunReader::read_observables(std::uint64_t chain, std::uint64_t rung) const {
   const std::uint64_t index = store_index(chain, rung);
   const std::size_t width = state_.observable_names.size();

@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 
@@ -34,6 +35,24 @@ TEST(RunReader, ReadsEveryChainAcrossItsPlanFilesInOrder) {
     }
   }
   EXPECT_TRUE(reader.verify().empty());
+}
+
+TEST(RunReader, ForEachPlanVisitsAStretchAcrossFilesAsTheFixtureWroteIt) {
+  const auto dir = fresh_dir("for-each");
+  const auto run = test::write_fixture_run(dir, {.chains = 2, .ranks = 2, .segments = 3});
+  RunReader reader(dir.string());
+  const auto& plans = run.plans.at(1);  // 60 records in 3 files of 20
+  for (const auto [first, last] : {std::pair<std::uint64_t, std::uint64_t>{0, 59}, {13, 47}, {20, 20}}) {
+    std::uint64_t expected = first;
+    reader.for_each_plan(1, first, last, [&](std::uint64_t record, std::span<const DistrictIndex> plan) {
+      ASSERT_EQ(record, expected++);
+      EXPECT_TRUE(std::equal(plan.begin(), plan.end(), plans.at(record).begin(), plans.at(record).end()))
+          << "record " << record;
+    });
+    EXPECT_EQ(expected, last + 1) << "every record of the stretch, once";
+  }
+  EXPECT_THROW(reader.for_each_plan(1, 10, 60, [](auto, auto) {}), std::out_of_range);
+  EXPECT_THROW(reader.for_each_plan(1, 5, 4, [](auto, auto) {}), std::out_of_range);
 }
 
 TEST(RunReader, IgnoresPlanFilesTheStateDoesNotList) {

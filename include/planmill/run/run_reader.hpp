@@ -3,6 +3,7 @@
 // in order, as if they were one sequence. Files or records not in run-state.json are ignored.
 // With tempering and record = "all" a chain also has a sequence per hotter rung (rung 1..R-1),
 // recorded at the same steps; rung 0, the default, is the chain's ensemble.
+#include <functional>
 #include <map>
 #include <memory>
 #include <optional>
@@ -38,6 +39,13 @@ class RunReader {
   [[nodiscard]] const std::vector<std::string>& observable_names() const noexcept {
     return state_.observable_names;
   }
+  // Calls visit(record, plan) for the chain's records first..last in order, decoding each record
+  // once: the way to read many plans (read_plan starts again from a self-contained record every
+  // time). Throws as read_plan does.
+  void for_each_plan(
+      std::uint64_t chain, std::uint64_t first, std::uint64_t last,
+      const std::function<void(std::uint64_t, std::span<const DistrictIndex>)>& visit,
+      std::uint64_t rung = 0) const;
   // Row-major records x observables, over all of the chain's records.
   [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain,
                                                      std::uint64_t rung = 0) const;
