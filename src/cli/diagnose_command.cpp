@@ -14,6 +14,7 @@
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/manifest/manifest.hpp"
 #include "planmill/manifest/run_diagnostics.hpp"
+#include "planmill/temper/ladder_summary.hpp"
 
 namespace planmill::cli {
 namespace {
@@ -107,6 +108,12 @@ int diagnose_run_dir(const DiagnoseOptions& o) {
     std::cout << "left out: chain " << l.chain << ": " << l.why << "\n";
   print_verdict_table(d.verdict, std::cout);
   print_verdict(d.verdict, d.rule, std::cout);
+  for (const auto& chain : reader.state().chains) {
+    if (chain.ladder.empty()) continue;
+    const LadderReport ladder = describe_ladder(nlohmann::json::parse(chain.ladder));
+    std::cout << ladder.line << "\n";
+    for (const auto& w : ladder.warnings) std::cout << "warning: " << w << "\n";
+  }
   if (!d.left_out.empty()) {
     std::cout << "verdict: fail (" << d.left_out.size()
               << " chain(s) left out because their records are damaged; see planmill merge)\n";

@@ -281,6 +281,42 @@ TEST(Ladder, SnapshotPartsThatDoNotFitAreRefused) {
   EXPECT_THROW(Ladder(setup, {f.start()}), std::invalid_argument);
 }
 
+TEST(LadderReport, WarnsOfAPairThatRarelySwapsAndOfNoRoundTrips) {
+  // A crowded ladder: the last pair (1.9 -> 0.05) swaps in about 1% of attempts (see the tuning
+  // test below), the others in about 96%.
+  Fixture f;
+  f.rules.cut_edges_weight = 1.0;
+  Ladder crowded(f.setup(KernelKind::flip, {2.0, 1.95, 1.9, 0.05}, 1), {f.start()});
+  crowded.run(20000);
+  const LadderReport report = describe_ladder(ladder_summary(crowded));
+  EXPECT_NE(report.line.find("ladder 2: betas 2.000 1.950 1.900 0.050"), std::string::npos)
+      << report.line;
+  ASSERT_EQ(report.warnings.size(), 1U) << report.line;
+  EXPECT_NE(report.warnings[0].find("rungs 2 and 3"), std::string::npos) << report.warnings[0];
+
+  Ladder tuned(f.setup(KernelKind::flip, {2.0, 1.95, 1.9, 0.05}, 1), {f.start()});
+  tuned.tune(20000, {8});
+  tuned.run(20000);
+  EXPECT_TRUE(describe_ladder(ladder_summary(tuned)).warnings.empty());
+
+  // Worked by hand: 3 pairs with 600 attempts each are about 1,200 rounds (rounds alternate
+  // between 2 pairs and 1), no swap accepted, so no round trip either.
+  nlohmann::json stuck = ladder_summary(crowded);
+  for (auto& pair : stuck["pairs"]) pair["attempts"] = 600, pair["accepted"] = 0, pair["acceptance"] = 0.0;
+  stuck["round_trips"] = 0;
+  stuck["mean_round_trip_steps"] = nullptr;
+  const LadderReport none = describe_ladder(stuck);
+  ASSERT_EQ(none.warnings.size(), 4U);
+  EXPECT_NE(none.warnings[3].find("no replica went from the target rung to the hottest and back in "
+                                  "1200 swap rounds"),
+            std::string::npos)
+      << none.warnings[3];
+  stuck["pairs"][0]["attempts"] = 100;  // too few attempts to judge that pair, and fewer rounds
+  stuck["pairs"][1]["attempts"] = 100;
+  stuck["pairs"][2]["attempts"] = 100;
+  EXPECT_TRUE(describe_ladder(stuck).warnings.empty());
+}
+
 TEST(Ladder, TuningEqualisesNeighbourAcceptanceAndFreezes) {
   // Start from a badly spaced ladder (three rungs crowded near the target). After tuning the
   // spread of pair acceptances, measured on a fresh stretch, must be far smaller than before.
