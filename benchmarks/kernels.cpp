@@ -6,14 +6,21 @@
 #include <benchmark/benchmark.h>
 #include <unistd.h>
 
+#include <Eigen/SparseCholesky>
+#include <Eigen/SparseCore>
+#include <cmath>
 #include <filesystem>
 #include <memory>
+#include <utility>
+#include <vector>
 
 #include "planmill/chain/chain.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/synth/synth.hpp"
+#include "planmill/tree/region.hpp"
+#include "planmill/tree/tree_count.hpp"
 
 namespace {
 
@@ -66,12 +73,114 @@ void run_kernel(benchmark::State& bench, KernelKind kind, double gamma, double c
 void BM_Recombination(benchmark::State& s) { run_kernel(s, KernelKind::recombination, 0.0, 0.0); }
 void BM_MergeSplitTreeLaw(benchmark::State& s) { run_kernel(s, KernelKind::merge_split, 1.0, 0.0); }
 void BM_MergeSplitUniform(benchmark::State& s) { run_kernel(s, KernelKind::merge_split, 0.0, 0.0); }
+void BM_MergeSplitHalfGamma(benchmark::State& s) {
+  run_kernel(s, KernelKind::merge_split, 0.5, 0.0);
+}
 void BM_FlipCutEdges(benchmark::State& s) { run_kernel(s, KernelKind::flip, 0.0, 0.5); }
+
+// log τ alone, cycling over regions of the start plan: argument 0 = single districts (what
+// merge-split counts for γ != 1, ~100 units), 1 = pairs of adjacent districts (~200 units),
+// 2 = a district with the districts within two steps of it (~1,900 units; first 20 districts).
+std::vector<Region> count_regions(int kind) {
+  const State& s = benchmark_state();
+  const std::size_t k = s.start.district_count();
+  std::vector<std::vector<std::uint8_t>> adjacent(k, std::vector<std::uint8_t>(k, 0));
+  for (UnitIndex u = 0; u < s.graph.unit_count(); ++u)
+    for (const UnitIndex w : s.graph.neighbors(u))
+      adjacent[s.start.district_of(u)][s.start.district_of(w)] = 1;
+  std::vector<Region> regions;
+  for (DistrictIndex a = 0; a < k; ++a) {
+    if (kind == 0) regions.emplace_back().build(s.start, a, a);
+    if (kind == 1)
+      for (DistrictIndex b = a + 1; b < k; ++b)
+        if (adjacent[a][b]) regions.emplace_back().build(s.start, a, b);
+    if (kind == 2 && a < 20) {
+      std::vector<std::uint8_t> near = adjacent[a];
+      for (DistrictIndex b = 0; b < k; ++b)
+        if (adjacent[a][b])
+          for (DistrictIndex c = 0; c < k; ++c) near[c] |= adjacent[b][c];
+      std::vector<UnitIndex> units;
+      for (UnitIndex u = 0; u < s.graph.unit_count(); ++u)
+        if (near[s.start.district_of(u)]) units.push_back(u);
+      regions.emplace_back().build(s.graph, units);
+    }
+  }
+  return regions;
+}
+
+void report_sizes(benchmark::State& bench, const std::vector<Region>& regions) {
+  double units = 0;
+  for (const Region& r : regions) units += r.size();
+  bench.counters["regions"] = static_cast<double>(regions.size());
+  bench.counters["mean_units"] = units / static_cast<double>(regions.size());
+}
+
+void BM_TreeCount(benchmark::State& bench) {
+  const std::vector<Region> regions = count_regions(static_cast<int>(bench.range(0)));
+  TreeCounter counter;
+  double fill = 0;
+  for (const Region& r : regions) {
+    benchmark::DoNotOptimize(counter.log_count(r));
+    fill += static_cast<double>(counter.factor_entries());
+  }
+  std::size_t i = 0;
+  for (auto _ : bench) {
+    benchmark::DoNotOptimize(counter.log_count(regions[i]));
+    if (++i == regions.size()) i = 0;
+  }
+  report_sizes(bench, regions);
+  bench.counters["mean_factor_entries"] = fill / static_cast<double>(regions.size());
+}
+
+// The same log det by Eigen's SimplicialLLT (AMD ordering), the reference timing.
+struct EigenCounter {
+  std::vector<Eigen::Triplet<double>> triplets;
+  Eigen::SparseMatrix<double> laplacian;
+  Eigen::SimplicialLLT<Eigen::SparseMatrix<double>> cholesky;
+
+  double log_count(const Region& r) {
+    const auto m = static_cast<int>(r.size()) - 1;
+    triplets.clear();
+    for (int u = 0; u < m; ++u) {
+      triplets.emplace_back(u, u, static_cast<double>(r.degree(u)));
+      for (const std::uint32_t w : r.neighbors(u))
+        if (static_cast<int>(w) < m) triplets.emplace_back(u, w, -1.0);
+    }
+    laplacian.resize(m, m);
+    laplacian.setFromTriplets(triplets.begin(), triplets.end());
+    cholesky.compute(laplacian);
+    double log_det = 0;
+    // SimplicialLLT keeps the diagonal first in each column of L.
+    const Eigen::SparseMatrix<double>& l = cholesky.matrixL().nestedExpression();
+    for (int j = 0; j < m; ++j) log_det += std::log(l.valuePtr()[l.outerIndexPtr()[j]]);
+    return 2.0 * log_det;
+  }
+};
+
+void BM_TreeCountEigen(benchmark::State& bench) {
+  const std::vector<Region> regions = count_regions(static_cast<int>(bench.range(0)));
+  EigenCounter counter;
+  double fill = 0;
+  for (const Region& r : regions) {
+    benchmark::DoNotOptimize(counter.log_count(r));
+    fill += static_cast<double>(counter.cholesky.matrixL().nestedExpression().nonZeros());
+  }
+  std::size_t i = 0;
+  for (auto _ : bench) {
+    benchmark::DoNotOptimize(counter.log_count(regions[i]));
+    if (++i == regions.size()) i = 0;
+  }
+  report_sizes(bench, regions);
+  bench.counters["mean_factor_entries"] = fill / static_cast<double>(regions.size());
+}
 
 BENCHMARK(BM_Recombination)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_MergeSplitTreeLaw)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_MergeSplitUniform)->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_MergeSplitHalfGamma)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_FlipCutEdges)->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_TreeCount)->Arg(0)->Arg(1)->Arg(2)->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_TreeCountEigen)->Arg(0)->Arg(1)->Arg(2)->Unit(benchmark::kMicrosecond);
 
 }  // namespace
 

@@ -27,8 +27,7 @@ TEST_P(NoAllocation, LadderStepsAfterWarmUp) {
   LadderSetup setup;
   setup.chain = ChainSetup{&graph, rules, {}, 3, 0};
   setup.chain.kernel.kind = GetParam();
-  // gamma = 1: merge-split needs no tree counts. (With gamma != 1 the tree counter allocates on
-  // its own, a matter of the tree part, not of the ladder.)
+  // gamma = 1: merge-split needs no tree counts (gamma != 1 is the test below).
   setup.chain.kernel.gamma = 1.0;
   setup.betas = geometric_betas(1.0, 0.1, 4);
   setup.swap_every = 1;
@@ -38,6 +37,35 @@ TEST_P(NoAllocation, LadderStepsAfterWarmUp) {
   ladder.run(5000);
   EXPECT_EQ(planmill::test::allocations() - before, 0u);
   EXPECT_GT(ladder.statistics().swap_accepts[0], 0u);
+}
+
+TEST(NoAllocationTreeCounts, MergeSplitAtHalfGammaAfterWarmUp) {
+  // gamma = 0.5: every proposed split counts the spanning trees of both new districts. Same
+  // ladder as above; the warm-up must have met the largest district the chain reaches (a larger
+  // one later grows the tree sampler's and the tree counter's buffers once, as promised).
+  const UnitGraph graph = test::grid(6, 6);
+  RuleSet rules;
+  rules.population_deviation = 0.2;
+  rules.cut_edges_weight = 0.5;
+  Rng seed_rng = make_stream(4, 0);
+  LadderSetup setup;
+  setup.chain = ChainSetup{&graph, rules, {}, 3, 0};
+  setup.chain.kernel.kind = KernelKind::merge_split;
+  setup.chain.kernel.gamma = 0.5;
+  setup.betas = geometric_betas(1.0, 0.1, 4);
+  setup.swap_every = 1;
+  Ladder ladder(setup, {random_seed_plan(graph, 3, rules, seed_rng)});
+  ladder.run(10000);
+  const std::size_t before = planmill::test::allocations();
+  ladder.run(5000);
+  EXPECT_EQ(planmill::test::allocations() - before, 0u);
+  std::uint64_t counted = 0;  // steps that reached the tree counts: accepted or rejected
+  for (std::size_t i = 0; i < 4; ++i) {
+    const auto& outcomes = ladder.replica(i).counters().outcomes;
+    counted += outcomes[static_cast<std::size_t>(StepResult::accepted)] +
+               outcomes[static_cast<std::size_t>(StepResult::rejected)];
+  }
+  EXPECT_GT(counted, 100u);
 }
 
 INSTANTIATE_TEST_SUITE_P(Kernels, NoAllocation,

@@ -1,8 +1,10 @@
-// Hot-loop promise: once warmed up, Region::build, SpanningTreeSampler::sample and the tree
-// queries allocate nothing. Counted by replacing the global operator new in this test program.
+// Hot-loop promise: once warmed up, Region::build, SpanningTreeSampler::sample, the tree
+// queries and TreeCounter::log_count allocate nothing. Counted by replacing the global operator new in this test program.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <atomic>
+#include <cmath>
 #include <cstdlib>
 #include <new>
 #include <numeric>
@@ -12,7 +14,9 @@
 #include "planmill/plan/plan.hpp"
 #include "planmill/tree/region.hpp"
 #include "planmill/tree/spanning_tree.hpp"
+#include "planmill/tree/tree_count.hpp"
 #include "count_allocations.hpp"
+#include "random_regions.hpp"
 #include "small_graphs.hpp"
 
 
@@ -55,6 +59,35 @@ TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
   EXPECT_EQ(region.capacity_bytes(), region_bytes);
   EXPECT_EQ(sampler.capacity_bytes(), sampler_bytes);
   EXPECT_GT(cuts, 0U);  // the loop did reach the cut code
+}
+
+TEST(NoAllocation, TreeCountsAfterWarmUpOnTheLargestRegion) {
+  // Warm-up: the whole 24 x 24 planar grid (576 units). Then 300 random connected sub-regions
+  // (holes, up to 576 units) of fresh random planar grids of that size, built beforehand.
+  Rng rng = make_stream(82, 0);
+  std::vector<UnitGraph> graphs;
+  std::vector<Region> regions(300);
+  for (int g = 0; g < 10; ++g) graphs.push_back(planar_grid(24, 24, 0.2 + 0.07 * g, rng));
+  std::size_t largest = 0;
+  for (std::size_t i = 0; i < regions.size(); ++i) {
+    const UnitGraph& g = graphs[i % graphs.size()];
+    regions[i].build(g, connected_region(g, 0.3 * uniform01(rng), rng));
+    largest = std::max<std::size_t>(largest, regions[i].size());
+  }
+  TreeCounter counter;
+  Region whole;
+  std::vector<UnitIndex> all(576);
+  std::iota(all.begin(), all.end(), 0);
+  whole.build(graphs.back(), all);
+  double sum = counter.log_count(whole);
+  const std::size_t bytes = counter.capacity_bytes();
+
+  const std::size_t before = planmill::test::allocations();
+  for (const Region& r : regions) sum += counter.log_count(r);
+  EXPECT_EQ(planmill::test::allocations() - before, 0U);
+  EXPECT_EQ(counter.capacity_bytes(), bytes);
+  EXPECT_GT(largest, 400U);       // the regions came close to the warm-up size
+  EXPECT_TRUE(std::isfinite(sum));  // every region was connected and counted
 }
 
 TEST(NoAllocation, CounterSeesAllocations) {

@@ -3,11 +3,16 @@
 
 #include <gtest/gtest.h>
 
+#include <Eigen/SparseCholesky>
+#include <Eigen/SparseCore>
+#include <algorithm>
 #include <cmath>
 #include <limits>
+#include <string>
 #include <vector>
 
 #include "planmill/tree/region.hpp"
+#include "random_regions.hpp"
 #include "small_graphs.hpp"
 
 namespace planmill::test {
@@ -107,6 +112,109 @@ TEST(TreeCount, RegionOverloadCountsTheInducedSubgraph) {
   const std::vector<UnitIndex> corners = {0, 15};
   region.build(g, corners);
   EXPECT_EQ(counter.log_count(region), -std::numeric_limits<double>::infinity());
+}
+
+// Reference: Eigen 3's SimplicialLLT (Debian's libeigen3-dev, its own AMD ordering) on the same
+// reduced Laplacian, last local vertex removed; log det = 2 Σ log L_jj.
+double eigen_log_count(const Region& region) {
+  const auto m = static_cast<int>(region.size()) - 1;
+  std::vector<Eigen::Triplet<double>> triplets;
+  for (int u = 0; u < m; ++u) {
+    triplets.emplace_back(u, u, static_cast<double>(region.degree(u)));
+    for (const std::uint32_t w : region.neighbors(u))
+      if (static_cast<int>(w) < m) triplets.emplace_back(u, w, -1.0);
+  }
+  Eigen::SparseMatrix<double> laplacian(m, m);
+  laplacian.setFromTriplets(triplets.begin(), triplets.end());
+  const Eigen::SimplicialLLT<Eigen::SparseMatrix<double>> cholesky(laplacian);
+  EXPECT_EQ(cholesky.info(), Eigen::Success);
+  double log_det = 0.0;
+  const Eigen::SparseMatrix<double>& l = cholesky.matrixL().nestedExpression();
+  for (int j = 0; j < m; ++j) log_det += std::log(l.coeff(j, j));
+  return 2.0 * log_det;
+}
+
+// Relative 1e-10 (absolute for log τ below 1, e.g. trees with log τ = 0): both factorisations
+// are backward stable, so they agree to a few ulps times the growth of the pivots.
+void expect_matches_eigen(double ours, double reference, const std::string& what) {
+  EXPECT_NEAR(ours, reference, 1e-10 * std::max(1.0, std::abs(reference))) << what;
+}
+
+TEST(TreeCount, MatchesEigenOnRandomPlanarRegions) {
+  Rng rng = make_stream(2024, 5);
+  TreeCounter counter;  // reused across sizes, as in a chain
+  Region region;
+  std::size_t largest = 0;
+  for (int trial = 0; trial < 400; ++trial) {
+    const std::uint32_t rows = 2 + uniform_below(rng, 30), cols = 2 + uniform_below(rng, 30);
+    const UnitGraph g = planar_grid(rows, cols, uniform01(rng), rng);
+    const std::vector<UnitIndex> units = connected_region(g, 0.35 * uniform01(rng), rng);
+    region.build(g, units);
+    largest = std::max<std::size_t>(largest, units.size());
+    if (units.size() < 2) {
+      EXPECT_EQ(counter.log_count(region), 0.0);
+      continue;
+    }
+    expect_matches_eigen(counter.log_count(region), eigen_log_count(region),
+                         "trial " + std::to_string(trial) + ", " +
+                             std::to_string(units.size()) + " units");
+  }
+  EXPECT_GT(largest, 500U);  // the trials did reach large regions
+}
+
+TEST(TreeCount, MatchesEigenOnRegionsOfTwoThousandUnits) {
+  Rng rng = make_stream(2024, 6);
+  TreeCounter counter;
+  Region region;
+  for (int trial = 0; trial < 4; ++trial) {
+    const UnitGraph g = planar_grid(46, 46, 0.6, rng);
+    const std::vector<UnitIndex> units = connected_region(g, 0.03, rng);
+    region.build(g, units);
+    EXPECT_GT(units.size(), 1500U);
+    expect_matches_eigen(counter.log_count(region), eigen_log_count(region),
+                         std::to_string(units.size()) + " units");
+  }
+}
+
+TEST(TreeCount, RandomUnitSetsAreMinusInfinityExactlyWhenDisconnected) {
+  // Kept units of a holed grid, without taking a component: disconnected about half the time.
+  Rng rng = make_stream(2024, 7);
+  TreeCounter counter;
+  Region region;
+  int disconnected = 0, connected = 0;
+  for (int trial = 0; trial < 300; ++trial) {
+    const std::uint32_t rows = 2 + uniform_below(rng, 6), cols = 2 + uniform_below(rng, 6);
+    const UnitGraph g = planar_grid(rows, cols, 0.5, rng);
+    std::vector<UnitIndex> units;
+    for (UnitIndex u = 0; u < rows * cols; ++u)
+      if (uniform01(rng) >= 0.3) units.push_back(u);
+    if (units.empty()) continue;
+    region.build(g, units);
+    // Own connectivity check: union-find over the region's edges.
+    std::vector<std::uint32_t> root(region.size());
+    for (std::uint32_t i = 0; i < region.size(); ++i) root[i] = i;
+    const auto find = [&root](std::uint32_t i) {
+      while (root[i] != i) i = root[i] = root[root[i]];
+      return i;
+    };
+    std::uint32_t components = region.size();
+    for (std::uint32_t i = 0; i < region.size(); ++i)
+      for (const std::uint32_t w : region.neighbors(i))
+        if (find(i) != find(w)) {
+          root[find(i)] = find(w);
+          --components;
+        }
+    const double ours = counter.log_count(region);
+    if (components > 1) {
+      ++disconnected;
+      EXPECT_EQ(ours, -std::numeric_limits<double>::infinity()) << "trial " << trial;
+    } else if (region.size() > 1) {
+      ++connected;
+      expect_matches_eigen(ours, eigen_log_count(region), "trial " + std::to_string(trial));
+    }
+  }
+  EXPECT_GT(disconnected, 30);
+  EXPECT_GT(connected, 30);
 }
 
 }  // namespace
