@@ -1,5 +1,6 @@
 // Hot-loop promise: once warmed up, Region::build, SpanningTreeSampler::sample, the tree
-// queries and TreeCounter::log_count allocate nothing. Counted by replacing the global operator new in this test program.
+// queries and TreeCounter::log_count allocate nothing. Counted by replacing the global operator
+// new in this test program.
 #include <gtest/gtest.h>
 
 #include <algorithm>
