@@ -1,7 +1,8 @@
 // Proposals per second of each kernel on the benchmark state: `synth` with 10,000 units and 100
 // districts (seed 7), rules at ±5% population deviation, a chain started from a random seed plan.
 // One proposal = one Chain::step(), whatever its outcome (accepted, rejected, no balanced cut,
-// invalid). Counters report the outcome fractions.
+// invalid). Counters report the outcome fractions. BM_TreeCount / BM_TreeCountEigen time the
+// spanning-tree count that merge-split needs for γ != 1, ours and Eigen's, on regions of that state.
 //   build/benchmarks/bench_kernels --benchmark_min_time=3
 #include <benchmark/benchmark.h>
 #include <unistd.h>
