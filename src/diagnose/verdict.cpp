@@ -69,7 +69,8 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
                      "leave out observables that cannot vary";
     } else if (rhat_bad) {
       f.suggestion = "chains disagree: run more steps; if chains stay in different regions, "
-                     "use tempering or start more chains from dispersed plans";
+                     "use tempering (a tempered run: more rungs or a hotter top rung) or start "
+                     "more chains from dispersed plans";
     } else {
       // ESS grows about linearly in steps and in chains once the chains have mixed.
       const double factor = rule.ess_min / std::min(q.ess_bulk, no_tail ? q.ess_bulk : q.ess_tail);

@@ -832,7 +832,8 @@ class ChainRunner {
     } else if (end == RunEnd::budget_spent) {
       out.summary += "\nnot converged within --max-steps " + std::to_string(options_.max_steps) +
                      " steps per chain; failing:" + verdict_summary_ +
-                     "\n  run longer, start more chains, or use tempering";
+                     "\n  run longer, start more chains, or " +
+                     (tempered() ? "add rungs to the ladders" : "use tempering");
     }
     return out;
   }
