@@ -116,13 +116,15 @@ void report_sizes(benchmark::State& bench, const std::vector<Region>& regions) {
   bench.counters["mean_units"] = units / static_cast<double>(regions.size());
 }
 
-void BM_TreeCount(benchmark::State& bench) {
+// Times counter.log_count over the regions in turn; factor_entries(counter) is the fill of the
+// last factor.
+template <class Counter, class FactorEntries>
+void time_tree_counts(benchmark::State& bench, Counter& counter, FactorEntries factor_entries) {
   const std::vector<Region> regions = count_regions(static_cast<int>(bench.range(0)));
-  TreeCounter counter;
   double fill = 0;
   for (const Region& r : regions) {
     benchmark::DoNotOptimize(counter.log_count(r));
-    fill += static_cast<double>(counter.factor_entries());
+    fill += static_cast<double>(factor_entries(counter));
   }
   std::size_t i = 0;
   for (auto _ : bench) {
@@ -131,6 +133,11 @@ void BM_TreeCount(benchmark::State& bench) {
   }
   report_sizes(bench, regions);
   bench.counters["mean_factor_entries"] = fill / static_cast<double>(regions.size());
+}
+
+void BM_TreeCount(benchmark::State& bench) {
+  TreeCounter counter;
+  time_tree_counts(bench, counter, [](const TreeCounter& c) { return c.factor_entries(); });
 }
 
 // The same log det by Eigen's SimplicialLLT (AMD ordering), the reference timing.
@@ -159,20 +166,10 @@ struct EigenCounter {
 };
 
 void BM_TreeCountEigen(benchmark::State& bench) {
-  const std::vector<Region> regions = count_regions(static_cast<int>(bench.range(0)));
   EigenCounter counter;
-  double fill = 0;
-  for (const Region& r : regions) {
-    benchmark::DoNotOptimize(counter.log_count(r));
-    fill += static_cast<double>(counter.cholesky.matrixL().nestedExpression().nonZeros());
-  }
-  std::size_t i = 0;
-  for (auto _ : bench) {
-    benchmark::DoNotOptimize(counter.log_count(regions[i]));
-    if (++i == regions.size()) i = 0;
-  }
-  report_sizes(bench, regions);
-  bench.counters["mean_factor_entries"] = fill / static_cast<double>(regions.size());
+  time_tree_counts(bench, counter, [](const EigenCounter& c) {
+    return c.cholesky.matrixL().nestedExpression().nonZeros();
+  });
 }
 
 BENCHMARK(BM_Recombination)->Unit(benchmark::kMicrosecond);
