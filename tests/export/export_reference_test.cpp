@@ -1,5 +1,5 @@
 // Reference check against h5py + numpy (Debian python3-h5py, python3-numpy via /usr/bin/python3):
-// a Python reader that follows docs/format.md decodes every plan of a run straight from its HDF5
+// a Python reader that follows docs/format.md (tests/support/plan_records.py) decodes every plan of a run straight from its HDF5
 // plan files (in the order run-state.json lists them) and compares plans and observables with
 // what `planmill export` wrote as CSV.
 #include <gtest/gtest.h>
@@ -22,107 +22,19 @@ namespace fs = std::filesystem;
 const char* const kPythonCheck = R"PY(
 import csv, json, math, os, re, sys
 import h5py
-import numpy as np
+from plan_records import records  # tests/support/plan_records.py
 
 run_dir, out_dir, units_csv, id_column = sys.argv[1:5]
 rung = int(sys.argv[5]) if len(sys.argv) > 5 else 0
 group_of = lambda c: c if rung == 0 else (1 << 40) + 64 * c + rung
 suffix = "" if rung == 0 else "-rung-%d" % rung
 
-def varint(b, i):
-    v = s = 0
-    while True:
-        v |= (int(b[i]) & 0x7F) << s
-        i += 1
-        if not b[i - 1] & 0x80:
-            return v, i
-        s += 7
-
-# Graph records (kind 4), decoded as docs/format.md ("Graph records", "Reading with h5py") says.
-class RangeDecoder:
-    def __init__(self, b):
-        self.b, self.at, self.range = b, 5, 0xFFFFFFFF
-        self.code = int.from_bytes(bytes(b[:5]), "big")
-    def normalize(self):
-        while self.range < 1 << 24:
-            self.range = (self.range << 8) & 0xFFFFFFFF
-            self.code = ((self.code << 8) | int(self.b[self.at])) & 0xFFFFFFFF
-            self.at += 1
-    def bit(self, p, i):
-        bound = (self.range >> 11) * p[i]
-        if self.code < bound:
-            self.range, p[i], bit = bound, p[i] + ((2048 - p[i]) >> 5), 0
-        else:
-            self.code -= bound; self.range -= bound; p[i] -= p[i] >> 5; bit = 1
-        self.normalize(); return bit
-    def direct(self):
-        self.range >>= 1
-        bit = int(self.code >= self.range)
-        if bit: self.code -= self.range
-        self.normalize(); return bit
-
-def graph_plan(b, lower, k):
-    rc, p, plan, latest, prev = RangeDecoder(b), [1024] * 86, [0] * len(lower), {}, -1
-    for u in range(len(lower)):
-        count = {}
-        for v in lower[u]: count[plan[v]] = count.get(plan[v], 0) + 1
-        cands = sorted(count, key=lambda d: (-count[d], d))
-        label = None
-        for i, d in enumerate(cands):
-            ctx = (((min(len(cands), 3) - 1) * 3 + min(i, 2)) * 3 + min(count[d], 3) - 1) * 2
-            if rc.bit(p, ctx + (d == prev)): label = d; break
-        if label is None:
-            g, length, m = 54 + (16 if cands else 0), 1, 1
-            while rc.bit(p, g + length - 1): length += 1
-            for _ in range(length - 1): m = 2 * m + rc.direct()
-            rest = sorted((d for d in range(k) if d not in count),
-                          key=lambda d: (-latest.get(d, -1), d))
-            label = rest[m - 1]
-        plan[u], latest[label], prev = label, u, label
-    return np.array(plan, dtype=np.int64)
-
 kinds_seen = set()
 
 def decode(f, chain):
-    k = int(f.attrs["district_count"])
-    w = 1 if k <= 255 else 2
-    lower = None
-    if "unit_adjacency" in f:
-        off, nb = f["unit_adjacency/offsets"][...], f["unit_adjacency/neighbors"][...]
-        lower = [[int(v) for v in nb[off[u]:off[u + 1]] if v < u] for u in range(len(off) - 1)]
-    g = f["chain_%d" % group_of(chain)]
-    data, plan = g["plan_bytes"][...], None
-    lab = lambda b, i: int.from_bytes(bytes(b[i:i + w]), "little")
-    for step, off, length, kind in g["plan_records"][...]:
-        b = data[off:off + length]
-        kinds_seen.add(int(kind))
-        if kind == 0:
-            plan = (b.view("<u2") if w == 2 else b).astype(np.int64)
-        elif kind == 4:
-            plan = graph_plan(b, lower, k)
-        elif kind == 1:
-            pass
-        elif kind == 2:
-            a, c = lab(b, 0), lab(b, w)
-            members = np.flatnonzero((plan == a) | (plan == c))
-            bits = np.unpackbits(b[2 * w:], bitorder="little")[:len(members)]
-            plan[members] = np.where(bits == 1, c, a)
-        elif kind == 3:
-            i = u = 0
-            guess = {}
-            while i < len(b):
-                gap, i = varint(b, i)
-                coded, i = varint(b, i)
-                u += gap
-                old = int(plan[u])
-                if coded % 2:
-                    guess[old] = lab(b, i)
-                    i += w
-                plan[u:u + coded // 2] = guess[old]
-                u += coded // 2
-        else:
-            sys.exit("record kind %d is not decoded by this reader" % kind)
-        yield int(step), plan.copy()
+    for step, kind, plan in records(f, "chain_%d" % group_of(chain)):
+        kinds_seen.add(kind)
+        yield step, plan
 
 state = json.load(open(os.path.join(run_dir, "run-state.json")))
 plans, steps, obs, names = {}, {}, {}, None
@@ -199,7 +111,8 @@ print("kinds " + " ".join(str(x) for x in sorted(kinds_seen)))
 std::string python_check(const test::TempDir& dir, const fs::path& run_dir, const fs::path& out_dir,
                          const fs::path& units_csv, std::uint64_t rung = 0) {
   const std::string script = dir.write("check.py", kPythonCheck);
-  const std::string command = "/usr/bin/python3 " + script + " " + run_dir.string() + " " +
+  const std::string command = "PYTHONPATH=" PLANMILL_SOURCE_DIR "/tests/support /usr/bin/python3 " +
+                              script + " " + run_dir.string() + " " +
                               out_dir.string() + " " + units_csv.string() + " unit " +
                               std::to_string(rung) + " 2>&1";
   FILE* pipe = ::popen(command.c_str(), "r");

@@ -1,6 +1,6 @@
 // Reference check against h5py + numpy (Debian python3-h5py, python3-numpy via /usr/bin/python3):
-// an independent Python reader, written from docs/format.md alone (range decoder included),
-// decodes every recorded plan and reads the observables table; both must equal planmill's own
+// an independent Python reader (tests/support/plan_records.py), written from docs/format.md alone
+// (range decoder included), decodes every recorded plan and reads the observables table; both must equal planmill's own
 // EnsembleReader exactly.
 #include <gtest/gtest.h>
 #include <unistd.h>
@@ -24,81 +24,10 @@ namespace fs = std::filesystem;
 const char* const kPythonReader = R"PY(
 import sys
 import h5py
-import numpy as np
+from plan_records import records  # tests/support/plan_records.py
 
 f = h5py.File(sys.argv[1], "r")
-n = int(f.attrs["unit_count"])
-k = int(f.attrs["district_count"])
-w = 1 if k <= 255 else 2
 out = open(sys.argv[2], "w")
-
-def label(b, i):
-    return int.from_bytes(bytes(b[i:i + w]), "little")
-
-def varint(b, i):
-    v, shift = 0, 0
-    while True:
-        v |= (int(b[i]) & 0x7F) << shift
-        i += 1
-        if not b[i - 1] & 0x80:
-            return v, i
-        shift += 7
-
-lower = None  # per unit: its neighbours v < u, from /unit_adjacency (docs/format.md)
-if "unit_adjacency" in f:
-    offsets = f["unit_adjacency/offsets"][...]
-    neighbors = f["unit_adjacency/neighbors"][...]
-    lower = [[int(v) for v in neighbors[offsets[u]:offsets[u + 1]] if v < u] for u in range(n)]
-
-class RangeDecoder:
-    def __init__(self, b):
-        self.b, self.at = b, 5
-        self.range, self.code = 0xFFFFFFFF, int.from_bytes(bytes(b[:5]), "big")
-    def normalize(self):
-        while self.range < 1 << 24:
-            self.range = (self.range << 8) & 0xFFFFFFFF
-            self.code = ((self.code << 8) | int(self.b[self.at])) & 0xFFFFFFFF
-            self.at += 1
-    def bit(self, p, i):
-        bound = (self.range >> 11) * p[i]
-        if self.code < bound:
-            self.range, p[i], bit = bound, p[i] + ((2048 - p[i]) >> 5), 0
-        else:
-            self.code, self.range, p[i], bit = self.code - bound, self.range - bound, p[i] - (p[i] >> 5), 1
-        self.normalize()
-        return bit
-    def direct(self):
-        self.range >>= 1
-        bit = int(self.code >= self.range)
-        if bit:
-            self.code -= self.range
-        self.normalize()
-        return bit
-
-def graph_plan(b):
-    rc, p, plan, latest, prev = RangeDecoder(b), [1024] * 86, [0] * n, {}, -1
-    for u in range(n):
-        count = {}
-        for v in lower[u]:
-            count[plan[v]] = count.get(plan[v], 0) + 1
-        cands = sorted(count, key=lambda d: (-count[d], d))
-        label = None
-        for i, d in enumerate(cands):
-            ctx = (((min(len(cands), 3) - 1) * 3 + min(i, 2)) * 3 + min(count[d], 3) - 1) * 2
-            if rc.bit(p, ctx + (d == prev)):
-                label = d
-                break
-        if label is None:
-            g, length, m = 54 + (16 if cands else 0), 1, 1
-            while rc.bit(p, g + length - 1):
-                length += 1
-            for _ in range(length - 1):
-                m = 2 * m + rc.direct()
-            rest = sorted((d for d in range(k) if d not in count), key=lambda d: (-latest.get(d, -1), d))
-            label = rest[m - 1]
-        plan[u], latest[label], prev = label, u, label
-    assert rc.at == len(b)
-    return np.array(plan, dtype=np.int64)
 
 for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g[6:])):
     g = f[name]
@@ -107,34 +36,11 @@ for name in sorted((g for g in f if g.startswith("chain_")), key=lambda g: int(g
     names = [s.decode() if isinstance(s, bytes) else str(s) for s in g["observables"].attrs["names"]]
     for j, col in enumerate(names):
         out.write("obs %s %s %s\n" % (chain, col, " ".join(repr(float(x)) for x in obs[:, j])))
-    records = g["plan_records"][...]
-    data = g["plan_bytes"][...]
-    plan = None
-    out.write("kinds %s %s\n" % (chain, " ".join(str(int((records[:, 3] == c).sum())) for c in range(5))))
-    for step, offset, length, kind in records:
-        b = data[offset:offset + length]
-        if kind == 0:
-            plan = (b.view("<u2") if w == 2 else b).astype(np.int64)
-        elif kind == 4:
-            plan = graph_plan(b)
-        elif kind == 2:
-            a, c = label(b, 0), label(b, w)
-            members = np.flatnonzero((plan == a) | (plan == c))
-            bits = np.unpackbits(b[2 * w:], bitorder="little")[:len(members)]
-            plan[members] = np.where(bits == 1, c, a)
-        elif kind == 3:
-            i, u, guess = 0, 0, {}
-            while i < len(b):
-                gap, i = varint(b, i)
-                coded, i = varint(b, i)
-                u += gap
-                run, old = coded // 2, int(plan[u])
-                if coded % 2:
-                    guess[old] = label(b, i)
-                    i += w
-                plan[u:u + run] = guess[old]
-                u += run
+    counts = [0] * 5
+    for step, kind, plan in records(f, name):
+        counts[kind] += 1
         out.write("plan %s %d %s\n" % (chain, step, " ".join(str(x) for x in plan)))
+    out.write("kinds %s %s\n" % (chain, " ".join(str(c) for c in counts)))
 )PY";
 
 // Grid of `width` columns in row-major unit order, for files that carry a unit adjacency.
@@ -202,7 +108,8 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
   }
   std::ofstream(script) << kPythonReader;
   const std::string command =
-      "/usr/bin/python3 " + script.string() + " " + file.string() + " " + output.string();
+      "PYTHONPATH=" PLANMILL_SOURCE_DIR "/tests/support /usr/bin/python3 " + script.string() + " " +
+      file.string() + " " + output.string();
   ASSERT_EQ(std::system(command.c_str()), 0) << command;
 
   EnsembleReader reader(file.string());
