@@ -210,9 +210,9 @@ ExportResult export_run(const ExportOptions& o) {
               ++next;
               const RecordRef ref{chain, record};
               if (o.layout != PlanLayout::wide) {
-                const std::vector<DistrictIndex> copy(labels.begin(), labels.end());
                 write(plan_file_name(ref, rung),
-                      plan_csv_text(Plan(id_graph, run.district_count(), copy)));
+                      plan_csv_text(Plan(id_graph, run.district_count(),
+                                         std::vector<DistrictIndex>(labels.begin(), labels.end()))));
               }
               if (o.layout != PlanLayout::files) {
                 wide_labels.emplace(ref, std::vector<DistrictIndex>(labels.begin(), labels.end()));
@@ -225,10 +225,11 @@ ExportResult export_run(const ExportOptions& o) {
       leave_out(result, bad, chain, run.record_count(chain), e.what());
     }
   }
-  std::vector<std::pair<RecordRef, std::vector<DistrictIndex>>> wide_plans;
+  // The wide table's columns in the order chosen, pointing into wide_labels.
+  std::vector<std::pair<RecordRef, const std::vector<DistrictIndex>*>> wide_plans;
   for (const RecordRef& ref : chosen) {
     const auto it = wide_labels.find(ref);
-    if (it != wide_labels.end()) wide_plans.emplace_back(ref, it->second);
+    if (it != wide_labels.end()) wide_plans.emplace_back(ref, &it->second);
   }
   // A chain found damaged while reading plans is left out of the tables too.
   std::erase_if(wide_plans, [&](const auto& p) { return left_out(bad, p.first.chain); });
@@ -259,7 +260,7 @@ ExportResult export_run(const ExportOptions& o) {
       wide += csv_field(ids[u]);
       for (const auto& p : wide_plans) {
         wide += ',';
-        wide += std::to_string(static_cast<unsigned>(p.second[u]) + 1);
+        wide += std::to_string(static_cast<unsigned>((*p.second)[u]) + 1);
       }
       wide += '\n';
     }
