@@ -107,16 +107,12 @@ int diagnose_run_dir(const DiagnoseOptions& o) {
   for (const auto& l : d.left_out)
     std::cout << "left out: chain " << l.chain << ": " << l.why << "\n";
   print_verdict_table(d.verdict, std::cout);
-  print_verdict(d.verdict, d.rule, std::cout);
+  print_verdict(d.verdict, d.rule, std::cout, d.left_out.size());
   for (const auto& chain : reader.state().chains) {
     if (chain.ladder.empty()) continue;
     const LadderReport ladder = describe_ladder(nlohmann::json::parse(chain.ladder));
     std::cout << ladder.line << "\n";
     for (const auto& w : ladder.warnings) std::cout << "warning: " << w << "\n";
-  }
-  if (!d.left_out.empty()) {
-    std::cout << "verdict: fail (" << d.left_out.size()
-              << " chain(s) left out because their records are damaged; see planmill merge)\n";
   }
   write_manifest_diagnostics(reader, problems, d);
   std::cout << "diagnostics written to " << reader.layout().manifest().string() << "\n";

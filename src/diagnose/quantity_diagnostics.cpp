@@ -12,7 +12,17 @@ using namespace detail;
 QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
   QuantityDiagnostics q{
-      std::move(name), kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, {}};
+      std::move(name), kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, {}, false, false};
+  if (x.shape_matches() && !x.values.empty() && x.chains > 0) {
+    bool within = true;
+    for (std::size_t c = 0; c < x.chains && within; ++c) {
+      const auto chain = x.chain(c);
+      within = std::all_of(chain.begin(), chain.end(), [&](double v) { return v == chain[0]; });
+    }
+    q.all_equal = within && std::all_of(x.values.begin(), x.values.end(),
+                                        [&](double v) { return v == x.values[0]; });
+    q.constant_within_chains = within && !q.all_equal && x.chains > 1;
+  }
   auto note = [&q](const Estimate& e) {
     if (!e.ok() && q.note.empty()) q.note = std::string(e.reason);
     return e.value;

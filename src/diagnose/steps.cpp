@@ -377,7 +377,8 @@ double pooled_sd(std::span<const double> v) {
   }
   if (i < v.size()) s0 += (v[i] - mu) * (v[i] - mu);
   const long double squares = s0 + s1;
-  return std::sqrt(static_cast<double>(squares / static_cast<long double>(v.size() - 1)));
+  // The root in long double: squares of values near 1e-170 underflow a double to 0.
+  return static_cast<double>(std::sqrt(squares / static_cast<long double>(v.size() - 1)));
 }
 
 }  // namespace planmill::diagnose::detail

@@ -17,10 +17,11 @@ std::string number(double v, const char* format) {
 
 }  // namespace
 
-bool is_constant(const QuantityDiagnostics& q) { return std::isfinite(q.mean) && q.sd == 0.0; }
+// Exact equality of the draws themselves (never sd == 0, which tiny varying values underflow to).
+bool is_constant(const QuantityDiagnostics& q) { return q.all_equal; }
 
 bool lacks_tail_only(const QuantityDiagnostics& q) {
-  return !is_constant(q) && std::isnan(q.ess_tail) && !std::isnan(q.rhat) && !std::isnan(q.ess_bulk);
+  return !is_constant(q) && !q.constant_within_chains && std::isnan(q.ess_tail) && !std::isnan(q.rhat) && !std::isnan(q.ess_bulk);
 }
 
 double severity(const QuantityDiagnostics& q, const VerdictRule& rule) {
@@ -62,9 +63,18 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
     if (rhat_bad) add("R-hat " + number(q.rhat, "%.4f") + " >= " + number(rule.rhat_max, "%g"));
     if (bulk_bad) add("bulk ESS " + number(q.ess_bulk, "%.0f") + " <= " + number(rule.ess_min, "%g"));
     if (tail_bad) add("tail ESS " + number(q.ess_tail, "%.0f") + " <= " + number(rule.ess_min, "%g"));
-    if (!q.note.empty()) add(q.note);
+    if (q.constant_within_chains) {
+      add("equal in every draw of each chain but different between chains: the chains have not "
+          "mixed at all");
+    } else if (!q.note.empty()) {
+      add(q.note);
+    }
 
-    if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || (!no_tail && std::isnan(q.ess_tail))) {
+    if (q.constant_within_chains) {
+      f.suggestion = "each chain is stuck at its own value: run more steps; if chains stay put, "
+                     "use tempering or a kernel that changes this quantity, or start more chains "
+                     "from dispersed plans";
+    } else if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || (!no_tail && std::isnan(q.ess_tail))) {
       f.suggestion = "check the traces of this quantity (constant, non-finite or too short); "
                      "leave out observables that cannot vary";
     } else if (rhat_bad) {

@@ -225,15 +225,23 @@ void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out) {
 }
 
 void print_verdict(const diagnose::Verdict& verdict, const diagnose::VerdictRule& rule,
-                   std::ostream& out) {
+                   std::ostream& out, std::size_t left_out) {
   for (const auto& r : verdict.remarks) out << "  " << r.name << ": " << r.what << "\n";
-  if (verdict.pass) {
+  if (left_out > 0) {
+    out << "verdict: fail (" << left_out
+        << " chain(s) left out because their records are damaged, see planmill merge; the other "
+           "chains alone "
+        << (verdict.pass ? "pass" : "fail on " + std::to_string(verdict.failures.size()) + " of " +
+                                        std::to_string(verdict.table.size()) + " quantities")
+        << ")\n";
+  } else if (verdict.pass) {
     out << "verdict: pass (R-hat < " << rule.rhat_max << ", bulk and tail ESS > " << rule.ess_min
         << " for every judged quantity)\n";
     return;
+  } else {
+    out << "verdict: fail (" << verdict.failures.size() << " of " << verdict.table.size()
+        << " quantities)\n";
   }
-  out << "verdict: fail (" << verdict.failures.size() << " of " << verdict.table.size()
-      << " quantities)\n";
   for (const auto& f : verdict.failures) {
     out << "  " << f.name << ": " << f.problem << "\n    -> " << f.suggestion << "\n";
   }

@@ -51,6 +51,40 @@ TEST(Verdict, ADiscreteQuantityAtAnExtremeQuantileIsJudgedWithoutTailEss) {
   EXPECT_FALSE(judge({q}, {1.01, q.ess_bulk + 1}).pass);
 }
 
+TEST(Verdict, AQuantityConstantWithinEachChainButNotAcrossFails) {
+  // Each chain stuck at its own value: the clearest failure to mix, never "not judged".
+  std::vector<double> stuck(4000);
+  for (std::size_t i = 0; i < stuck.size(); ++i) stuck[i] = static_cast<double>(i / 1000);
+  const auto fine = draws(1000, 4, 4, [](Rng& r) { return uniform01(r); });
+  const auto v = judge({diagnose("cut_edges", fine, 4), diagnose("seats", stuck, 4)});
+  EXPECT_FALSE(v.pass);
+  for (const auto& r : v.remarks) EXPECT_NE(r.name, "seats") << r.what;
+  ASSERT_EQ(v.failures.size(), 1U);
+  EXPECT_EQ(v.failures[0].name, "seats");
+  EXPECT_NE(v.failures[0].problem.find("different between chains"), std::string::npos)
+      << v.failures[0].problem;
+}
+
+TEST(Verdict, TinyValuesThatVaryAreJudged) {
+  // Values near 1e-170: their squares underflow a double, but they are not equal.
+  auto tiny = draws(1000, 4, 5, [](Rng& r) { return uniform01(r); });
+  for (double& x : tiny) x *= 1e-170;
+  const auto q = diagnose("tiny", tiny, 4);
+  EXPECT_FALSE(is_constant(q));
+  EXPECT_GT(q.sd, 0.0);
+  const auto v = judge({q});
+  EXPECT_TRUE(v.remarks.empty());
+  EXPECT_TRUE(v.pass) << (v.failures.empty() ? "" : v.failures[0].problem);
+}
+
+TEST(Verdict, OnlyExactEqualityIsNotJudged) {
+  std::vector<double> almost(4000, 1.0);
+  almost[1234] = std::nextafter(1.0, 2.0);
+  const auto q = diagnose("almost", almost, 4);
+  EXPECT_FALSE(is_constant(q));
+  EXPECT_TRUE(judge({q}).remarks.empty()) << "judged, not left aside as constant";
+}
+
 TEST(Verdict, ANonFiniteDrawStillFails) {
   auto v = draws(1000, 4, 3, [](Rng& r) { return uniform01(r); });
   v[17] = std::numeric_limits<double>::quiet_NaN();

@@ -118,6 +118,12 @@ TEST(DiagnoseRunDirCli, DamagedChainsAreLeftOutAndTheVerdictFails) {
   EXPECT_NE(o.out.find("left out: chain 1"), std::string::npos) << o.out;
   EXPECT_NE(o.out.find("left out: chain 3"), std::string::npos) << o.out;
   EXPECT_NE(o.out.find("2 chains x 400 draws"), std::string::npos) << o.out;
+  // One verdict line, and it fails (the other chains alone pass: it says so inside the line).
+  const auto first = o.out.find("verdict:");
+  ASSERT_NE(first, std::string::npos) << o.out;
+  EXPECT_EQ(o.out.find("verdict:", first + 1), std::string::npos) << o.out;
+  EXPECT_EQ(o.out.compare(first, 14, "verdict: fail "), 0) << o.out;
+  EXPECT_NE(o.out.find("2 chain(s) left out"), std::string::npos) << o.out;
 }
 
 // county_splits (observable 2) always 0, the others mixed. The verdict rule (verdict.hpp: a

@@ -15,6 +15,11 @@ struct QuantityDiagnostics {
   double mcse_mean, mcse_q05, mcse_q95;
   double mean, sd;                      // over all draws of all chains
   std::string note;                     // why some entry is NaN; empty when all are numbers
+  // Exactly equal (==) in every draw of every chain: the only case the verdict leaves unjudged.
+  bool all_equal = false;
+  // Exactly equal within every chain but not across chains: the chains never moved apart from
+  // where they sit, the plainest failure to mix (R-hat is NaN there, W = 0).
+  bool constant_within_chains = false;
 };
 
 [[nodiscard]] QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x);

@@ -3,8 +3,9 @@
 // rhat_max and both bulk and tail ESS above ess_min (Vehtari et al. 2021 recommend 1.01 and
 // 400 = 100 per chain for 4 chains). A NaN diagnostic fails: it cannot show convergence, with two
 // exceptions that carry no evidence either way and are listed apart:
-//  - a quantity equal in every draw of every chain (e.g. county splits under a zero limit) is not
-//    judged; a verdict with no judged quantity fails;
+//  - a quantity exactly equal (==, no tolerance) in every draw of every chain (e.g. county splits
+//    under a zero limit) is not judged; a verdict with no judged quantity fails. A quantity
+//    constant within each chain but different between chains fails: its chains never mixed;
 //  - a discrete quantity whose 5% or 95% quantile is its smallest or largest value has no tail ESS
 //    (the quantile indicator is constant); it is judged on R-hat and bulk ESS alone.
 #include <string>

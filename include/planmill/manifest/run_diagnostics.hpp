@@ -77,9 +77,10 @@ struct RunVerdictRule {
 
 // The compact table that both forms of `planmill diagnose` print, worst first.
 void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out);
-// "verdict: pass (...)" or "verdict: fail (...)" with every failing quantity, its values and a
-// suggestion.
+// The one "verdict: pass (...)" or "verdict: fail (...)" line, with every failing quantity, its
+// values and a suggestion. left_out chains (damaged records) make it fail whatever the table
+// shows; the line then says so and what the other chains alone show.
 void print_verdict(const diagnose::Verdict& verdict, const diagnose::VerdictRule& rule,
-                   std::ostream& out);
+                   std::ostream& out, std::size_t left_out = 0);
 
 }  // namespace planmill
