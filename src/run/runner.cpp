@@ -27,6 +27,7 @@
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/run/observables.hpp"
 #include "planmill/run/placement.hpp"
+#include "planmill/run/run_lock.hpp"
 #include "planmill/run/run_reader.hpp"
 #include "planmill/run/run_state.hpp"
 #include "planmill/seed/seed_plan.hpp"
@@ -286,6 +287,8 @@ class ChainRunner {
         throw InputError({options_.job_path, 0, "output.dir"}, "names no output folder",
                          "set [output] dir in the job file or give --output DIR");
       }
+      // Before anything in the folder is read, written or removed: one run per folder.
+      lock_ = std::make_unique<RunLock>(layout_.root);
       RunState state = options_.resume ? resumed_state() : new_state();
       if (!state.finished || options_.until_converged) {
         state.sessions.push_back({utc_now_iso8601(), "", w_.size, hosts, ""});
@@ -872,6 +875,7 @@ class ChainRunner {
 
   RunOptions options_;
   World w_;
+  std::unique_ptr<RunLock> lock_;  // rank 0: held for the whole run
   std::string host_;
   std::unique_ptr<LoadedJob> loaded_;
   RuleSet rules_;

@@ -1,0 +1,150 @@
+// The run folder as a user meets it: one run per folder at a time (run.lock), and a fresh run that
+// overwrites nothing of the user's and leaves nothing that blocks a retry. Real `planmill run`
+// processes under mpiexec on real files.
+#include <gtest/gtest.h>
+#include <signal.h>
+#include <spawn.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <string>
+#include <thread>
+
+#include "planmill/run/run_reader.hpp"
+
+extern char** environ;
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+
+fs::path scratch(const std::string& name) {
+  const auto dir = fs::temp_directory_path() / ("planmill-folder-test-" + name);
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  return dir;
+}
+
+int shell(const std::string& command) {
+  const int raw = std::system(command.c_str());
+  return WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+}
+
+fs::path write_job(const fs::path& dir, const std::string& sampler, double checkpoint_seconds = 300) {
+  const std::string synth = std::string(PLANMILL_BINARY) + " synth --units 200 --districts 4 --seed 5 --out " +
+                            (dir / "state").string() + " >/dev/null";
+  EXPECT_EQ(shell(synth), 0);
+  const fs::path job = dir / "state" / "job.toml";
+  std::ofstream(job, std::ios::app) << "[sampler]\n"
+                                    << sampler << "\n[output]\ncheckpoint_seconds = "
+                                    << checkpoint_seconds << "\n";
+  return job;
+}
+
+std::string command_line(int ranks, const fs::path& job, const fs::path& out, const std::string& extra,
+                         const fs::path& log) {
+  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  return "mpiexec --oversubscribe -n " + std::to_string(ranks) + " " + PLANMILL_BINARY + " run " +
+         job.string() + " --output " + out.string() + " --quiet " + extra + " >" + log.string() + " 2>&1";
+}
+
+int run(int ranks, const fs::path& job, const fs::path& out, const std::string& extra, const fs::path& log) {
+  return shell(command_line(ranks, job, out, extra, log));
+}
+
+pid_t spawn(int ranks, const fs::path& job, const fs::path& out, const std::string& extra, const fs::path& log) {
+  const std::string command = "exec " + command_line(ranks, job, out, extra, log);
+  const char* argv[] = {"/bin/sh", "-c", command.c_str(), nullptr};
+  pid_t pid = 0;
+  EXPECT_EQ(posix_spawn(&pid, "/bin/sh", nullptr, nullptr, const_cast<char**>(argv), environ), 0);
+  return pid;
+}
+
+int wait_exit(pid_t pid) {
+  int status = 0;
+  waitpid(pid, &status, 0);
+  return WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
+}
+
+bool still_running(pid_t pid) {
+  siginfo_t info{};
+  return ::waitid(P_PID, static_cast<id_t>(pid), &info, WEXITED | WNOHANG | WNOWAIT) == 0 &&
+         info.si_pid == 0;
+}
+
+std::uint64_t committed_checkpoints(const fs::path& out) {
+  try {
+    return read_run_state(RunLayout{out}).checkpoints;
+  } catch (...) {
+    return 0;
+  }
+}
+
+bool wait_for(const std::function<bool()>& done, pid_t launcher, double seconds) {
+  const auto end = std::chrono::steady_clock::now() + std::chrono::duration<double>(seconds);
+  while (std::chrono::steady_clock::now() < end) {
+    if (done()) return true;
+    if (!still_running(launcher)) return false;
+    std::this_thread::sleep_for(std::chrono::milliseconds(50));
+  }
+  return done();
+}
+
+std::string text_of(const fs::path& path) {
+  std::ifstream in(path);
+  return {std::istreambuf_iterator<char>(in), {}};
+}
+
+// The folder is intact and complete: every chain has the records its steps call for.
+void expect_intact_finished_run(const fs::path& out, std::uint64_t records_per_chain) {
+  RunReader reader(out.string());
+  EXPECT_TRUE(reader.state().finished);
+  EXPECT_TRUE(reader.verify().empty()) << reader.verify().front().what;
+  for (const auto c : reader.chains()) EXPECT_EQ(reader.record_count(c), records_per_chain) << "chain " << c;
+}
+
+TEST(RunFolder, ASecondRunOrResumeIsRefusedWhileTheFirstRuns) {
+  const auto dir = scratch("lock");
+  // 4 chains x 1000000 steps, a checkpoint every second: several seconds of work.
+  const auto job = write_job(dir, "chains = 4\nsteps = 1000000\nburn_in = 0\nrecord_every = 5000\nseed = 3", 1.0);
+  const auto out = dir / "out";
+  const pid_t first = spawn(2, job, out, "", dir / "first.log");
+  ASSERT_TRUE(wait_for([&] { return committed_checkpoints(out) >= 2; }, first, 120)) << text_of(dir / "first.log");
+  EXPECT_EQ(run(2, job, out, "--resume", dir / "resume.log"), 2);
+  const std::string resume_log = text_of(dir / "resume.log");
+  EXPECT_NE(resume_log.find("is in use by host"), std::string::npos) << resume_log;
+  EXPECT_NE(resume_log.find("pid"), std::string::npos) << resume_log;
+  EXPECT_EQ(run(1, job, out, "", dir / "fresh.log"), 2);
+  EXPECT_NE(text_of(dir / "fresh.log").find("is in use by host"), std::string::npos) << text_of(dir / "fresh.log");
+  ASSERT_TRUE(still_running(first)) << "the first run ended before the second started; make it longer";
+  EXPECT_EQ(wait_exit(first), 0) << text_of(dir / "first.log");
+  expect_intact_finished_run(out, 200);
+  // Once the first run has ended the folder is free again.
+  EXPECT_EQ(run(1, job, out, "--resume", dir / "after.log"), 0) << text_of(dir / "after.log");
+}
+
+TEST(RunFolder, OfTwoFreshRunsStartedTogetherOneRunsAndTheOtherIsRefused) {
+  const auto dir = scratch("pair");
+  const auto job = write_job(dir, "chains = 2\nsteps = 20000\nburn_in = 0\nrecord_every = 100\nseed = 4");
+  for (int attempt = 0; attempt < 3; ++attempt) {
+    const auto out = dir / ("out" + std::to_string(attempt));
+    const pid_t a = spawn(1, job, out, "", dir / "a.log");
+    const pid_t b = spawn(1, job, out, "", dir / "b.log");
+    int exits[2] = {wait_exit(a), wait_exit(b)};
+    std::sort(exits, exits + 2);
+    EXPECT_EQ(exits[0], 0) << text_of(dir / "a.log") << text_of(dir / "b.log");
+    EXPECT_EQ(exits[1], 2) << text_of(dir / "a.log") << text_of(dir / "b.log");
+    expect_intact_finished_run(out, 200);
+  }
+}
+
+}  // namespace
+}  // namespace planmill
