@@ -17,6 +17,7 @@
 #include <vector>
 
 #include "planmill/run/run_reader.hpp"
+#include "../support/run_jobs.hpp"
 
 extern char** environ;
 
@@ -25,28 +26,10 @@ namespace {
 
 namespace fs = std::filesystem;
 
-fs::path scratch(const std::string& name) {
-  const auto dir = fs::temp_directory_path() / ("planmill-run-test-" + name);
-  fs::remove_all(dir);
-  fs::create_directories(dir);
-  return dir;
-}
-
-int shell(const std::string& command) {
-  const int raw = std::system(command.c_str());
-  return WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
-}
-
-// A small invented state (planmill synth) and a job over it.
+fs::path scratch(const std::string& name) { return test::scratch_dir("planmill-run-test", name); }
+using test::shell;
 fs::path write_job(const fs::path& dir, const std::string& sampler, double checkpoint_seconds = 300) {
-  const std::string synth = std::string(PLANMILL_BINARY) + " synth --units 200 --districts 4 --seed 5 --out " +
-                            (dir / "state").string() + " >/dev/null";
-  EXPECT_EQ(shell(synth), 0);
-  const fs::path job = dir / "state" / "job.toml";
-  std::ofstream(job, std::ios::app) << "[sampler]\n"
-                                    << sampler << "\n[output]\ncheckpoint_seconds = "
-                                    << checkpoint_seconds << "\n";
-  return job;
+  return test::write_synth_job(dir, sampler, checkpoint_seconds);
 }
 
 std::string mpiexec(int ranks) {
