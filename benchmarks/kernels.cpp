@@ -28,7 +28,7 @@ namespace {
 using namespace planmill;
 
 struct State {
-  UnitGraph graph;
+  GraphHandle graph;
   Plan start;
 };
 
@@ -37,7 +37,7 @@ const State& benchmark_state() {
     const auto dir = std::filesystem::temp_directory_path() / ("planmill_bench_kernels_" + std::to_string(getpid()));
     (void)write_synthetic_state({10000, 100, 7, dir.string()});
     JobSpec job = load_job((dir / "job.toml").string());
-    UnitGraph graph = load_unit_graph(job.map);
+    GraphHandle graph = share_graph(load_unit_graph(job.map));
     std::filesystem::remove_all(dir);
     RuleSet rules;
     rules.population_deviation = 0.05;
@@ -53,7 +53,7 @@ const State& benchmark_state() {
 void run_kernel(benchmark::State& bench, KernelKind kind, double gamma, double cut_weight) {
   const State& s = benchmark_state();
   ChainSetup setup;
-  setup.graph = &s.graph;
+  setup.graph = s.graph;
   setup.rules.population_deviation = 0.05;
   setup.rules.cut_edges_weight = cut_weight;
   setup.kernel.kind = kind;
@@ -86,8 +86,8 @@ std::vector<Region> count_regions(int kind) {
   const State& s = benchmark_state();
   const std::size_t k = s.start.district_count();
   std::vector<std::vector<std::uint8_t>> adjacent(k, std::vector<std::uint8_t>(k, 0));
-  for (UnitIndex u = 0; u < s.graph.unit_count(); ++u)
-    for (const UnitIndex w : s.graph.neighbors(u))
+  for (UnitIndex u = 0; u < s.graph->unit_count(); ++u)
+    for (const UnitIndex w : s.graph->neighbors(u))
       adjacent[s.start.district_of(u)][s.start.district_of(w)] = 1;
   std::vector<Region> regions;
   for (DistrictIndex a = 0; a < k; ++a) {
@@ -101,9 +101,9 @@ std::vector<Region> count_regions(int kind) {
         if (adjacent[a][b])
           for (DistrictIndex c = 0; c < k; ++c) near[c] |= adjacent[b][c];
       std::vector<UnitIndex> units;
-      for (UnitIndex u = 0; u < s.graph.unit_count(); ++u)
+      for (UnitIndex u = 0; u < s.graph->unit_count(); ++u)
         if (near[s.start.district_of(u)]) units.push_back(u);
-      regions.emplace_back().build(s.graph, units);
+      regions.emplace_back().build(*s.graph, units);
     }
   }
   return regions;

@@ -28,7 +28,7 @@ using namespace planmill;
 namespace fs = std::filesystem;
 
 struct State {
-  UnitGraph graph;
+  GraphHandle graph;
   Plan start;
 };
 
@@ -38,7 +38,7 @@ const State& benchmark_state() {
         fs::temp_directory_path() / ("planmill_bench_store_" + std::to_string(getpid()));
     (void)write_synthetic_state({10000, 100, 7, dir.string()});
     JobSpec job = load_job((dir / "job.toml").string());
-    UnitGraph graph = load_unit_graph(job.map);
+    GraphHandle graph = share_graph(load_unit_graph(job.map));
     fs::remove_all(dir);
     RuleSet rules;
     rules.population_deviation = 0.05;
@@ -55,7 +55,7 @@ const State& benchmark_state() {
 
 Chain make_chain(const State& s) {
   ChainSetup setup;
-  setup.graph = &s.graph;
+  setup.graph = s.graph;
   setup.rules.population_deviation = 0.05;
   setup.kernel.kind = KernelKind::recombination;
   Chain chain(setup, s.start);
@@ -73,7 +73,7 @@ void BM_ChainOnly(benchmark::State& bench) {
 // cost of a file, left out of the bytes per record.
 double empty_file_bytes(const State& s, const fs::path& path) {
   {
-    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)});
+    EnsembleWriter writer(path.string(), {s.graph->unit_count(), 100, "", unit_adjacency(*s.graph)});
     (void)writer.add_chain(0, {"cut_edges", "max_population_deviation"});
     writer.flush();
   }
@@ -95,7 +95,7 @@ void BM_ChainRecording(benchmark::State& bench) {
   {
     EnsembleWriterOptions options;
     options.full_every = static_cast<std::size_t>(bench.range(1));
-    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)},
+    EnsembleWriter writer(path.string(), {s.graph->unit_count(), 100, "", unit_adjacency(*s.graph)},
                           options);
     const std::size_t h = writer.add_chain(0, {"cut_edges", "max_population_deviation"});
     std::uint64_t step = 0;
@@ -126,7 +126,7 @@ void BM_ChainRecording(benchmark::State& bench) {
   bench.counters["file_bytes_per_record"] = per_record;
   bench.counters["encoded_bytes_per_record"] =
       records ? static_cast<double>(encoded) / static_cast<double>(records) : 0;
-  bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph.unit_count());
+  bench.counters["bits_per_unit"] = per_record * 8.0 / static_cast<double>(s.graph->unit_count());
 }
 
 // The writer alone: record() on 1,000 plans of the chain taken `interval` steps apart, replayed
@@ -137,7 +137,7 @@ void BM_WriterOnly(benchmark::State& bench) {
   const auto interval = static_cast<std::size_t>(bench.range(0));
   Chain chain = make_chain(s);
   constexpr std::size_t kPlans = 1000;
-  const std::size_t n = s.graph.unit_count();
+  const std::size_t n = s.graph->unit_count();
   std::vector<DistrictIndex> plans(kPlans * n);
   std::vector<double> observables(2 * kPlans);
   for (std::size_t r = 0; r < kPlans; ++r) {
@@ -150,7 +150,7 @@ void BM_WriterOnly(benchmark::State& bench) {
   const fs::path path =
       fs::temp_directory_path() / ("planmill_bench_writer_" + std::to_string(getpid()) + ".h5");
   {
-    EnsembleWriter writer(path.string(), {n, 100, "", unit_adjacency(s.graph)});
+    EnsembleWriter writer(path.string(), {n, 100, "", unit_adjacency(*s.graph)});
     const std::size_t h = writer.add_chain(0, {"cut_edges", "max_population_deviation"});
     std::size_t r = 0;
     std::uint64_t step = 0;
@@ -176,10 +176,10 @@ BENCHMARK(BM_WriterOnly)
 void BM_GraphRecord(benchmark::State& bench) {
   const State& s = benchmark_state();
   Chain chain = make_chain(s);
-  const UnitAdjacency adjacency = unit_adjacency(s.graph);
-  ChainEncoder encoder(s.graph.unit_count(), 100, &adjacency);
+  const UnitAdjacency adjacency = unit_adjacency(*s.graph);
+  ChainEncoder encoder(s.graph->unit_count(), 100, &adjacency);
   std::vector<std::uint8_t> out;
-  std::vector<DistrictIndex> decoded(s.graph.unit_count());
+  std::vector<DistrictIndex> decoded(s.graph->unit_count());
   const bool decode = bench.range(0) == 1;
   for (auto _ : bench) {
     out.clear();
@@ -202,7 +202,7 @@ void BM_ReadPlan(benchmark::State& bench) {
   {
     EnsembleWriterOptions options;
     options.full_every = static_cast<std::size_t>(bench.range(0));
-    EnsembleWriter writer(path.string(), {s.graph.unit_count(), 100, "", unit_adjacency(s.graph)},
+    EnsembleWriter writer(path.string(), {s.graph->unit_count(), 100, "", unit_adjacency(*s.graph)},
                           options);
     const std::size_t h = writer.add_chain(0, {});
     for (std::size_t r = 0; r < kRecords; ++r) {

@@ -217,11 +217,12 @@ int main(int argc, char** argv) {
   synth.cities = s.cities;
   const SynthSummary summary = write_synthetic_state(synth);
   const JobSpec job = load_job((dir / "job.toml").string());
-  const UnitGraph graph = load_unit_graph(job.map);
+  const GraphHandle graph_handle = share_graph(load_unit_graph(job.map));
+  const UnitGraph& graph = *graph_handle;
   std::filesystem::remove_all(dir);
 
   ChainSetup base;
-  base.graph = &graph;
+  base.graph = graph_handle;
   base.rules.population_deviation = 0.05;
   base.rules.cut_edges_weight = s.cut_weight;
   base.kernel.kind = KernelKind::flip;
@@ -239,7 +240,7 @@ int main(int argc, char** argv) {
   std::vector<Plan> starts;
   for (std::size_t c = 0; c < s.chains; ++c) {
     Rng rng = make_stream(s.run_seed, 1000 + c);
-    starts.push_back(random_seed_plan(graph, s.districts, base.rules, rng));
+    starts.push_back(random_seed_plan(graph_handle, s.districts, base.rules, rng));
   }
 
   std::printf(

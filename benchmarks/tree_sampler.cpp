@@ -86,7 +86,9 @@ void bisect(const UnitGraph& graph, std::vector<UnitIndex> units, std::size_t k,
 }
 
 struct BenchState {
-  UnitGraph graph;
+  std::shared_ptr<UnitGraph> owned_graph = std::make_shared<UnitGraph>();  // filled in below
+  UnitGraph& graph = *owned_graph;
+  GraphHandle graph_handle = owned_graph;
   std::size_t k = 100;
   std::vector<DistrictIndex> district;
   std::vector<std::pair<DistrictIndex, DistrictIndex>> pairs;
@@ -124,7 +126,7 @@ struct BenchState {
             static_cast<DistrictIndex>((u / kSide / kBlock) * kBlocks + (u % kSide) / kBlock);
       }
     }
-    const Plan plan(graph, k, district);
+    const Plan plan(graph_handle, k, district);
     max_deviation = plan.max_population_deviation();
     std::set<std::pair<DistrictIndex, DistrictIndex>> adjacent;
     for (EdgeIndex e = 0; e < graph.edge_count(); ++e) {
@@ -233,7 +235,7 @@ BENCHMARK(BM_BoostRandomSpanningTree)->Arg(0)->Arg(1);
 // Building one merged region from the plan (scans all the map's labels once).
 void BM_RegionBuildFromPlan(benchmark::State& state) {
   const BenchState& s = bench_state(state);
-  const Plan plan(s.graph, s.k, s.district);
+  const Plan plan(s.graph_handle, s.k, s.district);
   Region region;
   std::size_t i = 0;
   for (auto _ : state) {
@@ -248,7 +250,7 @@ BENCHMARK(BM_RegionBuildFromPlan)->Arg(0)->Arg(1);
 // The same regions grown breadth-first from one unit of each district: O(region), not O(map).
 void BM_RegionBuildFromSeeds(benchmark::State& state) {
   const BenchState& s = bench_state(state);
-  const Plan plan(s.graph, s.k, s.district);
+  const Plan plan(s.graph_handle, s.k, s.district);
   const auto& seeds = s.seeds;
   Region region;
   std::size_t i = 0;

@@ -65,7 +65,7 @@ void Chain::restore(std::string_view snapshot) {
   std::vector<DistrictIndex> labels(units);
   for (auto& d : labels) in >> d;
   if (!in) throw std::invalid_argument("chain snapshot is truncated");
-  Plan plan(state_.plan.graph(), districts, std::move(labels));
+  Plan plan(state_.plan.graph_handle(), districts, std::move(labels));
   state_ = ChainState(std::move(plan), state_.rules.rules());
   kernel_->reset(state_);
   rng_ = rng;

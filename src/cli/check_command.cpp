@@ -11,7 +11,7 @@ namespace {
 int run_check(const std::string& job_path) {
   const LoadedJob loaded = load_and_check_job(job_path);
   for (const auto& warning : loaded.report.warnings) std::cerr << "planmill: warning: " << warning << "\n";
-  const UnitGraph& g = loaded.graph;
+  const UnitGraph& g = *loaded.graph;
   const auto components = g.components();
   const double ideal = static_cast<double>(g.total_population()) / static_cast<double>(loaded.job.districts);
   std::printf("job          %s\n", job_path.c_str());

@@ -29,11 +29,11 @@ std::vector<SelftestCase> cases_from_job(const SelftestOptions& options) {
   SelftestCase c;
   c.name = options.job;
   c.districts = loaded->job.districts;
-  c.rules = make_rule_set(loaded->job.rules, loaded->graph, loaded->job.path);
+  c.rules = make_rule_set(loaded->job.rules, *loaded->graph, loaded->job.path);
   c.kernel = make_kernel_settings(loaded->job);
   c.seed = options.seed;
   c.thin = c.kernel.kind == KernelKind::flip ? 40 : 10;
-  c.graph = std::shared_ptr<const UnitGraph>(loaded, &loaded->graph);
+  c.graph = loaded->graph;
   return {c};
 }
 

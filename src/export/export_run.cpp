@@ -167,11 +167,11 @@ ExportResult export_run(const ExportOptions& o) {
   }
 
   // Plans, labelled with the map's unit ids through the plan CSV writer.
-  UnitGraph id_graph;
+  GraphHandle id_graph;
   if (!ids.empty()) {
     UnitGraphBuilder builder;
     for (const std::string& id : ids) (void)builder.add_unit(id, 0);
-    id_graph = std::move(builder).build();
+    id_graph = share_graph(std::move(builder).build());
   }
   const fs::path out(o.out_dir);
   std::error_code ec;

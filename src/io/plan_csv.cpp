@@ -11,7 +11,8 @@
 namespace planmill {
 namespace {
 
-Plan plan_from_table(const CsvTable& table, const UnitGraph& graph, std::size_t k) {
+Plan plan_from_table(const CsvTable& table, const GraphHandle& handle, std::size_t k) {
+  const UnitGraph& graph = *handle;
   const std::string& source = table.source;
   if (k == 0 || k >= kNoDistrict) {
     throw InputError({source, 0, {}}, "cannot hold a plan of " + std::to_string(k) + " districts",
@@ -74,16 +75,16 @@ Plan plan_from_table(const CsvTable& table, const UnitGraph& graph, std::size_t 
                            std::to_string(k) + " without gaps");
     }
   }
-  return Plan(graph, k, std::move(district));
+  return Plan(handle, k, std::move(district));
 }
 
 }  // namespace
 
-Plan read_plan_csv(const std::string& path, const UnitGraph& graph, std::size_t k) {
+Plan read_plan_csv(const std::string& path, const GraphHandle& graph, std::size_t k) {
   return plan_from_table(read_csv_file(path), graph, k);
 }
 
-Plan parse_plan_csv(std::string_view text, const std::string& source, const UnitGraph& graph, std::size_t k) {
+Plan parse_plan_csv(std::string_view text, const std::string& source, const GraphHandle& graph, std::size_t k) {
   return plan_from_table(parse_csv_text(text, source), graph, k);
 }
 

@@ -9,9 +9,9 @@ namespace planmill {
 
 LoadedJob load_and_check_job(const std::string& job_path) {
   LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt};
-  loaded.graph = load_unit_graph(loaded.job.map, &loaded.report);
-  check_feasible(loaded.graph, loaded.job.districts, loaded.job.rules.population_deviation, job_path);
-  const RuleSet rules = make_rule_set(loaded.job.rules, loaded.graph, job_path);
+  loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
+  check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_deviation, job_path);
+  const RuleSet rules = make_rule_set(loaded.job.rules, *loaded.graph, job_path);
   if (loaded.job.start != "random") {
     loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));
     check_seed_plan(*loaded.start, rules, loaded.job.start);

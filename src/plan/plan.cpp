@@ -7,12 +7,14 @@
 
 namespace planmill {
 
-Plan::Plan(const UnitGraph& graph, std::size_t district_count, std::vector<DistrictIndex> district)
-    : graph_(&graph), k_(district_count), columns_(graph.count_column_count()), district_(std::move(district)) {
+Plan::Plan(GraphHandle graph, std::size_t district_count, std::vector<DistrictIndex> district)
+    : graph_(std::move(graph)), k_(district_count), district_(std::move(district)) {
+  if (!graph_) throw std::invalid_argument("plan without a map");
+  columns_ = graph_->count_column_count();
   if (k_ == 0 || k_ >= kNoDistrict) throw std::invalid_argument("district count out of range");
-  if (district_.size() != graph.unit_count())
+  if (district_.size() != graph_->unit_count())
     throw std::invalid_argument("plan has " + std::to_string(district_.size()) + " units, map has " +
-                                std::to_string(graph.unit_count()));
+                                std::to_string(graph_->unit_count()));
   for (DistrictIndex d : district_)
     if (d >= k_) throw std::invalid_argument("district label " + std::to_string(d) + " >= k");
   recompute();
@@ -42,7 +44,7 @@ Plan::Plan(const Plan& other)
 }
 
 Plan::Plan(Plan&& other) noexcept
-    : graph_(other.graph_),
+    : graph_(other.graph_),  // copied, not moved: a moved-from plan still names its map
       k_(other.k_),
       columns_(other.columns_),
       district_(std::move(other.district_)),
@@ -62,7 +64,7 @@ Plan::Plan(Plan&& other) noexcept
 
 Plan& Plan::operator=(Plan&& other) noexcept {
   if (this == &other) return *this;
-  graph_ = other.graph_;
+  if (graph_ != other.graph_) graph_ = other.graph_;  // same map: no reference-count traffic
   k_ = other.k_;
   columns_ = other.columns_;
   district_ = std::move(other.district_);
@@ -83,7 +85,7 @@ Plan& Plan::operator=(Plan&& other) noexcept {
 
 Plan& Plan::operator=(const Plan& other) {
   if (this == &other) return *this;
-  graph_ = other.graph_;
+  if (graph_ != other.graph_) graph_ = other.graph_;  // same map: no reference-count traffic
   k_ = other.k_;
   columns_ = other.columns_;
   // assign() reuses capacity, so copying a plan of the same shape does not allocate.
@@ -215,7 +217,7 @@ bool Plan::all_connected() const {
 }
 
 bool Plan::tallies_consistent() const {
-  Plan fresh(*graph_, k_, district_);
+  Plan fresh(graph_, k_, district_);
   auto close = [](double a, double b) { return std::abs(a - b) <= 1e-6 * (1.0 + std::abs(a) + std::abs(b)); };
   if (fresh.population_ != population_ || fresh.size_ != size_ || fresh.cut_edges_ != cut_edges_) return false;
   for (std::size_t i = 0; i < counts_.size(); ++i)

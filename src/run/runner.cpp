@@ -274,7 +274,7 @@ class ChainRunner {
   void prepare() {
     everywhere_then_agree([&] {
       loaded_ = std::make_unique<LoadedJob>(load_and_check_job(options_.job_path));
-      rules_ = make_rule_set(loaded_->job.rules, loaded_->graph, options_.job_path);
+      rules_ = make_rule_set(loaded_->job.rules, *loaded_->graph, options_.job_path);
     });
     const JobSpec& job = loaded_->job;
     const std::string dir = options_.output_dir ? *options_.output_dir : job.output.dir;
@@ -349,7 +349,7 @@ class ChainRunner {
     s.target_steps = job.sampler.steps;
     s.burn_in = job.sampler.burn_in;
     s.record_every = job.sampler.record_every;
-    s.observable_names = observable_names(loaded_->graph, rules_);
+    s.observable_names = observable_names(*loaded_->graph, rules_);
     for (std::uint64_t c = 0; c < job.sampler.chains; ++c) {
       ChainEntry entry;
       entry.index = c;
@@ -418,13 +418,13 @@ class ChainRunner {
         } else {
           if (chain_rank(entry.index, w_.size) != w_.rank) continue;
           local.home = w_.rank;
-          ChainSetup setup{&loaded_->graph, rules_, kernel, state_.seed, entry.index};
+          ChainSetup setup{loaded_->graph, rules_, kernel, state_.seed, entry.index};
           local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
           if (!entry.snapshot.empty()) local.chain->restore(entry.snapshot);
         }
         chains_.push_back(std::move(local));
       }
-      incoming_plan_.resize(loaded_->graph.unit_count());
+      incoming_plan_.resize(loaded_->graph->unit_count());
     });
   }
 
@@ -557,10 +557,10 @@ class ChainRunner {
     if (writer_) return;
     writer_file_ = RunLayout::plan_file_name(segment_, w_.rank);
     if (header_.unit_count == 0) {
-      header_.unit_count = loaded_->graph.unit_count();
+      header_.unit_count = loaded_->graph->unit_count();
       header_.district_count = loaded_->job.districts;
       header_.job_text = loaded_->job.text;
-      header_.adjacency = unit_adjacency(loaded_->graph);
+      header_.adjacency = unit_adjacency(*loaded_->graph);
     }
     writer_ = std::make_unique<EnsembleWriter>(layout_.resolve(writer_file_).string(), header_);
   }
@@ -574,7 +574,7 @@ class ChainRunner {
   void record_chain(LocalChain& local, std::uint64_t step) {
     open_writer();
     const ChainState& state = local.chain->state();
-    compute_observables(loaded_->graph, state, row_);
+    compute_observables(*loaded_->graph, state, row_);
     // The units moved since the last record spare the writer a scan of the whole plan.
     writer_->record(writer_handle(local, 0), step, state.plan.assignment(), row_,
                     state.plan.changes());
@@ -595,7 +595,7 @@ class ChainRunner {
       std::span<const DistrictIndex> plan;
       if (owner == w_.rank) {
         const ChainState& state = ladder.replica(replica).state();
-        compute_observables(loaded_->graph, state, row_);
+        compute_observables(*loaded_->graph, state, row_);
         plan = state.plan.assignment();
         if (!home) {
           MPI_Send(row_.data(), static_cast<int>(row_.size()), MPI_DOUBLE, local.home, kRecordTag,

@@ -17,12 +17,13 @@ struct Candidate {
 
 }  // namespace
 
-Plan random_seed_plan(const UnitGraph& graph, std::size_t districts, const RuleSet& rules, Rng& rng,
+Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const RuleSet& rules, Rng& rng,
                       const SeedEffort& effort) {
+  const UnitGraph& graph = *handle;
   const std::size_t n = graph.unit_count();
   std::vector<DistrictIndex> label(n, 0);
   // The bounds come from a tracker on a trivial plan, so rounding matches the kernels exactly.
-  const Plan probe(graph, districts, std::vector<DistrictIndex>(n, 0));
+  const Plan probe(handle, districts, std::vector<DistrictIndex>(n, 0));
   const RuleTracker bounds(probe, rules);
   const std::int64_t lo = bounds.population_min(), hi = bounds.population_max();
 
@@ -68,7 +69,7 @@ Plan random_seed_plan(const UnitGraph& graph, std::size_t districts, const RuleS
     }
     if (failed) continue;
     for (UnitIndex u : remaining) label[u] = static_cast<DistrictIndex>(districts - 1);
-    Plan plan(graph, districts, label);
+    Plan plan(handle, districts, label);
     const RuleTracker tracker(plan, rules);
     if (tracker.hard_rules_ok(plan)) return plan;
   }

@@ -39,7 +39,7 @@ double log_target(const Plan& plan, const RuleTracker& rules, const KernelSettin
 
 // A random seed plan; if bisection finds none within its effort (tight bounds on odd maps), an
 // enumerated valid plan, so that the self-test always runs when valid plans exist.
-Plan start_plan(const UnitGraph& graph, std::size_t k, const RuleSet& rules, Rng& rng, const std::string& fallback) {
+Plan start_plan(const GraphHandle& graph, std::size_t k, const RuleSet& rules, Rng& rng, const std::string& fallback) {
   try {
     return random_seed_plan(graph, k, rules, rng, {50, 5});
   } catch (const InfeasibleError&) {
@@ -59,7 +59,7 @@ SelftestResult run_selftest(const SelftestCase& test) {
   result.kernel = kernel_name(test.kernel.kind);
 
   // 1. Every valid plan and its exact target probability.
-  const Plan probe(graph, k, std::vector<DistrictIndex>(graph.unit_count(), 0));
+  const Plan probe(test.graph, k, std::vector<DistrictIndex>(graph.unit_count(), 0));
   const RuleTracker bounds(probe, test.rules);
   std::unordered_map<std::string, std::size_t> index;
   std::vector<double> log_weights;
@@ -68,7 +68,7 @@ SelftestResult run_selftest(const SelftestCase& test) {
   TreeCounter counter;
   Region region;
   for_each_plan(graph, k, bounds.population_min(), bounds.population_max(), [&](std::span<const DistrictIndex> labels) {
-    Plan plan(graph, k, std::vector<DistrictIndex>(labels.begin(), labels.end()));
+    Plan plan(test.graph, k, std::vector<DistrictIndex>(labels.begin(), labels.end()));
     const RuleTracker rules(plan, test.rules);
     if (!rules.hard_rules_ok(plan)) return;
     canonical_key(labels, relabel, key);
@@ -90,8 +90,8 @@ SelftestResult run_selftest(const SelftestCase& test) {
   // 2. The chain, from a random valid seed, with a burn-in of 100 recording intervals (the pilot
   // run that picks the interval is part of the burn-in).
   Rng seed_rng = make_stream(test.seed, 1'000'003);
-  ChainSetup setup{&graph, test.rules, test.kernel, test.seed, 0};
-  Chain chain(setup, start_plan(graph, k, test.rules, seed_rng, result.plans.front().plan));
+  ChainSetup setup{test.graph, test.rules, test.kernel, test.seed, 0};
+  Chain chain(setup, start_plan(test.graph, k, test.rules, seed_rng, result.plans.front().plan));
   std::uint64_t thin = test.thin;
   if (thin == 0) {
     constexpr std::uint64_t pilot = 20000;

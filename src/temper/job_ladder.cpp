@@ -13,11 +13,11 @@ std::vector<double> ladder_betas(const JobSpec& job) {
   return geometric_betas(job.sampler.beta, t.hottest_beta, t.rungs);
 }
 
-LadderSetup make_ladder_setup(const JobSpec& job, const UnitGraph& graph, const RuleSet& rules,
+LadderSetup make_ladder_setup(const JobSpec& job, const GraphHandle& graph, const RuleSet& rules,
                               std::uint64_t ladder_index) {
   LadderSetup setup;
   setup.betas = ladder_betas(job);
-  setup.chain = ChainSetup{&graph, rules, make_kernel_settings(job), job.sampler.seed, 0};
+  setup.chain = ChainSetup{graph, rules, make_kernel_settings(job), job.sampler.seed, 0};
   setup.ladder_index = ladder_index;
   setup.first_chain_index = ladder_index * setup.betas.size();
   setup.swap_every = job.tempering.swap_every;

@@ -10,11 +10,11 @@ namespace planmill {
 namespace {
 
 struct Fixture {
-  UnitGraph graph = test::grid(8, 8);
+  GraphHandle graph = share_graph(test::grid(8, 8));
   RuleSet rules;
   Fixture() { rules.population_deviation = 0.1; }
   ChainSetup setup(KernelKind kind, std::uint64_t index) {
-    ChainSetup s{&graph, rules, {}, 99, index};
+    ChainSetup s{graph, rules, {}, 99, index};
     s.kernel.kind = kind;
     s.kernel.beta = 0.3;
     return s;
@@ -79,11 +79,11 @@ TEST(Chain, DistinctChainIndicesGiveDistinctStreams) {
 TEST(Chain, RejectsASnapshotOfAnotherMap) {
   Fixture f;
   Chain chain(f.setup(KernelKind::flip, 0), f.start());
-  UnitGraph other = test::grid(4, 4);
+  const GraphHandle other = share_graph(test::grid(4, 4));
   RuleSet rules;
   rules.population_deviation = 0.5;
   Rng rng = make_stream(1, 1);
-  Chain small({&other, rules, {}, 1, 0}, random_seed_plan(other, 4, rules, rng));
+  Chain small({other, rules, {}, 1, 0}, random_seed_plan(other, 4, rules, rng));
   EXPECT_THROW(chain.restore(small.save()), std::invalid_argument);
   EXPECT_THROW(chain.restore("nonsense"), std::invalid_argument);
 }

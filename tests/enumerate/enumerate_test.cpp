@@ -16,7 +16,8 @@ namespace {
 using test::EdgeList;
 
 std::size_t grid_pieces(std::uint32_t n) {
-  const UnitGraph g = test::grid(n, n);
+  const GraphHandle g_handle = share_graph(test::grid(n, n));
+  const UnitGraph& g = *g_handle;
   return count_plans(g, n, n, n);
 }
 
@@ -32,13 +33,15 @@ TEST(Enumerate, GridIntoEqualPiecesMatchesOeisA172477) {
 
 // 4x4 into 2 pieces of 8: 70 (METHODS.md section 6, checked by the brute force below too).
 TEST(Enumerate, FourByFourIntoTwoHalves) {
-  const UnitGraph g = test::grid(4, 4);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
   EXPECT_EQ(count_plans(g, 2, 8, 8), 70U);
 }
 
 // 4x4 into 8 pieces of 2 are the domino tilings of the 4x4 board: 36 (OEIS A004003).
 TEST(Enumerate, FourByFourIntoDominoes) {
-  const UnitGraph g = test::grid(4, 4);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
   EXPECT_EQ(count_plans(g, 8, 2, 2), 36U);
   // 2 x n boards have Fibonacci many domino tilings (OEIS A000045): 2x6 -> 13 [from memory].
   const UnitGraph ladder = test::grid(2, 6);
@@ -47,13 +50,14 @@ TEST(Enumerate, FourByFourIntoDominoes) {
 
 // Every visited plan is canonical, distinct, connected and within bounds.
 TEST(Enumerate, VisitedPlansAreCanonicalValidAndDistinct) {
-  const UnitGraph g = test::grid(4, 4);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
   std::set<std::vector<DistrictIndex>> seen;
   for_each_plan(g, 4, 3, 5, [&](std::span<const DistrictIndex> a) {
     std::vector<DistrictIndex> v(a.begin(), a.end());
     EXPECT_EQ(v, test::canonical(v, 4));
     EXPECT_TRUE(seen.insert(v).second);
-    Plan plan(g, 4, v);
+    Plan plan(g_handle, 4, v);
     EXPECT_TRUE(plan.all_connected());
     for (DistrictIndex d = 0; d < 4; ++d) {
       EXPECT_GE(plan.population(d), 3);
@@ -95,7 +99,8 @@ std::vector<Case> irregular_cases() {
 TEST(Enumerate, MatchesBruteForceOnIrregularGraphs) {
   for (const Case& c : irregular_cases()) {
     SCOPED_TRACE(c.name);
-    const UnitGraph g = test::graph_from_edges(c.n, c.edges, c.population);
+    const GraphHandle g_handle = share_graph(test::graph_from_edges(c.n, c.edges, c.population));
+    const UnitGraph& g = *g_handle;
     std::set<std::vector<DistrictIndex>> got;
     for_each_plan(g, c.k, c.min, c.max, [&](std::span<const DistrictIndex> a) {
       EXPECT_TRUE(got.emplace(a.begin(), a.end()).second);
@@ -107,7 +112,8 @@ TEST(Enumerate, MatchesBruteForceOnIrregularGraphs) {
 }
 
 TEST(Enumerate, EdgeCases) {
-  const UnitGraph g = test::grid(3, 3);
+  const GraphHandle g_handle = share_graph(test::grid(3, 3));
+  const UnitGraph& g = *g_handle;
   EXPECT_EQ(count_plans(g, 1, 9, 9), 1U);
   EXPECT_EQ(count_plans(g, 1, 10, 20), 0U);
   EXPECT_EQ(count_plans(g, 3, 4, 3), 0U);    // empty bounds

@@ -270,7 +270,8 @@ TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
   const fs::path out = dir.path() / "csv";
   ASSERT_EQ(test::run_export(run.run_dir.string() + " --out " + out.string() + " --every 4"), 0);
   const JobSpec job = load_job(run.job.string());
-  const UnitGraph graph = load_unit_graph(job.map);
+  const GraphHandle graph_handle = share_graph(load_unit_graph(job.map));
+  const UnitGraph& graph = *graph_handle;
   const CsvTable table = read_csv_file((out / observables_file_name()).string());
   const std::size_t cut = table.column_index("cut_edges");
   const std::size_t deviation = table.column_index("population_deviation");
@@ -281,7 +282,7 @@ TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
   for (const CsvRow& row : table.rows) {
     const RecordRef ref{std::stoull(row.fields[0]), std::stoull(row.fields[1])};
     if (ref.record % 4 != 0) continue;
-    const Plan plan = read_plan_csv((out / plan_file_name(ref)).string(), graph, job.districts);
+    const Plan plan = read_plan_csv((out / plan_file_name(ref)).string(), graph_handle, job.districts);
     EXPECT_TRUE(plan.all_connected()) << plan_file_name(ref);
     // Cut edges and max |P_d - P/k| / (P/k) counted here from the edge list and unit populations.
     std::size_t cut_edges = 0;

@@ -21,7 +21,7 @@ UnitGraph make_grid() {
 }  // namespace
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-  static const UnitGraph grid = make_grid();
+  static const GraphHandle grid = share_graph(make_grid());
   fuzz::expect_only_input_errors([&] {
     const Plan plan = parse_plan_csv(fuzz::as_text(data, size), "plan.csv", grid, 4);
     if (!plan.tallies_consistent()) fuzz::bug("tallies");

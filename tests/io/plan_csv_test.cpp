@@ -22,18 +22,20 @@ UnitGraph odd_ids() {
 
 TEST(PlanCsv, WriteThenReadGivesTheSamePlan) {
   test::TempDir dir;
-  const UnitGraph g = odd_ids();
-  const Plan plan(g, 2, {0, 0, 1, 1});
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  const Plan plan(g_handle, 2, {0, 0, 1, 1});
   const std::string path = (dir.path() / "plan.csv").string();
   write_plan_csv(path, plan);
   EXPECT_EQ(test::read_file(path), "unit,district\na,1\n\"b,1\",1\n\"say \"\"c\"\"\",2\n\" d\",2\n");
-  const Plan back = read_plan_csv(path, g, 2);
+  const Plan back = read_plan_csv(path, g_handle, 2);
   EXPECT_TRUE(back == plan);
 }
 
 TEST(PlanCsv, RowsInAnyOrder) {
-  const UnitGraph g = odd_ids();
-  const Plan p = parse_plan_csv("u,d\n\" d\",1\na,2\n\"b,1\",2.0\n\"say \"\"c\"\"\",1\n", "p.csv", g, 2);
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  const Plan p = parse_plan_csv("u,d\n\" d\",1\na,2\n\"b,1\",2.0\n\"say \"\"c\"\"\",1\n", "p.csv", g_handle, 2);
   EXPECT_EQ(p.district_of(0), 1);
   EXPECT_EQ(p.district_of(3), 0);
   EXPECT_EQ(p.district_of(1), 1);
@@ -42,56 +44,64 @@ TEST(PlanCsv, RowsInAnyOrder) {
 const std::string kGood = "u,d\na,1\n\"b,1\",1\n\"say \"\"c\"\"\",2\n";  // without " d"
 
 TEST(PlanCsv, UnknownId) {
-  const UnitGraph g = odd_ids();
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
   const std::string m =
-      expect_input_error([&] { (void)parse_plan_csv(kGood + "e,2\n", "p.csv", g, 2); }, "p.csv", 5, "u");
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "e,2\n", "p.csv", g_handle, 2); }, "p.csv", 5, "u");
   EXPECT_NE(m.find("'e'"), std::string::npos) << m;
 }
 
 TEST(PlanCsv, DuplicatedId) {
-  const UnitGraph g = odd_ids();
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
   const std::string m =
-      expect_input_error([&] { (void)parse_plan_csv(kGood + "a,2\n", "p.csv", g, 2); }, "p.csv", 5, "u");
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "a,2\n", "p.csv", g_handle, 2); }, "p.csv", 5, "u");
   EXPECT_NE(m.find("first on line 2"), std::string::npos) << m;
 }
 
 TEST(PlanCsv, MissingUnitsAreCountedAndNamed) {
-  const UnitGraph g = odd_ids();
-  const std::string m = expect_input_error([&] { (void)parse_plan_csv(kGood, "p.csv", g, 2); }, "p.csv", 0, "u");
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  const std::string m = expect_input_error([&] { (void)parse_plan_csv(kGood, "p.csv", g_handle, 2); }, "p.csv", 0, "u");
   EXPECT_NE(m.find("1 unit(s)"), std::string::npos) << m;
   EXPECT_NE(m.find("' d'"), std::string::npos) << m;
 }
 
 TEST(PlanCsv, DistrictOutOfRange) {
-  const UnitGraph g = odd_ids();
-  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",3\n", "p.csv", g, 2); }, "p.csv", 5, "d");
-  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",0\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",3\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",0\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
 }
 
 TEST(PlanCsv, DistrictNotAWholeNumber) {
-  const UnitGraph g = odd_ids();
-  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",1.5\n", "p.csv", g, 2); }, "p.csv", 5, "d");
-  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",two\n", "p.csv", g, 2); }, "p.csv", 5, "d");
-  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",\n", "p.csv", g, 2); }, "p.csv", 5, "d");
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",1.5\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",two\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
+  expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
 }
 
 TEST(PlanCsv, EmptyDistrictMeansTheWrongK) {
-  const UnitGraph g = odd_ids();
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
   const std::string m =
-      expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",2\n", "p.csv", g, 3); }, "p.csv", 0, "d");
+      expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",2\n", "p.csv", g_handle, 3); }, "p.csv", 0, "d");
   EXPECT_NE(m.find("district 3 has no units"), std::string::npos) << m;
 }
 
 TEST(PlanCsv, WrongColumnCount) {
-  const UnitGraph g = odd_ids();
-  expect_input_error([&] { (void)parse_plan_csv("u,d,x\na,1,1\n", "p.csv", g, 2); }, "p.csv", 1, "");
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
+  expect_input_error([&] { (void)parse_plan_csv("u,d,x\na,1,1\n", "p.csv", g_handle, 2); }, "p.csv", 1, "");
 }
 
 TEST(PlanCsv, MissingFile) {
   test::TempDir dir;
-  const UnitGraph g = odd_ids();
+  const GraphHandle g_handle = share_graph(odd_ids());
+  const UnitGraph& g = *g_handle;
   const std::string path = (dir.path() / "none.csv").string();
-  expect_input_error([&] { (void)read_plan_csv(path, g, 2); }, path, 0, "");
+  expect_input_error([&] { (void)read_plan_csv(path, g_handle, 2); }, path, 0, "");
 }
 
 }  // namespace

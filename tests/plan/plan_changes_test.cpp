@@ -27,9 +27,9 @@ std::set<UnitIndex> differing_units(const Plan& plan, const std::vector<District
 }
 
 TEST(PlanChanges, ListCoversEveryChangedUnitUntilItOverflows) {
-  const UnitGraph g = test::grid(40, 40);  // 1,600 units: room for 400 moves
+  const GraphHandle g_handle = share_graph(test::grid(40, 40));  // 1,600 units: room for 400 moves
   constexpr std::size_t k = 5;
-  Plan plan(g, k, test::stripe_assignment(40, 40, k));
+  Plan plan(g_handle, k, test::stripe_assignment(40, 40, k));
   EXPECT_TRUE(plan.changes().overflowed);  // nothing is known about earlier copies
   ASSERT_EQ(plan.change_capacity(), 400u);
   Rng rng = make_stream(31, 0);
@@ -43,7 +43,7 @@ TEST(PlanChanges, ListCoversEveryChangedUnitUntilItOverflows) {
     const std::uint32_t moves = 1 + uniform_below(rng, 1200);
     std::size_t real_moves = 0;
     for (std::uint32_t i = 0; i < moves; ++i) {
-      const UnitIndex u = uniform_below(rng, static_cast<std::uint32_t>(g.unit_count()));
+      const UnitIndex u = uniform_below(rng, static_cast<std::uint32_t>(g_handle->unit_count()));
       const auto to = static_cast<DistrictIndex>(
           i % 3 == 2 ? before[u] : uniform_below(rng, static_cast<std::uint32_t>(k)));
       if (plan.district_of(u) != to) ++real_moves;
@@ -68,8 +68,9 @@ TEST(PlanChanges, ListCoversEveryChangedUnitUntilItOverflows) {
 }
 
 TEST(PlanChanges, MovingToTheSameDistrictIsNotListed) {
-  const UnitGraph g = test::grid(4, 4);
-  Plan plan(g, 2, test::stripe_assignment(4, 4, 2));
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
+  Plan plan(g_handle, 2, test::stripe_assignment(4, 4, 2));
   plan.clear_changes();
   plan.move(0, plan.district_of(0));
   EXPECT_TRUE(plan.changes().units.empty());
@@ -81,8 +82,9 @@ TEST(PlanChanges, MovingToTheSameDistrictIsNotListed) {
 }
 
 TEST(PlanChanges, CopiesAndMovesAreOverflowed) {
-  const UnitGraph g = test::grid(6, 6);
-  Plan plan(g, 3, test::stripe_assignment(6, 6, 3));
+  const GraphHandle g_handle = share_graph(test::grid(6, 6));
+  const UnitGraph& g = *g_handle;
+  Plan plan(g_handle, 3, test::stripe_assignment(6, 6, 3));
   plan.clear_changes();
   plan.move(0, 2);
   Plan copy(plan);
@@ -92,7 +94,7 @@ TEST(PlanChanges, CopiesAndMovesAreOverflowed) {
   copy = plan;
   EXPECT_TRUE(copy.changes().overflowed);
   copy.clear_changes();
-  copy = Plan(g, 3, test::stripe_assignment(6, 6, 3));
+  copy = Plan(g_handle, 3, test::stripe_assignment(6, 6, 3));
   EXPECT_TRUE(copy.changes().overflowed);
   Plan moved(std::move(copy));
   EXPECT_TRUE(moved.changes().overflowed);
@@ -107,9 +109,10 @@ TEST(PlanChanges, CopiesAndMovesAreOverflowed) {
 }
 
 TEST(PlanChanges, KeepingTheListAllocatesNothing) {
-  const UnitGraph g = test::grid(30, 30);
+  const GraphHandle g_handle = share_graph(test::grid(30, 30));
+  const UnitGraph& g = *g_handle;
   constexpr std::size_t k = 4;
-  Plan plan(g, k, test::stripe_assignment(30, 30, k));
+  Plan plan(g_handle, k, test::stripe_assignment(30, 30, k));
   Plan other(plan);
   Rng rng = make_stream(8, 0);
   std::vector<UnitIndex> units(50);

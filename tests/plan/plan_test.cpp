@@ -32,9 +32,10 @@ UnitGraph rich_grid() {
 }
 
 TEST(Plan, RandomMovesKeepTalliesEqualToARecount) {
-  const UnitGraph g = rich_grid();
+  const GraphHandle g_handle = share_graph(rich_grid());
+  const UnitGraph& g = *g_handle;
   constexpr std::size_t k = 4;
-  Plan plan(g, k, test::stripe_assignment(6, 6, k));
+  Plan plan(g_handle, k, test::stripe_assignment(6, 6, k));
   ASSERT_TRUE(plan.tallies_consistent());
   Rng rng = make_stream(2024, 0);
   for (int step = 0; step < 2000; ++step) {
@@ -62,40 +63,43 @@ TEST(Plan, RandomMovesKeepTalliesEqualToARecount) {
 TEST(Plan, CutEdgesOfTheFourByFourGrid) {
   // METHODS.md section 8 (Plan metrics): a 4x4 grid cut into two halves has 4 cut edges, into four
   // 2x2 squares 8.
-  const UnitGraph g = test::grid(4, 4);
-  const Plan halves(g, 2, test::stripe_assignment(4, 4, 2));
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
+  const Plan halves(g_handle, 2, test::stripe_assignment(4, 4, 2));
   EXPECT_EQ(halves.cut_edge_count(), 4U);
   std::vector<DistrictIndex> squares(16);
   const auto blocks = test::block_codes(4, 4, 2, 2);
   for (std::size_t u = 0; u < 16; ++u) squares[u] = static_cast<DistrictIndex>(blocks[u]);
-  const Plan quarters(g, 4, squares);
+  const Plan quarters(g_handle, 4, squares);
   EXPECT_EQ(quarters.cut_edge_count(), 8U);
   EXPECT_TRUE(quarters.all_connected());
 }
 
 TEST(Plan, Contiguity) {
-  const UnitGraph g = test::grid(3, 3);
+  const GraphHandle g_handle = share_graph(test::grid(3, 3));
+  const UnitGraph& g = *g_handle;
   // District 1 = the middle column: connected. Then the corners 0 and 8 in district 1: not.
-  Plan plan(g, 2, {0, 1, 0, 0, 1, 0, 0, 1, 0});
+  Plan plan(g_handle, 2, {0, 1, 0, 0, 1, 0, 0, 1, 0});
   EXPECT_TRUE(plan.is_connected(1));
   EXPECT_FALSE(plan.is_connected(0));  // left and right columns do not touch
   EXPECT_FALSE(plan.all_connected());
-  Plan ring(g, 2, {0, 0, 0, 0, 1, 0, 0, 0, 0});
+  Plan ring(g_handle, 2, {0, 0, 0, 0, 1, 0, 0, 0, 0});
   EXPECT_TRUE(ring.all_connected());  // a ring around the centre is connected
   ring.move(1, 1);
   ring.move(7, 1);  // column 1 now splits the ring into left and right
   EXPECT_TRUE(ring.is_connected(1));
   EXPECT_FALSE(ring.is_connected(0));
   // An empty district is not connected.
-  Plan one(g, 3, {0, 0, 0, 0, 1, 0, 0, 0, 0});
+  Plan one(g_handle, 3, {0, 0, 0, 0, 1, 0, 0, 0, 0});
   EXPECT_FALSE(one.is_connected(2));
 }
 
 TEST(Plan, PopulationDeviationWorkedExample) {
   // METHODS.md section 9: ideal 100,000, largest 102,000, smallest 99,000 -> overall range 3%;
   // the largest absolute deviation is 2%.
-  const UnitGraph g = test::graph_from_edges(3, test::path_edges(3), {102000, 99000, 99000});
-  const Plan plan(g, 3, {0, 1, 2});
+  const GraphHandle g_handle = share_graph(test::graph_from_edges(3, test::path_edges(3), {102000, 99000, 99000}));
+  const UnitGraph& g = *g_handle;
+  const Plan plan(g_handle, 3, {0, 1, 2});
   EXPECT_DOUBLE_EQ(plan.ideal_population(), 100000.0);
   EXPECT_NEAR(plan.max_population_deviation(), 0.02, 1e-15);
   double high = -1.0, low = 1.0;

@@ -53,11 +53,12 @@ TEST(PopulationBounds, WorkedExample) {
 }
 
 TEST(RuleTracker, PopulationBoundsAndViolationText) {
-  const UnitGraph g = test::grid(4, 4);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4));
+  const UnitGraph& g = *g_handle;
   // Columns 0-2 (12 units) and column 3 (4 units): ideal 8, eps 0.1 -> [7.2, 8.8] -> [8, 8].
   std::vector<DistrictIndex> a(16, 0);
   for (UnitIndex r = 0; r < 4; ++r) a[r * 4 + 3] = 1;
-  Plan plan(g, 2, a);
+  Plan plan(g_handle, 2, a);
   RuleSet rules;
   rules.population_deviation = 0.1;
   RuleTracker tracker(plan, rules);
@@ -75,7 +76,7 @@ TEST(RuleTracker, PopulationBoundsAndViolationText) {
   EXPECT_TRUE(tracker.hard_rules_ok(plan));
   EXPECT_EQ(tracker.describe_violations(plan), "");
   // eps = 0 with ideal 16/3: no whole number fits, and the text says so.
-  const Plan three(g, 3, test::stripe_assignment(4, 4, 3));
+  const Plan three(g_handle, 3, test::stripe_assignment(4, 4, 3));
   RuleSet exact;
   exact.population_deviation = 0.0;
   const RuleTracker none(three, exact);
@@ -91,11 +92,12 @@ TEST(RuleTracker, CountySplitsByHand) {
   test::GraphExtras x;
   x.county.resize(16);
   for (UnitIndex u = 0; u < 16; ++u) x.county[u] = u % 4 == 0 ? 0 : (u % 4 == 3 ? 2 : 1);
-  const UnitGraph g = test::grid(4, 4, x);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4, x));
+  const UnitGraph& g = *g_handle;
   // Top half (rows 0-1) district 0, bottom half district 1: every county meets both -> 3.
   std::vector<DistrictIndex> a(16, 0);
   for (UnitIndex u = 8; u < 16; ++u) a[u] = 1;
-  Plan plan(g, 2, a);
+  Plan plan(g_handle, 2, a);
   RuleSet rules;
   rules.population_deviation = 0.5;
   rules.county_splits_max = 2;
@@ -128,10 +130,11 @@ TEST(RuleTracker, GroupShareTermsByHand) {
   std::vector<double> group(16, 0.0);
   for (UnitIndex u : {0U, 1U, 2U, 8U, 9U, 10U, 11U, 12U}) group[u] = 1.0;
   x.counts.push_back({"group", group});
-  const UnitGraph g = test::grid(4, 4, x);
+  const GraphHandle g_handle = share_graph(test::grid(4, 4, x));
+  const UnitGraph& g = *g_handle;
   std::vector<DistrictIndex> a(16, 0);
   for (UnitIndex u = 8; u < 16; ++u) a[u] = 1;  // district 0 share 3/8, district 1 share 5/8
-  Plan plan(g, 2, a);
+  Plan plan(g_handle, 2, a);
   RuleSet rules;
   rules.group_share = {{0, 0.375, 2.0}, {0, 0.6, 0.5}};
   RuleTracker tracker(plan, rules);
@@ -179,7 +182,7 @@ Recomputed recompute(const UnitGraph& g, std::span<const DistrictIndex> a, std::
 }
 
 struct RandomMap {
-  UnitGraph graph;
+  GraphHandle graph;
   RuleSet rules;
 };
 
@@ -193,7 +196,7 @@ RandomMap random_map(Rng& rng) {
     g2[u] = uniform_below(rng, static_cast<std::uint32_t>(x.population[u]) + 1);
   }
   x.counts = {{"g1", g1}, {"g2", g2}};
-  RandomMap m{test::grid(6, 6, x), {}};
+  RandomMap m{share_graph(test::grid(6, 6, x)), {}};
   m.rules.population_deviation = 0.3;
   m.rules.county_splits_max = 4;
   m.rules.cut_edges_weight = 0.37;
@@ -210,7 +213,7 @@ void expect_matches(const RuleTracker& t, const Plan& plan, const RuleSet& rules
     EXPECT_EQ(t.group_districts(i), r.group_districts[i]);
   EXPECT_EQ(t.energy(plan), r.energy);  // exact: counts are integers
   // A tracker built from scratch on the same labels agrees too.
-  const Plan fresh(plan.graph(), plan.district_count(),
+  const Plan fresh(plan.graph_handle(), plan.district_count(),
                    {plan.assignment().begin(), plan.assignment().end()});
   const RuleTracker again(fresh, rules);
   EXPECT_EQ(again.energy(fresh), t.energy(plan));
@@ -230,7 +233,7 @@ TEST(RuleTracker, RandomMovesMatchRecomputation) {
       // Mostly moves to a neighbour's district (realistic), sometimes anywhere or nowhere.
       DistrictIndex to = static_cast<DistrictIndex>(uniform_below(rng, 4));
       if (uniform_below(rng, 4) != 0) {
-        const auto nb = m.graph.neighbors(u);
+        const auto nb = m.graph->neighbors(u);
         to = plan.district_of(nb[uniform_below(rng, static_cast<std::uint32_t>(nb.size()))]);
       }
       tracker.move(plan, u, to);
@@ -271,8 +274,9 @@ TEST(RuleTracker, MoveDoesNotAllocate) {
 }
 
 TEST(RuleTracker, RejectsRulesTheMapCannotSupport) {
-  const UnitGraph g = test::grid(3, 3);
-  const Plan plan(g, 3, test::stripe_assignment(3, 3, 3));
+  const GraphHandle g_handle = share_graph(test::grid(3, 3));
+  const UnitGraph& g = *g_handle;
+  const Plan plan(g_handle, 3, test::stripe_assignment(3, 3, 3));
   RuleSet county;
   county.county_splits_max = 1;
   EXPECT_THROW(RuleTracker(plan, county), std::invalid_argument);
@@ -288,7 +292,8 @@ TEST(MakeRuleSet, ResolvesGroupsAndNamesMissingData) {
   test::GraphExtras x;
   x.counts = {{"votes_a", std::vector<double>(9, 1.0)}, {"black", std::vector<double>(9, 0.5)}};
   x.groups = {1};
-  const UnitGraph g = test::grid(3, 3, x);
+  const GraphHandle g_handle = share_graph(test::grid(3, 3, x));
+  const UnitGraph& g = *g_handle;
   RulesSpec spec;
   spec.population_deviation = 0.02;
   spec.cut_edges_weight = 0.5;

@@ -10,12 +10,13 @@ namespace planmill {
 namespace {
 
 TEST(SeedPlan, RandomSeedsAreValidForManyShapes) {
-  const UnitGraph g = test::grid(12, 10);
+  const GraphHandle g_handle = share_graph(test::grid(12, 10));
+  const UnitGraph& g = *g_handle;
   for (std::size_t k : {2u, 3u, 5u, 8u, 12u}) {
     RuleSet rules;
     rules.population_deviation = 0.05;
     Rng rng = make_stream(7, k);
-    const Plan plan = random_seed_plan(g, k, rules, rng);
+    const Plan plan = random_seed_plan(g_handle, k, rules, rng);
     EXPECT_TRUE(plan.all_connected()) << k;
     EXPECT_LE(plan.max_population_deviation(), 0.05 + 1e-12) << k;
     const RuleTracker tracker(plan, rules);
@@ -26,12 +27,13 @@ TEST(SeedPlan, RandomSeedsAreValidForManyShapes) {
 // One tree per split makes most attempts fail at some split; every restart must start again from
 // the whole map (a restart once began from the units left over by the failed attempt).
 TEST(SeedPlan, RestartsAfterAFailedLaterSplitStartFromTheWholeMap) {
-  const UnitGraph g = test::grid(6, 6);
+  const GraphHandle g_handle = share_graph(test::grid(6, 6));
+  const UnitGraph& g = *g_handle;
   RuleSet rules;
   rules.population_deviation = 0.0;  // three districts of exactly 12 units
   for (std::uint64_t seed = 1; seed <= 5; ++seed) {
     Rng rng = make_stream(seed, 0);
-    const Plan plan = random_seed_plan(g, 3, rules, rng, {1, 5000});
+    const Plan plan = random_seed_plan(g_handle, 3, rules, rng, {1, 5000});
     EXPECT_TRUE(plan.all_connected()) << seed;
     for (DistrictIndex d = 0; d < 3; ++d) EXPECT_EQ(plan.unit_count(d), 12U) << seed;
   }
@@ -39,12 +41,13 @@ TEST(SeedPlan, RestartsAfterAFailedLaterSplitStartFromTheWholeMap) {
 
 TEST(SeedPlan, ImpossibleToleranceIsAnInfeasibleErrorAfterBoundedEffort) {
   // A path of 5 units of population 1 cannot be cut into 2 districts of exactly 2.5.
-  const UnitGraph g = test::graph_from_edges(5, test::path_edges(5));
+  const GraphHandle g_handle = share_graph(test::graph_from_edges(5, test::path_edges(5)));
+  const UnitGraph& g = *g_handle;
   RuleSet rules;
   rules.population_deviation = 0.0;
   Rng rng = make_stream(1, 0);
   try {
-    (void)random_seed_plan(g, 2, rules, rng, {20, 3});
+    (void)random_seed_plan(g_handle, 2, rules, rng, {20, 3});
     FAIL();
   } catch (const InfeasibleError& e) {
     EXPECT_NE(std::string(e.what()).find("districts.start"), std::string::npos) << e.what();
@@ -52,9 +55,10 @@ TEST(SeedPlan, ImpossibleToleranceIsAnInfeasibleErrorAfterBoundedEffort) {
 }
 
 TEST(SeedPlan, UserPlanViolationsNameTheDistrict) {
-  const UnitGraph g = test::grid(2, 4);  // 0 1 2 3 / 4 5 6 7
+  const GraphHandle g_handle = share_graph(test::grid(2, 4));  // 0 1 2 3 / 4 5 6 7
+  const UnitGraph& g = *g_handle;
   // District 1 = {0, 3}: not contiguous; district 2 has the remaining 6 units.
-  Plan plan(g, 2, {0, 1, 1, 0, 1, 1, 1, 1});
+  Plan plan(g_handle, 2, {0, 1, 1, 0, 1, 1, 1, 1});
   RuleSet rules;
   rules.population_deviation = 0.1;
   try {

@@ -132,14 +132,15 @@ TEST(PlanCodec, RealChainRoundTripsAtEveryInterval) {
   const auto dir = fs::temp_directory_path() / ("planmill_codec_" + std::to_string(getpid()));
   (void)write_synthetic_state({2000, 20, 5, dir.string()});
   JobSpec job = load_job((dir / "job.toml").string());
-  UnitGraph graph = load_unit_graph(job.map);
+  const GraphHandle graph_handle = share_graph(load_unit_graph(job.map));
+  const UnitGraph& graph = *graph_handle;
   fs::remove_all(dir);
   RuleSet rules;
   rules.population_deviation = 0.05;
   Rng rng = make_stream(5, 1);
-  Plan start = random_seed_plan(graph, 20, rules, rng);
+  Plan start = random_seed_plan(graph_handle, 20, rules, rng);
   ChainSetup setup;
-  setup.graph = &graph;
+  setup.graph = graph_handle;
   setup.rules = rules;
   setup.kernel.kind = KernelKind::recombination;
   Chain chain(setup, start);

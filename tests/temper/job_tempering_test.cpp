@@ -40,8 +40,10 @@ TEST(TemperingSection, GeometricLadderFromRungsAndHottestBeta) {
   EXPECT_EQ(t.record, TemperingRecord::all);
   EXPECT_EQ(ladder_betas(job), geometric_betas(2.0, 0.02, 5));
 
-  const UnitGraph graph = test::grid(3, 3);
-  const LadderSetup setup = make_ladder_setup(job, graph, RuleSet{}, 2);
+  const GraphHandle graph_handle = share_graph(test::grid(3, 3));
+
+  const UnitGraph& graph = *graph_handle;
+  const LadderSetup setup = make_ladder_setup(job, graph_handle, RuleSet{}, 2);
   EXPECT_EQ(setup.ladder_index, 2u);
   EXPECT_EQ(setup.first_chain_index, 10u);  // ladder 2 of 5 rungs: chains 10..14
   EXPECT_EQ(setup.swap_every, 7u);

@@ -30,7 +30,7 @@ TEST(GeometricBetas, EqualRatiosAndExactEnds) {
 }
 
 struct Fixture {
-  UnitGraph graph = test::grid(6, 6);
+  GraphHandle graph = share_graph(test::grid(6, 6));
   RuleSet rules;
   Fixture() {
     rules.population_deviation = 0.2;
@@ -38,7 +38,7 @@ struct Fixture {
   }
   LadderSetup setup(KernelKind kind, std::vector<double> betas, std::uint64_t swap_every = 3) {
     LadderSetup s;
-    s.chain = ChainSetup{&graph, rules, {}, 21, 0};
+    s.chain = ChainSetup{graph, rules, {}, 21, 0};
     s.chain.kernel.kind = kind;
     s.chain.kernel.gamma = kind == KernelKind::merge_split ? 1.0 : 0.0;
     s.ladder_index = 2;
@@ -360,7 +360,7 @@ TEST(Ladder, TuningEqualisesNeighbourAcceptanceAndFreezes) {
 
 TEST(ChainBeta, SnapshotCarriesBetaAndFormatOneMeansTheSetupBeta) {
   Fixture f;
-  ChainSetup s{&f.graph, f.rules, {}, 5, 0};
+  ChainSetup s{f.graph, f.rules, {}, 5, 0};
   s.kernel.kind = KernelKind::flip;
   s.kernel.beta = 0.7;
   Chain a(s, f.start());

@@ -70,10 +70,10 @@ inline LadderLawResult check_ladder_law(const LadderLawCase& c) {
   // 2. Thinning: about 25 accepted moves of a lone chain at the target beta per record.
   std::vector<DistrictIndex> start;
   for (char ch : table.plans.front().plan) start.push_back(static_cast<DistrictIndex>(ch - 'a'));
-  const Plan start_plan(*c.graph, c.districts, start);
+  const Plan start_plan(c.graph, c.districts, start);
   std::uint64_t thin = c.thin;
   if (thin == 0) {
-    ChainSetup pilot_setup{c.graph.get(), c.rules, exact.kernel, c.seed + 1000, 0};
+    ChainSetup pilot_setup{c.graph, c.rules, exact.kernel, c.seed + 1000, 0};
     Chain pilot(pilot_setup, start_plan);
     constexpr std::uint64_t pilot_steps = 20000;
     for (std::uint64_t s = 0; s < pilot_steps; ++s) pilot.step();
@@ -84,7 +84,7 @@ inline LadderLawResult check_ladder_law(const LadderLawCase& c) {
 
   // 3. The ladder, recorded on its target rung after a burn-in of 100 recording intervals.
   LadderSetup setup;
-  setup.chain = ChainSetup{c.graph.get(), c.rules, c.kernel, c.seed, 0};
+  setup.chain = ChainSetup{c.graph, c.rules, c.kernel, c.seed, 0};
   setup.betas = c.betas;
   setup.swap_every = c.swap_every;
   setup.wrong_swap_sign = c.wrong_swap_sign;

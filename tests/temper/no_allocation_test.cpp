@@ -12,7 +12,7 @@ namespace {
 
 // A 4-rung ladder on a 6x6 grid with 3 districts.
 struct Fixture {
-  UnitGraph graph = test::grid(6, 6);
+  GraphHandle graph = share_graph(test::grid(6, 6));
   RuleSet rules;
   Fixture() {
     rules.population_deviation = 0.2;
@@ -21,7 +21,7 @@ struct Fixture {
   Ladder ladder(KernelKind kind, double gamma) {
     Rng seed_rng = make_stream(4, 0);
     LadderSetup setup;
-    setup.chain = ChainSetup{&graph, rules, {}, 3, 0};
+    setup.chain = ChainSetup{graph, rules, {}, 3, 0};
     setup.chain.kernel.kind = kind;
     setup.chain.kernel.gamma = gamma;
     setup.betas = geometric_betas(1.0, 0.1, 4);

@@ -27,11 +27,12 @@ namespace {
 
 TEST(NoAllocation, RepeatedRecombinationPiecesOnOneRegionSize) {
   // 12x12 grid in four 6x6 districts; the region is the top pair or the bottom pair (72 units).
-  const UnitGraph g = graph_from_edges(144, grid_edges(12, 12));
+  const GraphHandle g_handle = share_graph(graph_from_edges(144, grid_edges(12, 12)));
+  const UnitGraph& g = *g_handle;
   std::vector<DistrictIndex> d(144);
   for (std::size_t u = 0; u < 144; ++u)
     d[u] = static_cast<DistrictIndex>(2 * (u / 72) + (u % 12) / 6);
-  const Plan plan(g, 4, d);
+  const Plan plan(g_handle, 4, d);
   Region region;
   SpanningTreeSampler sampler;
   Rng rng = make_stream(81, 0);

@@ -44,11 +44,12 @@ void expect_induced(const UnitGraph& g, const Region& region, std::span<const Un
 TEST(Region, TwoDistrictsOfAPlan) {
   std::vector<std::int64_t> pop(16);
   for (std::size_t u = 0; u < 16; ++u) pop[u] = static_cast<std::int64_t>(10 + u);
-  const UnitGraph g = graph_from_edges(16, grid_edges(4, 4), pop);
+  const GraphHandle g_handle = share_graph(graph_from_edges(16, grid_edges(4, 4), pop));
+  const UnitGraph& g = *g_handle;
   // Four 2x2 squares: district = 2 * (row / 2) + column / 2.
   std::vector<DistrictIndex> d(16);
   for (std::size_t u = 0; u < 16; ++u) d[u] = static_cast<DistrictIndex>(2 * (u / 8) + (u % 4) / 2);
-  const Plan plan(g, 4, d);
+  const Plan plan(g_handle, 4, d);
   Region region;
   region.build(plan, 0, 1);
   const std::vector<UnitIndex> top = {0, 1, 2, 3, 4, 5, 6, 7};
@@ -62,12 +63,13 @@ TEST(Region, TwoDistrictsOfAPlan) {
 }
 
 TEST(Region, GrownFromSeedsEqualsTheScannedRegion) {
-  const UnitGraph g = graph_from_edges(36, grid_edges(6, 6));
+  const GraphHandle g_handle = share_graph(graph_from_edges(36, grid_edges(6, 6)));
+  const UnitGraph& g = *g_handle;
   // Six districts of 2 rows x 3 columns.
   std::vector<DistrictIndex> d(36);
   for (std::size_t u = 0; u < 36; ++u)
     d[u] = static_cast<DistrictIndex>(2 * ((u / 6) / 2) + (u % 6) / 3);
-  const Plan plan(g, 6, d);
+  const Plan plan(g_handle, 6, d);
   Region scanned, grown;
   for (UnitIndex u = 0; u < 36; ++u) {
     for (const UnitIndex w : g.neighbors(u)) {
@@ -86,7 +88,8 @@ TEST(Region, GrownFromSeedsEqualsTheScannedRegion) {
 }
 
 TEST(Region, UnitListInGivenOrderAndBadInput) {
-  const UnitGraph g = graph_from_edges(10, petersen_edges());
+  const GraphHandle g_handle = share_graph(graph_from_edges(10, petersen_edges()));
+  const UnitGraph& g = *g_handle;
   Region region;
   const std::vector<UnitIndex> units = {9, 0, 5, 7, 2};
   region.build(g, units);

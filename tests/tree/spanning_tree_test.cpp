@@ -123,14 +123,15 @@ ChiSquareResult wilson_chi_square(const Region& region, const TreeCatalog& catal
 
 // The 3x3 block in the top-left corner of a 4x4 grid, as the union of two districts of a plan.
 struct GridBlock {
-  UnitGraph graph = graph_from_edges(16, grid_edges(4, 4));
+  const GraphHandle graph_handle = share_graph(graph_from_edges(16, grid_edges(4, 4)));
+  const UnitGraph& graph = *graph_handle;
   Region region;
   GridBlock() {
     // District 0: units 0, 1, 2, 4; district 1: 5, 6, 8, 9, 10; district 2: the rest.
     std::vector<DistrictIndex> d(16, 2);
     for (const UnitIndex u : {0U, 1U, 2U, 4U}) d[u] = 0;
     for (const UnitIndex u : {5U, 6U, 8U, 9U, 10U}) d[u] = 1;
-    const Plan plan(graph, 3, d);
+    const Plan plan(graph_handle, 3, d);
     region.build(plan, 0, 1);
   }
 };
@@ -253,7 +254,8 @@ double expected_wilson_steps(const Region& region, std::uint32_t root) {
 }
 
 TEST(WilsonWalkLength, FourByFourGridMeanStepsMatchTheCommuteTimeFormula) {
-  const UnitGraph g = graph_from_edges(16, grid_edges(4, 4));
+  const GraphHandle g_handle = share_graph(graph_from_edges(16, grid_edges(4, 4)));
+  const UnitGraph& g = *g_handle;
   std::vector<UnitIndex> all(16);
   std::iota(all.begin(), all.end(), 0U);
   Region region;
@@ -306,7 +308,8 @@ TEST(TreeQueries, SubtreePopulationsCutsAndSidesMatchBruteForce) {
     const std::uint32_t extra = trial % 2 == 0 ? 0 : uniform_below(rng, 2 * n);  // trees, graphs
     std::vector<std::int64_t> pop(n);
     for (auto& p : pop) p = uniform_below(rng, 101);
-    const UnitGraph g = graph_from_edges(n, random_connected_edges(n, extra, rng), pop);
+    const GraphHandle g_handle = share_graph(graph_from_edges(n, random_connected_edges(n, extra, rng), pop));
+    const UnitGraph& g = *g_handle;
     std::vector<UnitIndex> units(n);
     std::iota(units.begin(), units.end(), 0U);
     region.build(g, units);
@@ -376,7 +379,8 @@ TEST(TreeQueries, SubtreePopulationsCutsAndSidesMatchBruteForce) {
 }
 
 TEST(TreeQueries, SingleVertexAndDisconnectedRegion) {
-  const UnitGraph g = graph_from_edges(3, {{0, 1}});
+  const GraphHandle g_handle = share_graph(graph_from_edges(3, {{0, 1}}));
+  const UnitGraph& g = *g_handle;
   Region region;
   SpanningTreeSampler sampler;
   Rng rng = make_stream(61, 0);

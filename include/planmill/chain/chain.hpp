@@ -20,7 +20,7 @@ struct ChainCounters {
 };
 
 struct ChainSetup {
-  const UnitGraph* graph = nullptr;
+  GraphHandle graph;
   RuleSet rules;
   KernelSettings kernel;
   std::uint64_t run_seed = 1;

@@ -3,6 +3,7 @@
 // graph of adjacency stored as CSR. Immutable once built; built only by UnitGraphBuilder, which
 // validates, merges duplicate edges and sorts neighbourhoods.
 #include <cstdint>
+#include <memory>
 #include <optional>
 #include <span>
 #include <string>
@@ -147,5 +148,12 @@ class UnitGraphBuilder {
   std::unordered_map<std::uint64_t, std::size_t> edge_slot_;
   bool any_length_ = false;
 };
+
+// The map shared by everything drawn on it. Plans and chain setups hold one, so a map lives as long
+// as any plan of it, and moving whatever built the map cannot leave a plan pointing at freed memory.
+using GraphHandle = std::shared_ptr<const UnitGraph>;
+[[nodiscard]] inline GraphHandle share_graph(UnitGraph&& graph) {
+  return std::make_shared<const UnitGraph>(std::move(graph));
+}
 
 }  // namespace planmill

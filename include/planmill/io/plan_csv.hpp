@@ -12,9 +12,9 @@ namespace planmill {
 
 // Every unit of `graph` must appear exactly once and every district 1..k must be used; anything
 // else is an InputError naming the file, line and column.
-[[nodiscard]] Plan read_plan_csv(const std::string& path, const UnitGraph& graph, std::size_t k);
+[[nodiscard]] Plan read_plan_csv(const std::string& path, const GraphHandle& graph, std::size_t k);
 // The same on text already in memory; `source` names it in errors.
-[[nodiscard]] Plan parse_plan_csv(std::string_view text, const std::string& source, const UnitGraph& graph,
+[[nodiscard]] Plan parse_plan_csv(std::string_view text, const std::string& source, const GraphHandle& graph,
                                   std::size_t k);
 
 // The plan as CSV text ("unit,district", units in graph order, districts 1..k).

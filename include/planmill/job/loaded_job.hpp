@@ -12,7 +12,7 @@ namespace planmill {
 
 struct LoadedJob {
   JobSpec job;
-  UnitGraph graph;
+  GraphHandle graph;  // shared with every plan drawn on it
   LoadReport report;
   std::optional<Plan> start;  // set when districts.start names a plan file
 };

@@ -14,8 +14,9 @@ namespace planmill {
 
 class Plan {
  public:
-  // district[u] in 0..k-1 for every unit. Throws std::invalid_argument on a wrong size or label.
-  Plan(const UnitGraph& graph, std::size_t district_count, std::vector<DistrictIndex> district);
+  // district[u] in 0..k-1 for every unit. Throws std::invalid_argument on a wrong size or label or
+  // a null graph.
+  Plan(GraphHandle graph, std::size_t district_count, std::vector<DistrictIndex> district);
 
   // Copies and moves carry the labels and tallies; the change list of the result is overflowed
   // (its labels came from elsewhere, so no earlier copy of them can be trusted to be close).
@@ -25,6 +26,7 @@ class Plan {
   Plan& operator=(Plan&& other) noexcept;
 
   [[nodiscard]] const UnitGraph& graph() const noexcept { return *graph_; }
+  [[nodiscard]] const GraphHandle& graph_handle() const noexcept { return graph_; }
   [[nodiscard]] std::size_t district_count() const noexcept { return k_; }
   [[nodiscard]] std::size_t unit_count() const noexcept { return district_.size(); }
   [[nodiscard]] DistrictIndex district_of(UnitIndex u) const noexcept { return district_[u]; }
@@ -75,7 +77,7 @@ class Plan {
   void add_unit(UnitIndex u, DistrictIndex d, double sign) noexcept;
   void reserve_changes();
 
-  const UnitGraph* graph_;
+  GraphHandle graph_;
   std::size_t k_;
   std::size_t columns_;
   std::vector<DistrictIndex> district_;

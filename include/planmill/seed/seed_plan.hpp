@@ -17,7 +17,7 @@ struct SeedEffort {
 
 // Splits one district at a time off the rest along a uniform spanning tree, so every district is
 // connected and within the population bounds; throws InfeasibleError after the effort is spent.
-[[nodiscard]] Plan random_seed_plan(const UnitGraph& graph, std::size_t districts, const RuleSet& rules,
+[[nodiscard]] Plan random_seed_plan(const GraphHandle& graph, std::size_t districts, const RuleSet& rules,
                                     Rng& rng, const SeedEffort& effort = {});
 
 // Throws InfeasibleError naming each district that breaks a hard rule, and by how much.

@@ -14,7 +14,7 @@ namespace planmill {
 
 struct SelftestCase {
   std::string name;
-  std::shared_ptr<const UnitGraph> graph;
+  GraphHandle graph;
   std::size_t districts = 2;
   RuleSet rules;
   KernelSettings kernel;

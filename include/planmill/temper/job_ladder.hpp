@@ -11,7 +11,7 @@ namespace planmill {
 [[nodiscard]] std::vector<double> ladder_betas(const JobSpec& job);
 
 // The setup of ladder `ladder_index` (0 .. sampler.chains - 1). The job must have tempering.
-[[nodiscard]] LadderSetup make_ladder_setup(const JobSpec& job, const UnitGraph& graph,
+[[nodiscard]] LadderSetup make_ladder_setup(const JobSpec& job, const GraphHandle& graph,
                                             const RuleSet& rules, std::uint64_t ladder_index);
 
 }  // namespace planmill

@@ -1,0 +1,117 @@
+// Starting from a given plan, as analysts start from an enacted one: a plan that planmill itself
+// exported becomes districts.start, and `planmill run` under mpiexec runs from it with every kernel,
+// on 1 and 2 ranks (this crashed once, when a plan outlived the map it pointed at).
+#include <gtest/gtest.h>
+
+#include <cstdint>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "planmill/run/run_reader.hpp"
+#include "../support/run_jobs.hpp"
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+using test::shell;
+
+std::string read_text(const fs::path& path) {
+  std::ifstream in(path);
+  std::stringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+int run(int ranks, const fs::path& job, const fs::path& out, const fs::path& log) {
+  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  return shell("timeout 120 mpiexec --oversubscribe -n " + std::to_string(ranks) + " " + PLANMILL_BINARY +
+               " run " + job.string() + " --output " + out.string() + " --quiet >" + log.string() + " 2>&1");
+}
+
+// The job's [sampler] body replaced and districts.start pointing at `plan`.
+void rewrite_job(const fs::path& job, const std::string& sampler, const fs::path& plan) {
+  std::string text = read_text(job);
+  text = text.substr(0, text.find("[sampler]"));
+  const std::string count_line = "count = 4\n";
+  const auto at = text.find(count_line);
+  ASSERT_NE(at, std::string::npos);
+  const std::string start_line = "start = \"" + plan.string() + "\"\n";
+  if (text.find(start_line) == std::string::npos) text.insert(at + count_line.size(), start_line);
+  std::ofstream(job, std::ios::trunc) << text << "[sampler]\n" << sampler << "\n";
+}
+
+// unit id -> district label (0-based), in the map's unit order, from an exported plan file.
+std::vector<DistrictIndex> labels_in_file(const fs::path& plan, const fs::path& units) {
+  std::vector<std::string> order;
+  std::istringstream u(read_text(units));
+  std::string line;
+  std::getline(u, line);
+  while (std::getline(u, line)) order.push_back(line.substr(0, line.find(',')));
+  std::istringstream p(read_text(plan));
+  std::getline(p, line);
+  std::vector<std::pair<std::string, int>> rows;
+  while (std::getline(p, line)) rows.emplace_back(line.substr(0, line.find(',')), std::stoi(line.substr(line.find(',') + 1)));
+  std::vector<DistrictIndex> labels;
+  for (const std::string& id : order)
+    for (const auto& [rid, d] : rows)
+      if (rid == id) labels.push_back(static_cast<DistrictIndex>(d - 1));
+  return labels;
+}
+
+class StartPlan : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    dir_ = test::scratch_dir("planmill-start-test", ::testing::UnitTest::GetInstance()->current_test_info()->name());
+    job_ = test::write_synth_job(dir_, "kernel = \"recombination\"\nchains = 2\nsteps = 20\nseed = 3\n");
+    ASSERT_EQ(run(1, job_, dir_ / "first", dir_ / "first.log"), 0) << read_text(dir_ / "first.log");
+    ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " export " + (dir_ / "first").string() + " --out " +
+                    (dir_ / "exported").string() + " --plans 1:7 >/dev/null"),
+              0);
+    plan_ = dir_ / "exported" / "plans" / "chain-1-record-7.csv";
+    ASSERT_TRUE(fs::exists(plan_));
+  }
+  fs::path dir_, job_, plan_;
+};
+
+TEST_F(StartPlan, EveryKernelRunsFromAnExportedPlanOnOneAndTwoRanks) {
+  for (const std::string kernel : {"recombination", "merge-split", "flip"}) {
+    for (const int ranks : {1, 2}) {
+      SCOPED_TRACE(kernel + " on " + std::to_string(ranks) + " rank(s)");
+      rewrite_job(job_, "kernel = \"" + kernel + "\"\nchains = 2\nsteps = 30\nseed = 4\n", plan_);
+      ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " check " + job_.string() + " >/dev/null 2>&1"), 0);
+      const fs::path out = dir_ / (kernel + "-" + std::to_string(ranks));
+      const fs::path log = dir_ / (kernel + "-" + std::to_string(ranks) + ".log");
+      ASSERT_EQ(run(ranks, job_, out, log), 0) << read_text(log);
+      RunReader reader(out.string());
+      EXPECT_EQ(reader.record_count(0), 30U);
+      EXPECT_EQ(reader.record_count(1), 30U);
+    }
+  }
+}
+
+// A flip step moves at most one unit, so the first record of every chain is the given plan or one
+// unit away from it: the chains did start there, not from a random seed plan.
+TEST_F(StartPlan, ChainsStartFromTheGivenPlan) {
+  rewrite_job(job_, "kernel = \"flip\"\nchains = 2\nsteps = 5\nseed = 4\n", plan_);
+  ASSERT_EQ(run(2, job_, dir_ / "flip", dir_ / "flip.log"), 0) << read_text(dir_ / "flip.log");
+  const std::vector<DistrictIndex> given = labels_in_file(plan_, job_.parent_path() / "units.csv");
+  ASSERT_EQ(given.size(), 200U);
+  RunReader reader((dir_ / "flip").string());
+  for (std::uint64_t chain = 0; chain < 2; ++chain) {
+    std::size_t differing = 999;
+    reader.for_each_plan(chain, 0, 0, [&](std::uint64_t, std::span<const DistrictIndex> labels) {
+      differing = 0;
+      for (std::size_t u = 0; u < labels.size(); ++u) differing += labels[u] != given[u] ? 1 : 0;
+    });
+    EXPECT_LE(differing, 1U) << "chain " << chain;
+  }
+}
+
+}  // namespace
+}  // namespace planmill
