@@ -36,7 +36,29 @@ std::string record_range(const ChainProblem& p) {
   return "records " + std::to_string(p.first_record) + ".." + last;
 }
 
+// The plan file every chain started from, when the run's job names one (empty for random starts or
+// when the job copy cannot be read).
+std::string shared_start_plan(const RunReader& reader) {
+  const auto path = reader.layout().job_copy();
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return {};
+  std::ostringstream s;
+  s << in.rdbuf();
+  try {
+    const JobSpec job = parse_job_text(s.str(), path.string());
+    return job.start == "random" ? std::string() : job.start;
+  } catch (const std::exception&) {
+    return {};
+  }
+}
+
 }  // namespace
+
+std::string shared_start_note(const std::string& start_plan) {
+  return "every chain started from the same given plan (" + start_plan +
+         "): R-hat compares chains, so it cannot see chains that all stayed near that plan; "
+         "confirm the verdict with a run from random seed plans (districts.start = \"random\")";
+}
 
 RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,
                                const std::vector<ChainTraces>& chains,
@@ -114,6 +136,8 @@ RunDiagnostics diagnose_run(const RunReader& reader, const diagnose::VerdictRule
             [](const auto& a, const auto& b) { return a.chain < b.chain; });
   RunDiagnostics d = diagnose_traces(reader.observable_names(), traces, rule, options.burn_in);
   d.left_out = std::move(left_out);
+  if (const std::string start = shared_start_plan(reader); !start.empty() && d.chains.size() > 1)
+    d.notes.push_back(shared_start_note(start));
   return d;
 }
 

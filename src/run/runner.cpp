@@ -302,6 +302,11 @@ class ChainRunner {
     row_.assign(names_.size(), 0.0);
     if (w_.root()) {
       for (const auto& warning : loaded_->report.warnings) spdlog::warn("{}", warning);
+      if (loaded_->start && state_.chains.size() > 1) {
+        spdlog::warn("every chain starts from {}: R-hat cannot see chains that all stay near one "
+                     "plan; confirm a verdict with a run from random seed plans",
+                     loaded_->job.start);
+      }
       const std::size_t units = state_.chains.size() * rungs();
       if (units < static_cast<std::size_t>(w_.size)) {
         spdlog::warn("{} {} on {} ranks: {} ranks have nothing to do", units,

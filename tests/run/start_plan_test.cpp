@@ -113,5 +113,21 @@ TEST_F(StartPlan, ChainsStartFromTheGivenPlan) {
   }
 }
 
+// R-hat compares chains, so chains that all began at one plan can agree while none left it: the
+// verdict of such a run says so, and a run from random seed plans does not carry the caution.
+TEST_F(StartPlan, DiagnoseCautionsWhenEveryChainStartedFromOnePlan) {
+  const std::string caution = "every chain started from the same given plan";
+  const auto diagnose = [&](const fs::path& run_dir) {
+    const fs::path log = dir_ / "diagnose.log";
+    (void)shell(std::string(PLANMILL_BINARY) + " diagnose " + run_dir.string() + " >" + log.string() + " 2>&1");
+    return read_text(log);
+  };
+  EXPECT_EQ(diagnose(dir_ / "first").find(caution), std::string::npos);
+  rewrite_job(job_, "kernel = \"recombination\"\nchains = 2\nsteps = 20\nseed = 4\n", plan_);
+  ASSERT_EQ(run(1, job_, dir_ / "given", dir_ / "given.log"), 0) << read_text(dir_ / "given.log");
+  EXPECT_NE(read_text(dir_ / "given.log").find("every chain starts from"), std::string::npos);
+  EXPECT_NE(diagnose(dir_ / "given").find(caution), std::string::npos);
+}
+
 }  // namespace
 }  // namespace planmill

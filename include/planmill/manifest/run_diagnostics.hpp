@@ -76,6 +76,9 @@ struct RunVerdictRule {
 [[nodiscard]] nlohmann::ordered_json diagnostics_to_json(const RunDiagnostics& diagnostics);
 
 // The compact table that both forms of `planmill diagnose` print, worst first.
+// The caution printed beside a verdict on chains that all started from one given plan.
+[[nodiscard]] std::string shared_start_note(const std::string& start_plan);
+
 void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out);
 // The one "verdict: pass (...)" or "verdict: fail (...)" line, with every failing quantity, its
 // values and a suggestion. left_out chains (damaged records) make it fail whatever the table
