@@ -75,7 +75,7 @@ double empty_file_bytes(const State& s, const fs::path& path) {
   {
     EnsembleWriter writer(path.string(), {s.graph->unit_count(), 100, "", unit_adjacency(*s.graph)});
     (void)writer.add_chain(0, {"cut_edges", "max_population_deviation"});
-    writer.flush();
+    writer.close();
   }
   const auto bytes = static_cast<double>(fs::file_size(path));
   fs::remove(path);
@@ -114,7 +114,7 @@ void BM_ChainRecording(benchmark::State& bench) {
         ++records;
       }
     }
-    writer.flush();
+    writer.close();
     encoded = writer.encoded_bytes();
   }
   const auto file_bytes = static_cast<double>(fs::file_size(path));
@@ -159,7 +159,7 @@ void BM_WriterOnly(benchmark::State& bench) {
                     std::span(observables).subspan(2 * r, 2));
       if (++r == kPlans) r = 0;
     }
-    writer.flush();
+    writer.close();
   }
   fs::remove(path);
   bench.SetItemsProcessed(bench.iterations());
@@ -209,6 +209,7 @@ void BM_ReadPlan(benchmark::State& bench) {
       (void)chain.step();
       writer.record(h, r, chain.state().plan.assignment(), {});
     }
+    writer.close();
   }
   EnsembleReader reader(path.string());
   std::size_t r = 0;

@@ -42,6 +42,9 @@ int main(int argc, char** argv) {
   } catch (const InfeasibleError& e) {
     std::cerr << "planmill: error: " << e.what() << "\n";
     return 2;
+  } catch (const OutputError& e) {
+    std::cerr << "planmill: error: " << e.what() << "\n";
+    return 5;
   } catch (const std::exception& e) {
     std::cerr << "planmill: internal error: " << e.what() << "\n";
     return 1;

@@ -72,6 +72,9 @@ int run_command(const RunOptions& options, const std::string& log_level, bool qu
   } catch (const InfeasibleError& e) {
     std::cerr << prefix << "error: " << e.what() << "\n";
     return 2;
+  } catch (const OutputError& e) {  // agreed by every rank: each ends cleanly
+    std::cerr << prefix << "error: " << e.what() << "\n";
+    return 5;
   } catch (const std::exception& e) {
     std::cerr << prefix << "error: " << e.what() << "\n";
     if (mpi.size() > 1) mpi.abort(1);

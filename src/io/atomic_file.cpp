@@ -16,8 +16,8 @@ namespace planmill {
 namespace {
 
 [[noreturn]] void fail(const std::string& path, const std::string& what, int error) {
-  throw InputError({path, 0, {}}, "cannot write the file (" + what + ": " + std::strerror(error) + ")",
-                   "check that the folder exists, is writable and has free space");
+  throw OutputError(path + ": cannot write the file (" + what + ": " + std::strerror(error) +
+                    "); check that the folder exists, is writable and has free space");
 }
 
 }  // namespace

@@ -4,6 +4,8 @@
 #include <stdexcept>
 #include <string>
 
+#include "planmill/base/error.hpp"
+
 namespace planmill {
 
 TreeProposal::TreeProposal(const UnitGraph& graph) : side_(graph.unit_count()), before_(graph.unit_count()) {}
@@ -91,10 +93,13 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   const auto cuts = proposal_.balanced_cuts(state.rules);
   const std::size_t bound =
       settings_.balanced_cut_bound > 0 ? settings_.balanced_cut_bound : proposal_.region_size() - 1;
+  // A setting the map outgrew, not a fault: the chain's state is as before the draw.
   if (cuts.size() > bound)
-    throw std::runtime_error("merge-split: a spanning tree has " + std::to_string(cuts.size()) +
-                             " balanced edges, more than the bound M = " + std::to_string(bound) +
-                             "; raise sampler.balanced_cut_bound");
+    throw InputError({"", 0, "sampler.balanced_cut_bound"},
+                     "a merge-split spanning tree had " + std::to_string(cuts.size()) +
+                         " balanced edges, more than the bound " + std::to_string(bound),
+                     "set it to at least " + std::to_string(cuts.size()) +
+                         " (with room to spare) and start the run anew");
   const std::uint32_t pick = uniform_below(rng, static_cast<std::uint32_t>(bound));
   if (pick >= cuts.size()) return StepResult::no_cut;
   proposal_.apply(state, cuts[pick], rng);

@@ -110,6 +110,9 @@ int attempt(Work&& work, std::exception_ptr& error) {
   } catch (const InfeasibleError&) {
     error = std::current_exception();
     return 2;
+  } catch (const OutputError&) {
+    error = std::current_exception();
+    return 5;
   } catch (...) {
     error = std::current_exception();
     return 1;
@@ -266,6 +269,7 @@ class ChainRunner {
       return out;
     }
     build_chains();
+    begin_session();
     return loop();
   }
 
@@ -289,11 +293,9 @@ class ChainRunner {
       }
       // Before anything in the folder is read, written or removed: one run per folder.
       lock_ = std::make_unique<RunLock>(layout_.root);
-      RunState state = options_.resume ? resumed_state() : new_state();
-      if (!state.finished || options_.until_converged) {
-        state.sessions.push_back({utc_now_iso8601(), "", w_.size, hosts, ""});
-        write_run_state(layout_, state);
-      }
+      fresh_ = !options_.resume;
+      RunState state = fresh_ ? new_state() : resumed_state();
+      state.sessions.push_back({utc_now_iso8601(), "", w_.size, hosts, ""});
       encoded = encode_run_state(state);
     });
     state_ = decode_run_state(broadcast_string(encoded));
@@ -326,16 +328,20 @@ class ChainRunner {
                       : chain_rank(chain, w_.size);
   }
 
+  // The state of a run not yet begun: nothing is written until every chain is built.
   RunState new_state() {
     const JobSpec& job = loaded_->job;
     if (fs::exists(layout_.state_file())) {
       throw InputError({layout_.state_file().string(), 0, ""}, "already holds a run",
                        "add --resume to continue it, or choose another folder with --output");
     }
-    fs::create_directories(layout_.plans_dir());
-    RunState fresh;
-    remove_unlisted_plan_files(layout_, fresh);  // a first session killed before its checkpoint
-    write_file_atomically(layout_.job_copy().string(), job.text);
+    for (const auto& entry : fs::directory_iterator(layout_.root)) {
+      if (entry.path().filename() == RunLock::file_name()) continue;
+      throw InputError({layout_.root.string(), 0, ""},
+                       "is not empty (it holds " + entry.path().filename().string() +
+                           ") and holds no run",
+                       "give a new or empty folder with --output or [output] dir");
+    }
     RunState s;
     s.run_id = make_run_id(job.text, job.sampler.seed);
     s.planmill_version = kVersion;
@@ -384,6 +390,21 @@ class ChainRunner {
     }
     remove_unlisted_plan_files(layout_, s);
     return s;
+  }
+
+  // After every chain is built: a fresh run writes its folder, and the session is recorded.
+  void begin_session() {
+    if (state_.finished && !options_.until_converged) return;
+    std::string encoded;
+    on_root_then_agree(w_, [&] {
+      if (fresh_) {
+        fs::create_directories(layout_.plans_dir());
+        write_file_atomically(layout_.job_copy().string(), loaded_->job.text);
+      }
+      write_run_state(layout_, state_);
+      encoded = encode_run_state(state_);
+    });
+    state_ = decode_run_state(broadcast_string(encoded));
   }
 
   void build_chains() {
@@ -442,8 +463,11 @@ class ChainRunner {
   // ---- the loop ----
   enum Field : std::size_t {
     kStop, kCheckpointSignal, kCheckpointDue, kNextRound, kAccepted, kRecords,
-    kRemaining, kProgressDue, kStepsTotal, kFieldCount
+    kRemaining, kProgressDue, kStepsTotal, kFailed, kFieldCount
   };
+  // Rounds this long answer a signal promptly: mpiexec gives the ranks about a second after it
+  // forwards SIGTERM, and a round (of ladders, which cannot stop mid-round) must end well within.
+  static constexpr double kRoundSeconds = 0.25;
 
   RunOutcome loop() {
     std::uint64_t round_steps = 16;
@@ -464,6 +488,7 @@ class ChainRunner {
       mine[kRecords] = records_local();
       mine[kRemaining] = remaining_local();
       mine[kStepsTotal] = total_steps_local();
+      mine[kFailed] = step_status_ != 0 ? 1 : 0;
       if (w_.root()) {
         const auto now = Clock::now();
         const double seconds = std::chrono::duration<double>(now - last_checkpoint).count();
@@ -473,14 +498,15 @@ class ChainRunner {
                     std::chrono::duration<double>(now - last_progress).count() >= options_.progress_seconds
                 ? 1
                 : 0;
-        // Aim at rounds of about a second: short enough to answer a signal promptly.
         const double round_seconds = std::chrono::duration<double>(now - round_start).count();
-        const double scale = round_seconds > 0 ? std::clamp(1.0 / round_seconds, 0.5, 2.0) : 2.0;
+        const double scale =
+            round_seconds > 0 ? std::clamp(kRoundSeconds / round_seconds, 0.5, 2.0) : 2.0;
         mine[kNextRound] = std::clamp<std::uint64_t>(
             static_cast<std::uint64_t>(static_cast<double>(round_steps) * scale), 1, 1'000'000);
       }
       std::uint64_t all[kFieldCount] = {};
       MPI_Allreduce(mine, all, kFieldCount, MPI_UINT64_T, MPI_SUM, MPI_COMM_WORLD);
+      if (all[kFailed] > 0) end_on_step_error();
       round_steps = all[kNextRound];
       if (all[kProgressDue]) {
         report_progress(all, steps_at_last_progress, last_progress);
@@ -510,6 +536,27 @@ class ChainRunner {
     return tempered() ? step_ladders(round_steps) : step_chains(round_steps);
   }
 
+  // A step that throws (a setting the map outgrew) ends this rank's round; the round's agreement
+  // then ends the run on every rank without a commit, so the last checkpoint stands.
+  [[noreturn]] void end_on_step_error() {
+    int worst = 0;
+    MPI_Allreduce(&step_status_, &worst, 1, MPI_INT, MPI_MAX, MPI_COMM_WORLD);
+    writer_.reset();  // its records were never committed
+    if (w_.root()) {
+      if (bar_shown_) std::fprintf(stderr, "\n");
+      spdlog::warn("stopped without a checkpoint; the run in {} keeps its last checkpoint",
+                   layout_.root.string());
+    }
+    if (!step_error_) throw RunFailedElsewhere{worst};
+    try {
+      std::rethrow_exception(step_error_);
+    } catch (const InputError& e) {
+      if (!e.where().file.empty()) throw;
+      throw InputError({options_.job_path, 0, ""}, e.what());  // name the job the key is in
+    }
+  }
+
+  // Plain chains step one after another and stop at once on a signal, mid-round.
   std::uint64_t step_chains(std::uint64_t round_steps) {
     std::uint64_t done = 0;
     const std::uint64_t target = state_.target_steps;
@@ -517,12 +564,16 @@ class ChainRunner {
       const std::uint64_t steps = local.steps();
       if (steps >= target) continue;
       const std::uint64_t n = std::min(round_steps, target - steps);
-      for (std::uint64_t i = 0; i < n; ++i) {
-        (void)local.chain->step();
-        const std::uint64_t s = local.chain->counters().steps;
-        if (s > state_.burn_in && s % state_.record_every == 0) record_chain(local, s);
-      }
-      done += n;
+      step_status_ = attempt(
+          [&] {
+            for (std::uint64_t i = 0; i < n && !g_stop_requested; ++i, ++done) {
+              (void)local.chain->step();
+              const std::uint64_t s = local.chain->counters().steps;
+              if (s > state_.burn_in && s % state_.record_every == 0) record_chain(local, s);
+            }
+          },
+          step_error_);
+      if (step_status_ != 0 || g_stop_requested) break;
     }
     return done;
   }
@@ -537,7 +588,10 @@ class ChainRunner {
     if (steps >= target) return 0;
     const std::uint64_t n = std::min(round_steps, target - steps);
     for (std::uint64_t i = 0; i < n; ++i) {
-      for (auto& local : chains_) local.ladder->step_replicas();
+      // After a failed step this rank steps no replica, but meets its partners to the round's end.
+      for (auto& local : chains_) {
+        if (step_status_ == 0) step_status_ = attempt([&] { local.ladder->step_replicas(); }, step_error_);
+      }
       for (auto& local : chains_) {
         Ladder& ladder = *local.ladder;
         if (ladder.swap_due()) {
@@ -640,8 +694,8 @@ class ChainRunner {
             if (handle != SIZE_MAX) writer_->set_counters(handle, counters[k]);
           }
         }
-        writer_.reset();  // closes the HDF5 file
-        fsync_path(layout_.resolve(writer_file_));
+        writer_->close();  // writes the file in one piece, fsynced
+        writer_.reset();
         part.files.push_back({writer_file_, segment_, w_.rank, host_});
       }
       const std::string now = utc_now_iso8601();
@@ -881,6 +935,7 @@ class ChainRunner {
   RunOptions options_;
   World w_;
   std::unique_ptr<RunLock> lock_;  // rank 0: held for the whole run
+  bool fresh_ = false;             // rank 0: a new run, its folder not yet written
   std::string host_;
   std::unique_ptr<LoadedJob> loaded_;
   RuleSet rules_;
@@ -896,6 +951,8 @@ class ChainRunner {
   std::string writer_file_;
   std::string verdict_summary_;
   bool bar_shown_ = false;
+  int step_status_ = 0;             // the exit status a failed step maps to; 0: none
+  std::exception_ptr step_error_;   // that step's error
 };
 
 }  // namespace

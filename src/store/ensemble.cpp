@@ -1,10 +1,18 @@
-// EnsembleWriter / EnsembleReader over the HDF5 C API (serial file driver). Layout: docs/format.md.
+// EnsembleWriter (HDF5 core driver, in memory until close) / EnsembleReader (serial driver) over
+// the HDF5 C API. Layout: docs/format.md.
 #include "planmill/store/ensemble.hpp"
 
+#include <unistd.h>
+
 #include <algorithm>
+#include <cerrno>
+#include <cstring>
+#include <filesystem>
 #include <map>
 #include <optional>
 
+#include "planmill/base/error.hpp"
+#include "planmill/io/atomic_file.hpp"
 #include "planmill/store/hdf5_handle.hpp"
 
 namespace planmill {
@@ -209,9 +217,17 @@ EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& he
   if (!header.adjacency.empty() && !header.adjacency.valid_for(header.unit_count))
     throw std::invalid_argument("EnsembleWriter: the unit adjacency does not fit " +
                                 std::to_string(header.unit_count) + " units");
+  const std::filesystem::path target(path);
+  const std::string folder = target.has_parent_path() ? target.parent_path().string() : ".";
+  if (::access(folder.c_str(), W_OK | X_OK) != 0) {
+    throw OutputError(path + ": cannot write the file (folder " + folder + ": " +
+                      std::strerror(errno) + "); check that the folder exists and is writable");
+  }
+  // The core driver without a backing store: HDF5 never touches the disk, close() does.
   H5PropList fapl =
       checked<H5PropList>(H5Pcreate(H5P_FILE_ACCESS), path, "creating a file access list");
-  check(H5Pset_fapl_sec2(fapl.get()), path, "choosing the serial file driver");
+  check(H5Pset_fapl_core(fapl.get(), std::size_t{1} << 20, 0), path,
+        "choosing the in-memory file driver");
   m.file = checked<H5File>(H5Fcreate(path.c_str(), H5F_ACC_TRUNC, H5P_DEFAULT, fapl.get()), path,
                            "creating the ensemble file");
   const hid_t root = m.file.get();
@@ -226,13 +242,7 @@ EnsembleWriter::EnsembleWriter(const std::string& path, const EnsembleHeader& he
   if (!header.adjacency.empty()) write_adjacency(root, header.adjacency, path);
 }
 
-EnsembleWriter::~EnsembleWriter() {
-  try {
-    flush();
-  } catch (...) {
-    // A destructor cannot report; callers who care call flush() themselves.
-  }
-}
+EnsembleWriter::~EnsembleWriter() = default;  // an unclosed file is dropped with the memory
 
 std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
                                       const std::vector<std::string>& names) {
@@ -320,10 +330,26 @@ void EnsembleWriter::set_counters(std::size_t chain, const StoredCounters& count
     write_attribute(g, kCounterNames[i], H5T_STD_U64LE, &values[i], m.path);
 }
 
-void EnsembleWriter::flush() {
+void EnsembleWriter::close() {
   Impl& m = *impl_;
+  if (!m.file.valid()) throw std::logic_error("EnsembleWriter::close: closed already");
+  const std::string& path = m.path;
   for (auto& c : m.chains) m.write_pending(c);
-  check(H5Fflush(m.file.get(), H5F_SCOPE_GLOBAL), m.path, "flushing the ensemble file");
+  for (auto& c : m.chains) {
+    check(c.observables.close(), path, "closing observables");
+    check(c.records.close(), path, "closing plan_records");
+    check(c.bytes.close(), path, "closing plan_bytes");
+    check(c.group.close(), path, "closing a chain group");
+  }
+  check(H5Fflush(m.file.get(), H5F_SCOPE_GLOBAL), path, "finishing the ensemble file");
+  const ssize_t size = H5Fget_file_image(m.file.get(), nullptr, 0);
+  if (size < 0) throw StoreError(path, "sizing the ensemble file", hdf5_error_stack());
+  std::string image(static_cast<std::size_t>(size), '\0');
+  if (H5Fget_file_image(m.file.get(), image.data(), image.size()) != size)
+    throw StoreError(path, "copying the ensemble file", hdf5_error_stack());
+  check(m.file.close(), path, "closing the ensemble file");
+  m.chains.clear();
+  write_file_atomically(path, image);
 }
 
 std::uint64_t EnsembleWriter::encoded_bytes() const noexcept {

@@ -29,10 +29,10 @@ TEST(AtomicFile, WritesAndReplaces) {
   EXPECT_EQ(entries(dir.path()), 1U);  // no temporary file left
 }
 
-TEST(AtomicFile, MissingFolderIsAnInputError) {
+TEST(AtomicFile, MissingFolderIsAnOutputError) {
   test::TempDir dir;
   const std::string path = (dir.path() / "no" / "out.txt").string();
-  EXPECT_THROW(write_file_atomically(path, "x"), InputError);
+  EXPECT_THROW(write_file_atomically(path, "x"), OutputError);
   EXPECT_EQ(entries(dir.path()), 0U);
 }
 
@@ -42,7 +42,7 @@ TEST(AtomicFile, FailedRenameLeavesTheOldEntryAndNoTemporary) {
   const std::filesystem::path target = dir.path() / "taken";
   std::filesystem::create_directory(target);
   dir.write("taken/keep.txt", "old");
-  EXPECT_THROW(write_file_atomically(target.string(), "new"), InputError);
+  EXPECT_THROW(write_file_atomically(target.string(), "new"), OutputError);
   EXPECT_TRUE(std::filesystem::is_directory(target));
   EXPECT_EQ(test::read_file((target / "keep.txt").string()), "old");
   EXPECT_EQ(entries(dir.path()), 1U);

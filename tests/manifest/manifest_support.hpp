@@ -106,7 +106,7 @@ FixtureRun write_run_with_observables(const std::filesystem::path& dir,
         first += span.records;
       }
     }
-    writer.flush();
+    writer.close();
   }
   return run;
 }

@@ -194,9 +194,9 @@ TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterrup
   const auto job = write_job(dir, kLongSampler, 300.0);
   const auto out = dir / "stopped";
   const pid_t launcher = spawn_run(2, job, out);
-  // Wait until rank 1 has recorded plans: the chains are under way.
-  ASSERT_TRUE(wait_for([&] { return fs::exists(out / "plans" / "seg-00000-rank-001.h5"); }, launcher, 120));
-  std::this_thread::sleep_for(std::chrono::milliseconds(500));
+  // The run state appears once every chain is built; a second later the chains are under way.
+  ASSERT_TRUE(wait_for([&] { return fs::exists(RunLayout{out}.state_file()); }, launcher, 120));
+  std::this_thread::sleep_for(std::chrono::milliseconds(1000));
   for (const pid_t rank : children_of(launcher)) ::kill(rank, SIGTERM);
   EXPECT_EQ(wait_exit(launcher), 4) << "a rank stopped on SIGTERM exits with 4 (resumable)";
   const RunState stopped = read_run_state(RunLayout{out});

@@ -138,8 +138,8 @@ TEST(ChangeHint, RealChainRecordsExactlyWithAndWithoutTheList) {
         recorded.emplace_back(plan.assignment().begin(), plan.assignment().end());
       }
     }
-    with.flush();
-    without.flush();
+    with.close();
+    without.close();
     EXPECT_EQ(with.encoded_bytes(), without.encoded_bytes());
   }
   EXPECT_GT(listed, 100u);

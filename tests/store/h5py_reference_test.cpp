@@ -105,6 +105,7 @@ void check_against_h5py(std::size_t units, std::size_t k, std::uint32_t seed,
         written[c].push_back(plan);
       }
     }
+    writer.close();
   }
   std::ofstream(script) << kPythonReader;
   const std::string command =

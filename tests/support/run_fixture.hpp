@@ -130,7 +130,7 @@ inline FixtureRun write_fixture_run(const std::filesystem::path& dir, const Fixt
         chain.last_checkpoint = utc_now_iso8601();
         writer.set_counters(handle, chain.counters);
       }
-      writer.flush();
+      writer.close();
       if (any) s.files.push_back({name, seg, rank, "localhost"});
     }
     s.checkpoints = seg + 1;

@@ -30,4 +30,12 @@ class InfeasibleError : public std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
+// An output that could not be written (no space left, no permission, an I/O error). Exit status 5:
+// nothing written before is damaged, so the same command can be run again (or a run resumed) once
+// the cause is gone. what() names the file and the system's reason.
+class OutputError : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
 }  // namespace planmill

@@ -7,7 +7,7 @@ namespace planmill {
 
 // Writes `content` to a temporary file in the same folder, flushes it to disk, then renames it
 // over `path`. On any failure the old file is left as it was, the temporary file is removed, and
-// an InputError naming `path` is thrown.
+// an OutputError naming `path` is thrown.
 void write_file_atomically(const std::string& path, std::string_view content);
 
 }  // namespace planmill

@@ -1,5 +1,5 @@
 #pragma once
-// Ensemble files: one HDF5 file (serial driver, one per rank) holding, per chain, the recorded
+// Ensemble files: one HDF5 file (one per rank and segment) holding, per chain, the recorded
 // plans in compact form, a table of observables per recorded plan and the step-outcome counters.
 // Layout in docs/format.md. Every HDF5 failure throws StoreError (store/hdf5_handle.hpp).
 #include <cstdint>
@@ -38,11 +38,15 @@ struct StoredCounters {
   std::uint64_t steps = 0, accepted = 0, rejected = 0, no_cut = 0, invalid = 0;
 };
 
+// Builds one ensemble file in memory and writes it in one piece on close(): a killed process or
+// a full disk never leaves a half-written file, and every write error surfaces in close().
 class EnsembleWriter {
  public:
-  // Creates (truncates) `path`.
+  // The file appears at `path` only when close() succeeds (replacing any file there). Throws
+  // OutputError at once when the folder of `path` is missing or not writable.
   EnsembleWriter(const std::string& path, const EnsembleHeader& header,
                  EnsembleWriterOptions options = {});
+  // Without close(), nothing is written.
   ~EnsembleWriter();
   EnsembleWriter(const EnsembleWriter&) = delete;
   EnsembleWriter& operator=(const EnsembleWriter&) = delete;
@@ -61,8 +65,10 @@ class EnsembleWriter {
   void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
               std::span<const double> observables, const PlanChanges& changes);
   void set_counters(std::size_t chain, const StoredCounters& counters);
-  // Writes every buffered record and H5Fflush-es the file, so that what was recorded is durable.
-  void flush();
+  // Finishes the file and writes it to `path` (a temporary name, fsync, rename). Throws
+  // StoreError when HDF5 fails, OutputError naming the file when it cannot be written; either way
+  // no file (or the one there before) is at `path`. The writer takes no records after close().
+  void close();
   // Bytes of encoded plan records so far (before HDF5 compression), summed over chains.
   [[nodiscard]] std::uint64_t encoded_bytes() const noexcept;
 

@@ -45,9 +45,12 @@ class H5Handle {
 
   [[nodiscard]] hid_t get() const noexcept { return id_; }
   [[nodiscard]] bool valid() const noexcept { return id_ >= 0; }
-  void reset() noexcept {
-    if (id_ >= 0) (void)Close(id_);
+  void reset() noexcept { (void)close(); }
+  // Closes the id now and returns HDF5's status (0 when there was nothing to close).
+  herr_t close() noexcept {
+    const herr_t status = id_ >= 0 ? Close(id_) : 0;
     id_ = H5I_INVALID_HID;
+    return status;
   }
 
  private:
