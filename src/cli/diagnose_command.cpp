@@ -62,6 +62,8 @@ void check_thresholds(const DiagnoseOptions& o) {
 
 int diagnose_trace_file(const DiagnoseOptions& o) {
   const diagnose::Traces traces = diagnose::read_traces(o.traces, o.burn_in);
+  if (const std::string w = diagnose::single_chain_warning(traces); !w.empty())
+    std::cerr << "planmill: warning: " << w << "\n";
   std::vector<diagnose::QuantityDiagnostics> table;
   table.reserve(traces.quantity_names.size());
   for (std::size_t q = 0; q < traces.quantity_names.size(); ++q) {
