@@ -9,7 +9,6 @@
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
-#include <sstream>
 #include <string>
 
 #include "../support/run_jobs.hpp"
@@ -20,13 +19,7 @@ namespace {
 
 namespace fs = std::filesystem;
 using test::shell;
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::stringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
+using test::read_text;
 
 struct Outcome {
   int status = -1;
@@ -45,7 +38,7 @@ class TraceInputs : public ::testing::Test {
     const auto out = dir_ / "stdout.txt", err = dir_ / "stderr.txt";
     const int status = shell(std::string(PLANMILL_BINARY) + " diagnose " + args + " > '" + out.string() +
                              "' 2> '" + err.string() + "'");
-    return {status, slurp(out), slurp(err)};
+    return {status, read_text(out), read_text(err)};
   }
 
   // The quantities of `diagnose --json` by name: name -> {rhat, ess_bulk, ess_tail, mcse_mean}.
@@ -56,7 +49,7 @@ class TraceInputs : public ::testing::Test {
     EXPECT_TRUE(o.status == 0 || o.status == 3) << o.out << o.err;
     nlohmann::json by_name = nlohmann::json::object();
     if (!fs::exists(json_path)) return by_name;
-    const nlohmann::json written = nlohmann::json::parse(slurp(json_path));
+    const nlohmann::json written = nlohmann::json::parse(read_text(json_path));
     for (const auto& q : written[list_key]) {
       by_name[q["name"].get<std::string>()] = {q["rhat"], q["ess_bulk"], q["ess_tail"], q["mcse_mean"]};
     }
@@ -101,7 +94,7 @@ TEST_F(TraceInputs, ReadsRWriteCsvOutput) {
   ASSERT_EQ(shell("Rscript -e 'x <- read.csv(\"" + plain.string() + "\"); write.csv(x, \"" + from_r.string() +
                   "\")' > /dev/null 2>&1"),
             0);
-  const std::string text = slurp(from_r);
+  const std::string text = read_text(from_r);
   ASSERT_EQ(text.rfind("\"\",\"chain\",\"draw\",\"cut_edges\",\"seats_a\"", 0), 0u) << text.substr(0, 80);
 
   const Outcome o = diagnose("--traces '" + from_r.string() + "'");
@@ -132,12 +125,12 @@ TEST_F(TraceInputs, ReadsPlanmillExportObservables) {
   ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " run " + job.string() + " --output " + run_dir.string() +
                   " --quiet > " + (dir_ / "run.log").string() + " 2>&1"),
             0)
-      << slurp(dir_ / "run.log");
+      << read_text(dir_ / "run.log");
   ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " export " + run_dir.string() + " --out " + csv_dir.string() +
                   " > /dev/null"),
             0);
   const fs::path observables = csv_dir / "observables.csv";
-  ASSERT_EQ(slurp(observables).rfind("chain,record,step,", 0), 0u);
+  ASSERT_EQ(read_text(observables).rfind("chain,record,step,", 0), 0u);
 
   const Outcome o = diagnose("--traces '" + observables.string() + "'");
   EXPECT_TRUE(o.status == 0 || o.status == 3) << o.out << o.err;
