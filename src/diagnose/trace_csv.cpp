@@ -1,32 +1,33 @@
 #include "planmill/diagnose/trace_csv.hpp"
 
 #include <charconv>
+#include <cmath>
 #include <fstream>
+#include <limits>
+#include <sstream>
 #include <string_view>
 #include <unordered_map>
 
 #include "planmill/base/error.hpp"
+#include "planmill/io/csv.hpp"
 
 namespace planmill::diagnose {
 namespace {
 
 std::string_view trim(std::string_view s) {
   while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
-  while (!s.empty() && (s.back() == ' ' || s.back() == '\t' || s.back() == '\r')) s.remove_suffix(1);
+  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
   return s;
 }
 
-std::vector<std::string_view> split_cells(std::string_view line) {
-  std::vector<std::string_view> cells;
-  for (std::size_t start = 0;;) {
-    const std::size_t comma = line.find(',', start);
-    cells.push_back(trim(line.substr(start, comma - start)));
-    if (comma == std::string_view::npos) return cells;
-    start = comma + 1;
-  }
-}
-
+// A decimal number as C++ reads it (with nan and inf), or R's and planmill export's NA, NaN, Inf
+// and -Inf; NA is read as NaN.
 bool parse_number(std::string_view cell, double& out) {
+  cell = trim(cell);
+  if (cell == "NA") {
+    out = std::numeric_limits<double>::quiet_NaN();
+    return true;
+  }
   if (!cell.empty() && cell.front() == '+') cell.remove_prefix(1);
   const auto [end, ec] = std::from_chars(cell.data(), cell.data() + cell.size(), out);
   return ec == std::errc() && end == cell.data() + cell.size() && !cell.empty();
@@ -38,74 +39,93 @@ struct ChainRows {
   std::size_t last_line = 0;
 };
 
+// Which columns of the header hold what.
+struct Columns {
+  std::size_t chain = 0, order = 0;
+  std::string order_name;              // "draw", or "record" in planmill export's table
+  std::vector<std::size_t> quantities;  // in header order
+};
+
+Columns find_columns(const CsvTable& table, const std::string& path) {
+  const auto& header = table.header;
+  Columns c;
+  // R's write.csv puts the row names first, under an empty name.
+  std::size_t first = !header.empty() && header[0].empty() ? 1 : 0;
+  const bool has_order = header.size() > first + 1;
+  if (!has_order || header[first] != "chain" ||
+      (header[first + 1] != "draw" && header[first + 1] != "record")) {
+    throw InputError({path, 1, {}}, "header must be 'chain,draw,<quantity>,...' (it is " + table.header_list() + ")",
+                     "planmill export's 'chain,record,step,...' and R's write.csv output are read too; "
+                     "see docs/diagnostics.md");
+  }
+  c.chain = first;
+  c.order = first + 1;
+  c.order_name = header[c.order];
+  first += 2;
+  // planmill export writes the chain step beside the record number: an index, not a quantity.
+  if (c.order_name == "record" && first < header.size() && header[first] == "step") ++first;
+  for (std::size_t i = first; i < header.size(); ++i) {
+    if (trim(header[i]).empty()) {
+      throw InputError({path, 1, {}}, "column " + std::to_string(i + 1) + " has no name",
+                       "name every quantity in the header");
+    }
+    for (const std::size_t j : c.quantities) {
+      if (header[j] == header[i]) throw InputError({path, 1, header[i]}, "quantity named twice in header");
+    }
+    c.quantities.push_back(i);
+  }
+  if (c.quantities.empty()) {
+    throw InputError({path, 1, {}}, "the header names no quantity", "add one column per quantity");
+  }
+  return c;
+}
+
 }  // namespace
 
 Traces read_traces(const std::string& path, std::size_t burn_in) {
-  std::ifstream in(path);
+  std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError({path, 0, {}}, "cannot open the trace file", "check the path");
-  std::string line;
-  std::size_t line_no = 0;
+  std::ostringstream text;
+  text << in.rdbuf();
+  const CsvTable table = parse_csv_text(text.view(), path);
+  const Columns columns = find_columns(table, path);
+  const std::size_t nq = columns.quantities.size();
   Traces traces;
-  std::vector<std::string> header;
-  while (std::getline(in, line)) {
-    ++line_no;
-    if (!trim(line).empty()) break;
-  }
-  for (auto cell : split_cells(line)) header.emplace_back(cell);
-  if (header.size() < 3 || header[0] != "chain" || header[1] != "draw") {
-    throw InputError({path, line_no, {}}, "header must be 'chain,draw,<quantity>,...'",
-                     "see docs/diagnostics.md for the trace CSV");
-  }
-  for (std::size_t i = 2; i < header.size(); ++i) {
-    if (header[i].empty()) throw InputError({path, line_no, {}}, "empty quantity name in header");
-    for (std::size_t j = 2; j < i; ++j) {
-      if (header[j] == header[i]) {
-        throw InputError({path, line_no, header[i]}, "quantity named twice in header");
-      }
-    }
-  }
-  traces.quantity_names.assign(header.begin() + 2, header.end());
-  const std::size_t nq = traces.quantity_names.size();
+  for (const std::size_t i : columns.quantities) traces.quantity_names.push_back(table.header[i]);
 
   std::vector<ChainRows> chains;
   std::unordered_map<std::string, std::size_t> chain_index;
-  while (std::getline(in, line)) {
-    ++line_no;
-    if (trim(line).empty()) continue;
-    const auto cells = split_cells(line);
-    if (cells.size() != header.size()) {
-      throw InputError({path, line_no, {}},
-                       "row has " + std::to_string(cells.size()) + " cells, header has " +
-                           std::to_string(header.size()));
-    }
-    if (cells[0].empty()) throw InputError({path, line_no, "chain"}, "empty chain label");
-    auto [it, fresh] = chain_index.try_emplace(std::string(cells[0]), chains.size());
+  for (const CsvRow& row : table.rows) {
+    const std::string_view label = trim(row.fields[columns.chain]);
+    if (label.empty()) throw InputError({path, row.line, "chain"}, "empty chain label");
+    auto [it, fresh] = chain_index.try_emplace(std::string(label), chains.size());
     if (fresh) {
       chains.push_back({std::vector<std::vector<double>>(nq), 0.0, 0});
-      traces.chain_labels.emplace_back(cells[0]);
+      traces.chain_labels.emplace_back(label);
     }
     ChainRows& chain = chains[it->second];
     double draw = 0.0;
-    if (!parse_number(cells[1], draw)) {
-      throw InputError({path, line_no, "draw"}, "'" + std::string(cells[1]) + "' is not a number");
+    const std::string& order_cell = row.fields[columns.order];
+    if (!parse_number(order_cell, draw) || std::isnan(draw)) {
+      throw InputError({path, row.line, columns.order_name}, "'" + order_cell + "' is not a number");
     }
     if (chain.last_line > 0 && !(draw > chain.last_draw)) {
-      throw InputError({path, line_no, "draw"},
-                       "draws of chain '" + std::string(cells[0]) + "' must increase",
-                       "write each chain's rows in draw order");
+      throw InputError({path, row.line, columns.order_name},
+                       columns.order_name + "s of chain '" + std::string(label) + "' must increase",
+                       "write each chain's rows in " + columns.order_name + " order");
     }
     chain.last_draw = draw;
-    chain.last_line = line_no;
+    chain.last_line = row.line;
     for (std::size_t q = 0; q < nq; ++q) {
+      const std::string& cell = row.fields[columns.quantities[q]];
       double v = 0.0;
-      if (!parse_number(cells[q + 2], v)) {
-        throw InputError({path, line_no, header[q + 2]},
-                         "'" + std::string(cells[q + 2]) + "' is not a number");
+      if (!parse_number(cell, v)) {
+        throw InputError({path, row.line, traces.quantity_names[q]}, "'" + cell + "' is not a number");
       }
       chain.columns[q].push_back(v);
     }
   }
-  if (chains.empty()) throw InputError({path, line_no, {}}, "no draws after the header");
+  if (chains.empty()) throw InputError({path, 1, {}}, "no draws after the header");
   const std::size_t draws = chains[0].columns[0].size();
   for (std::size_t c = 1; c < chains.size(); ++c) {
     if (chains[c].columns[0].size() != draws) {
@@ -131,6 +151,13 @@ Traces read_traces(const std::string& path, std::size_t burn_in) {
     }
   }
   return traces;
+}
+
+std::string single_chain_warning(const Traces& traces) {
+  if (traces.chain_labels.size() != 1) return {};
+  return "the traces hold one chain ('" + traces.chain_labels[0] +
+         "'): R-hat then compares only its two halves and cannot show that chains from different "
+         "starts agree; give at least two chains (Vehtari et al. 2021 advise four)";
 }
 
 }  // namespace planmill::diagnose

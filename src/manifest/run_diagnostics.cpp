@@ -92,19 +92,22 @@ RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,
                       " records)");
   }
 
-  std::vector<diagnose::QuantityDiagnostics> table;
-  table.reserve(width);
-  std::vector<double> values(d.draws * chains.size());
+  // One draws x chains matrix per observable, judged by the stopping rule (the runner's too).
+  const std::size_t cells = d.draws * chains.size();
+  std::vector<double> values(cells * width);
+  std::vector<diagnose::NamedDraws> quantities;
+  quantities.reserve(width);
   for (std::size_t q = 0; q < width; ++q) {
+    double* matrix = values.data() + q * cells;
     for (std::size_t c = 0; c < chains.size(); ++c) {
       const double* rows = chains[c].rows.data();
       for (std::size_t t = 0; t < d.draws; ++t)
-        values[c * d.draws + t] = rows[(burn_in + t) * width + q];
+        matrix[c * d.draws + t] = rows[(burn_in + t) * width + q];
     }
-    table.push_back(
-        diagnose::diagnose_quantity(observable_names[q], {values, d.draws, chains.size()}));
+    quantities.push_back({observable_names[q], {{matrix, cells}, d.draws, chains.size()}});
   }
-  d.verdict = diagnose::judge(std::move(table), rule);
+  d.stop = diagnose::check_stop(quantities, rule);
+  d.verdict = d.stop.whole;
   return d;
 }
 
@@ -175,7 +178,8 @@ RunVerdictRule verdict_rule_of_run(const RunReader& reader) {
   }
   if (!root.contains("verdict")) return {{}, "defaults (the job has no [verdict] section)"};
   const JobSpec job = parse_job_text(text, source);
-  return {{job.verdict.rhat_max, job.verdict.ess_min}, "job [verdict] in " + source};
+  return {{job.verdict.rhat_max, job.verdict.ess_min, static_cast<std::size_t>(job.verdict.min_records)},
+          "job [verdict] in " + source};
 }
 
 json diagnostics_to_json(const RunDiagnostics& d) {
@@ -207,7 +211,10 @@ json diagnostics_to_json(const RunDiagnostics& d) {
   for (const auto& l : d.left_out) left_out.push_back({{"chain", l.chain}, {"why", l.why}});
   return {{"verdict", d.pass() ? "pass" : "fail"},
           {"rule",
-           {{"rhat_max", d.rule.rhat_max}, {"ess_min", d.rule.ess_min}, {"source", d.rule_source}}},
+           {{"rhat_max", d.rule.rhat_max},
+            {"ess_min", d.rule.ess_min},
+            {"min_records", d.rule.min_records},
+            {"source", d.rule_source}}},
           {"burn_in", d.burn_in},
           {"chains", d.chains},
           {"records", d.records},
@@ -215,6 +222,14 @@ json diagnostics_to_json(const RunDiagnostics& d) {
           {"left_out", left_out},
           {"notes", d.notes},
           {"observables", observables},
+          {"stopping_rule",
+           {{"min_records", d.rule.min_records},
+            {"records_per_chain", d.stop.records},
+            {"whole", d.stop.whole.pass ? "pass" : "fail"},
+            {"later_half_first_record", d.stop.later_first},
+            {"later_half", d.stop.later.pass ? "pass" : "fail"},
+            {"failed_part", d.stop.failed_part()},
+            {"summary", d.stop.summary()}}},
           {"failures", failures},
           {"remarks", remarks},
           {"computed", utc_now_iso8601()}};
@@ -268,6 +283,29 @@ void print_verdict(const diagnose::Verdict& verdict, const diagnose::VerdictRule
   }
   for (const auto& f : verdict.failures) {
     out << "  " << f.name << ": " << f.problem << "\n    -> " << f.suggestion << "\n";
+  }
+}
+
+void print_verdict(const diagnose::StopCheck& stop, const diagnose::VerdictRule& rule,
+                   std::ostream& out, std::size_t left_out) {
+  if (left_out > 0) {
+    print_verdict(stop.whole, rule, out, left_out);
+    return;
+  }
+  for (const auto& r : stop.whole.remarks) out << "  " << r.name << ": " << r.what << "\n";
+  if (stop.pass()) {
+    out << "verdict: pass (R-hat < " << rule.rhat_max << ", bulk and tail ESS > " << rule.ess_min
+        << " for every judged quantity; " << stop.summary() << ")\n";
+    return;
+  }
+  out << "verdict: fail (" << stop.summary() << ")\n";  // the summary names the failed part
+  const diagnose::Verdict& shown = stop.whole.pass && stop.long_enough() ? stop.later : stop.whole;
+  for (const auto& f : shown.failures) {
+    out << "  " << f.name << ": " << f.problem << "\n    -> " << f.suggestion << "\n";
+  }
+  if (!stop.long_enough()) {
+    out << "  -> run more steps: a verdict counts only from " << stop.min_records
+        << " records per chain on ([verdict] min_records)\n";
   }
 }
 

@@ -20,6 +20,7 @@
 
 #include "planmill/base/error.hpp"
 #include "planmill/chain/chain.hpp"
+#include "planmill/diagnose/stopping_rule.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/file_hash.hpp"
@@ -758,22 +759,26 @@ class ChainRunner {
     std::uint64_t decision[2] = {0, state_.target_steps};  // 0 go on, 1 converged, 2 budget spent
     std::string summary;
     on_root_then_agree(w_, [&] {
-      const diagnose::Verdict verdict = diagnose_committed();
+      // The stopping rule (diagnose/stopping_rule.hpp): long enough, and a passing verdict on the
+      // whole record and on its later half alone, so a lucky early pass does not end the run.
+      const diagnose::StopCheck stop = diagnose_committed();
+      const diagnose::Verdict& verdict = stop.whole.pass && stop.long_enough() ? stop.later : stop.whole;
       const std::uint64_t block = std::max<std::uint64_t>(
           loaded_->job.sampler.steps - loaded_->job.sampler.burn_in, state_.record_every);
-      if (verdict.pass) {
+      if (stop.pass()) {
         decision[0] = 1;
       } else if (state_.target_steps >= options_.max_steps) {
         decision[0] = 2;
       } else {
         decision[1] = std::min(options_.max_steps, state_.target_steps + block);
       }
+      if (!stop.pass()) summary = "\n  stopping rule: " + stop.summary();
       for (const auto& f : verdict.failures) {
         summary += "\n  " + f.name + ": " + f.problem;
       }
       if (decision[0] == 0) {
-        spdlog::info("verdict after {} steps per chain: not yet ({} failing){}; going on to {}",
-                     state_.target_steps, verdict.failures.size(), summary, decision[1]);
+        spdlog::info("verdict after {} steps per chain: not yet ({}){}; going on to {}",
+                     state_.target_steps, stop.failed_part(), summary, decision[1]);
       }
     });
     MPI_Bcast(decision, 2, MPI_UINT64_T, 0, MPI_COMM_WORLD);
@@ -793,7 +798,7 @@ class ChainRunner {
     return converged ? RunEnd::converged : RunEnd::budget_spent;
   }
 
-  diagnose::Verdict diagnose_committed() const {
+  diagnose::StopCheck diagnose_committed() const {
     RunReader reader(layout_.root.string());
     const auto chains = reader.chains();
     std::size_t draws = SIZE_MAX;
@@ -803,16 +808,18 @@ class ChainRunner {
       draws = std::min(draws, reader.record_count(c));
     }
     const std::size_t width = names_.size();
-    std::vector<diagnose::QuantityDiagnostics> table;
-    std::vector<double> matrix(draws * chains.size());
+    const std::size_t cells = draws * chains.size();
+    std::vector<double> values(cells * width);
+    std::vector<diagnose::NamedDraws> quantities;
     for (std::size_t j = 0; j < width; ++j) {
+      double* matrix = values.data() + j * cells;
       for (std::size_t c = 0; c < chains.size(); ++c) {
         for (std::size_t d = 0; d < draws; ++d) matrix[c * draws + d] = rows[c][d * width + j];
       }
-      table.push_back(diagnose::diagnose_quantity(names_[j], {matrix, draws, chains.size()}));
+      quantities.push_back({names_[j], {{matrix, cells}, draws, chains.size()}});
     }
-    const diagnose::VerdictRule rule{loaded_->job.verdict.rhat_max, loaded_->job.verdict.ess_min};
-    return diagnose::judge(std::move(table), rule);
+    const auto& v = loaded_->job.verdict;
+    return diagnose::check_stop(quantities, {v.rhat_max, v.ess_min, static_cast<std::size_t>(v.min_records)});
   }
 
   // ---- progress ----

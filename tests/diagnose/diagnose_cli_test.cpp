@@ -147,6 +147,25 @@ TEST_F(DiagnoseCli, OtherBadInputExitsTwo) {
   EXPECT_NE(missing.err.find("absent.csv"), std::string::npos) << missing.err;
 }
 
+// The stopping rule (stopping_rule.hpp) through the CLI: chains that drift apart in the last
+// quarter pass on the whole record but fail on the later half, and the verdict line says which.
+TEST_F(DiagnoseCli, TheVerdictLineNamesThePartOfTheStoppingRuleThatFailed) {
+  auto drift = testing::ar1("energy", 4000, 4, 0.0, 62);
+  for (std::size_t c = 0; c < 4; ++c)
+    for (std::size_t t = 3000; t < 4000; ++t) drift.values[c * 4000 + t] += c < 2 ? 0.25 : -0.25;
+  const Outcome late = run("--traces '" + write_traces({drift}).string() + "'");
+  EXPECT_EQ(late.status, 3) << late.out << late.err;
+  EXPECT_NE(late.out.find("fail on the later half (records 2000..3999"), std::string::npos) << late.out;
+  EXPECT_NE(late.out.find("the whole record passes"), std::string::npos) << late.out;
+
+  const auto traces = write_traces({testing::ar1("cut_edges", 400, 4, 0.0, 35)}).string();
+  EXPECT_EQ(run("--traces '" + traces + "' --min-records 400").status, 0);
+  const Outcome short_run = run("--traces '" + traces + "' --min-records 401");
+  EXPECT_EQ(short_run.status, 3);
+  EXPECT_NE(short_run.out.find("verdict: fail (too short: 400 records per chain"), std::string::npos)
+      << short_run.out;
+}
+
 // A folder without run-state.json is not a run folder: bad input, named in the message.
 TEST_F(DiagnoseCli, FolderWithoutRunStateExitsTwo) {
   const Outcome o = run("'" + dir_.string() + "'");

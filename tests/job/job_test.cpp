@@ -54,6 +54,7 @@ checkpoint_seconds = 60
 [verdict]
 rhat_max = 1.05
 ess_min = 200
+min_records = 300
 )";
 
 TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
@@ -78,6 +79,7 @@ TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
   EXPECT_DOUBLE_EQ(job.sampler.beta, 2.0);
   EXPECT_EQ(job.output.dir, "jobs/runs/x");
   EXPECT_DOUBLE_EQ(job.verdict.ess_min, 200.0);
+  EXPECT_EQ(job.verdict.min_records, 300u);
   EXPECT_EQ(job.text, kGood);
 }
 
@@ -112,6 +114,7 @@ INSTANTIATE_TEST_SUITE_P(
     ::testing::Values(
         BadJob{"unknown key", "count = 20", "count = 20\ncolour = 3", "'districts.colour': unknown key"},
         BadJob{"unknown section", "[verdict]", "[verdikt]", "'verdikt': unknown key"},
+        BadJob{"min_records too small", "min_records = 300", "min_records = 4", "'verdict.min_records'"},
         BadJob{"wrong type", "count = 20", "count = \"20\"", "'districts.count': must be a whole number"},
         BadJob{"out of range", "population_deviation = 0.02", "population_deviation = 1.5",
                "'rules.population_deviation'"},

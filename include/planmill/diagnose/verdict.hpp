@@ -8,6 +8,7 @@
 //    constant within each chain but different between chains fails: its chains never mixed;
 //  - a discrete quantity whose 5% or 95% quantile is its smallest or largest value has no tail ESS
 //    (the quantile indicator is constant); it is judged on R-hat and bulk ESS alone.
+#include <cstddef>
 #include <string>
 #include <vector>
 
@@ -18,6 +19,9 @@ namespace planmill::diagnose {
 struct VerdictRule {
   double rhat_max = 1.01;
   double ess_min = 400.0;
+  // Records per chain before a verdict can count (the stopping rule, stopping_rule.hpp; judge()
+  // itself does not look at it).
+  std::size_t min_records = 200;
 };
 
 struct Failure {

@@ -61,6 +61,7 @@ struct OutputSpec {
 struct VerdictSpec {
   double rhat_max = 1.01;
   double ess_min = 400.0;
+  std::uint64_t min_records = 200;  // records per chain before a verdict can count
 };
 
 struct JobSpec {

@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "planmill/diagnose/stopping_rule.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/run/run_reader.hpp"
 
@@ -44,10 +45,12 @@ struct RunDiagnostics {
   std::size_t draws = 0;               // per chain: the common prefix after burn_in
   std::vector<LeftOutChain> left_out;  // chains with damaged records
   std::vector<std::string> notes;      // e.g. unequal record counts and what was done
-  diagnose::Verdict verdict;           // table worst first
+  diagnose::Verdict verdict;           // on the whole record (stop.whole), table worst first
+  diagnose::StopCheck stop;            // the stopping rule: whole record, later half, length
 
-  // A run with chains left out does not pass, whatever the others show.
-  [[nodiscard]] bool pass() const { return verdict.pass && left_out.empty(); }
+  // Passes only by the stopping rule (diagnose/stopping_rule.hpp); a run with chains left out
+  // does not pass, whatever the others show.
+  [[nodiscard]] bool pass() const { return stop.pass() && left_out.empty(); }
 };
 
 // Chains of unequal length are cut to their common prefix (with a note); a chain shorter than
@@ -84,6 +87,10 @@ void print_verdict_table(const diagnose::Verdict& verdict, std::ostream& out);
 // values and a suggestion. left_out chains (damaged records) make it fail whatever the table
 // shows; the line then says so and what the other chains alone show.
 void print_verdict(const diagnose::Verdict& verdict, const diagnose::VerdictRule& rule,
+                   std::ostream& out, std::size_t left_out = 0);
+// The same by the stopping rule: pass only if it holds; otherwise the line names the part that
+// failed (too short, whole record, later half) and lists that part's failing quantities.
+void print_verdict(const diagnose::StopCheck& stop, const diagnose::VerdictRule& rule,
                    std::ostream& out, std::size_t left_out = 0);
 
 }  // namespace planmill
