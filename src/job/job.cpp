@@ -329,7 +329,11 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
   const toml::table* districts = top.table("districts");
   if (!districts) top.fail("districts", "section [districts] is missing", "add [districts] with count = K");
   Section d(*districts, "districts", job.path);
-  job.districts = static_cast<std::size_t>(d.integer("count", 0, 1, 65'534, true));
+  // One district is no plan to sample: every kernel needs a pair of districts (a cut edge).
+  if (const toml::node* count = districts->get("count"); count && count->is_integer() && **count->as_integer() < 2)
+    d.fail("count", "is " + std::to_string(**count->as_integer()) + "; a plan needs at least 2 districts",
+           "set districts.count to 2 or more");
+  job.districts = static_cast<std::size_t>(d.integer("count", 0, 2, 65'534, true));
   const std::string start = d.string("start", "random");
   job.start = start == "random" ? start : resolve(base, start);
   d.reject_unknown();

@@ -36,11 +36,16 @@ class Cli : public ::testing::Test {
   }
   void TearDown() override { fs::remove_all(dir_); }
 
-  Outcome run(const std::string& args) {
-    const std::string command = std::string(PLANMILL_BINARY) + " " + args + " >" + (dir_ / "out").string() +
+  Outcome run(const std::string& args) { return run_prefixed("", args); }
+  Outcome run_prefixed(const std::string& prefix, const std::string& args) {
+    const std::string command = prefix + std::string(PLANMILL_BINARY) + " " + args + " >" + (dir_ / "out").string() +
                                 " 2>" + (dir_ / "err").string();
     const int raw = std::system(command.c_str());
     return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(dir_ / "out"), slurp(dir_ / "err")};
+  }
+  // run() killed after `seconds` (exit status 137 then), for commands that used to hang.
+  Outcome run_within(int seconds, const std::string& args) {
+    return run_prefixed("timeout -s KILL " + std::to_string(seconds) + " ", args);
   }
   void write(const std::string& name, const std::string& text) { std::ofstream(dir_ / name) << text; }
   std::string path(const std::string& name) const { return (dir_ / name).string(); }
@@ -172,3 +177,28 @@ TEST_F(Cli, StartingPlanThatBreaksTheRulesIsNamedWithDistrictAndAmount) {
 }
 
 }  // namespace
+
+// Issue 11, item 2: a one-district job used to pass check and then spin for ever in run (the
+// cut-edge draw never found a cut edge). `timeout` keeps a regression from hanging the suite.
+TEST_F(Cli, OneDistrictIsRefusedByCheckAndRun) {
+  write_small_map("recombination", 1, 0.3);
+  for (const std::string command : {"check " + path("job.toml"),
+                                    "run " + path("job.toml") + " --quiet --output " + path("runs")}) {
+    const auto o = run_within(60, command);
+    EXPECT_EQ(o.status, 2) << command << "\n" << o.err;
+    EXPECT_NE(o.err.find("job.toml:"), std::string::npos) << o.err;
+    EXPECT_NE(o.err.find("'districts.count'"), std::string::npos) << o.err;
+    EXPECT_NE(o.err.find("at least 2"), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  }
+}
+
+TEST_F(Cli, SynthRefusesOneDistrict) {
+  const auto o = run("synth --units 40 --districts 1 --out " + path("one"));
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("'--districts'"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("at least 2"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  EXPECT_FALSE(fs::exists(dir_ / "one" / "job.toml"));
+}
+

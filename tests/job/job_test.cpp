@@ -123,6 +123,9 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"party/column mismatch", "columns = [\"gov_a\", \"gov_b\"]", "columns = [\"gov_a\"]",
                "'map.elections.columns'"},
         BadJob{"syntax", "count = 20", "count = = 20", "not valid TOML"},
+        BadJob{"one district", "count = 20", "count = 1",
+               "'districts.count': is 1; a plan needs at least 2 districts; set districts.count to 2 or more"},
+        BadJob{"no districts", "count = 20", "count = 0", "'districts.count': is 0; a plan needs at least 2"},
         BadJob{"tempering needs hottest_beta", "[verdict]", "[tempering]\nrungs = 4\n[verdict]",
                "'tempering.hottest_beta': required key is missing"}),
     [](const auto& info) {
