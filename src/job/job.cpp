@@ -1,6 +1,7 @@
 #include "planmill/job/job.hpp"
 
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <set>
@@ -55,6 +56,19 @@ class Section {
     if (!node) {
       if (required) missing(key);
       return fallback;
+    }
+    if (node->is_floating_point()) {
+      // TOML reads 1e6 and 2.0 as floats, which may already have been rounded (2^53 + 1 cannot be
+      // told from 2^53), so a float is never taken for an integer; say how to write one.
+      const double v = **node->as_floating_point();
+      if (std::isfinite(v) && v == std::floor(v) && std::fabs(v) < 1e15) {
+        char digits[32];
+        std::snprintf(digits, sizeof digits, "%.0f", v);
+        fail(key, "must be a whole number written as an integer; TOML reads a point or an exponent as a float",
+             std::string("write ") + digits + " (digit groups may be split with _, e.g. 1_000_000)");
+      }
+      fail(key, "must be a whole number, written without a decimal point or an exponent",
+           "write it as digits, e.g. 1000000 or 1_000_000");
     }
     if (!node->is_integer()) fail(key, "must be a whole number", "write it without quotes or a decimal point");
     const std::int64_t value = **node->as_integer();

@@ -202,3 +202,13 @@ TEST_F(Cli, SynthRefusesOneDistrict) {
   EXPECT_FALSE(fs::exists(dir_ / "one" / "job.toml"));
 }
 
+// Issue 11, item 11, as check meets it: a whole population that is only too large says so.
+TEST_F(Cli, HugePopulationIsTooLargeNotFractional) {
+  write_small_map("flip", 3, 0.3);
+  write("units.csv", "id,people,cty\na,3,x\nb,1e17,x\nc,2,y\nd,1,x\ne,3,x\nf,2,y\ng,2,x\nh,1,y\ni,2,y\n");
+  const auto o = run("check " + path("job.toml"));
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("units.csv:3: 'people': population '1e17' is too large (at most "), std::string::npos) << o.err;
+  EXPECT_EQ(o.err.find("whole"), std::string::npos) << o.err;
+}
+
