@@ -373,6 +373,17 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
 }
 
 JobSpec load_job(const std::string& path) {
+  std::error_code ec;
+  if (fs::is_directory(path, ec)) {
+    const fs::path dir(path);
+    std::string remedy = "give the path of a job file (TOML), e.g. " + (dir / "job.toml").string();
+    if (fs::exists(dir / "run-state.json", ec))
+      remedy = "it holds a run: to continue it, give the job file that started the run with --output " + path +
+               " --resume (" + (dir / "job.toml").string() + " is a copy of its text)";
+    else if (!fs::exists(dir / "job.toml", ec))
+      remedy = "give the path of a job file (TOML); see docs/jobs.md";
+    throw InputError({path, 0, ""}, "is a folder, not a job file", remedy);
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError({path, 0, ""}, "cannot open the job file", "check the path");
   std::ostringstream text;

@@ -212,3 +212,65 @@ TEST_F(Cli, HugePopulationIsTooLargeNotFractional) {
   EXPECT_EQ(o.err.find("whole"), std::string::npos) << o.err;
 }
 
+// Issue 11, item 14: options that used to be taken silently, run on or wrap around. Each is one
+// line naming the option, exit 2, and nothing is run.
+TEST_F(Cli, SelftestRefusesAMapTooBigToEnumerate) {
+  const auto o = run_within(60, std::string("selftest ") + PLANMILL_SOURCE_DIR + "/jobs/demo/job.toml");
+  EXPECT_EQ(o.status, 2) << o.out << o.err;
+  EXPECT_NE(o.err.find("2000 units, too many to enumerate"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("at most 40 units"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+}
+
+TEST_F(Cli, SelftestRefusesZeroSamplesOrThin) {
+  for (const std::string option : {"--samples", "--thin"}) {
+    const auto o = run_within(60, "selftest --quick " + option + " 0");
+    EXPECT_EQ(o.status, 2) << option << "\n" << o.out << o.err;
+    EXPECT_NE(o.err.find("'" + option + "': is 0, too small (at least 1)"), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+    EXPECT_EQ(o.out.find("selftest"), std::string::npos) << o.out;
+  }
+}
+
+TEST_F(Cli, RunRefusesMaxStepsBelowTheJobsSteps) {
+  write_small_map("flip", 3, 0.3);
+  write("job.toml", slurp(dir_ / "job.toml") + "steps = 200\n");
+  const auto o = run_within(120, "run " + path("job.toml") + " --quiet --output " + path("runs") +
+                                     " --until-converged --max-steps 50");
+  EXPECT_EQ(o.status, 2) << o.out << o.err;
+  EXPECT_NE(o.err.find("'--max-steps': is 50, below the job's sampler.steps (200)"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  EXPECT_FALSE(fs::exists(dir_ / "runs" / "run-state.json"));
+}
+
+TEST_F(Cli, ExportRefusesEveryZeroAndRungsBeyondAnyLadder) {
+  struct Case {
+    std::string args, expect;
+  };
+  for (const Case& c : {Case{"--every 0", "'--every': is 0, too small (at least 1)"},
+                        Case{"--rung 18446744073709551616", "'--rung': is 18446744073709551616, too large (at most 63)"},
+                        Case{"--rung 64", "'--rung': is 64, too large (at most 63)"},
+                        Case{"--rung -1", "'--rung': is '-1', not a whole number"}}) {
+    const auto o = run("export " + path("runs") + " --out " + path("csv") + " " + c.args);
+    EXPECT_EQ(o.status, 2) << c.args << "\n" << o.err;
+    EXPECT_NE(o.err.find(c.expect), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+    EXPECT_LT(o.err.size(), 200u) << o.err;  // no printed range of a double
+  }
+}
+
+TEST_F(Cli, RunOnAFolderSaysItIsAFolder) {
+  fs::create_directories(dir_ / "runs" / "old");
+  write("runs/old/job.toml", "[districts]\ncount = 2\n");
+  write("runs/old/run-state.json", "{}\n");
+  const auto held = run("run " + path("runs/old"));
+  EXPECT_EQ(held.status, 2) << held.err;
+  EXPECT_NE(held.err.find("runs/old: is a folder, not a job file"), std::string::npos) << held.err;
+  EXPECT_NE(held.err.find("--output " + path("runs/old") + " --resume"), std::string::npos) << held.err;
+  EXPECT_EQ(std::count(held.err.begin(), held.err.end(), '\n'), 1) << held.err;
+  fs::create_directories(dir_ / "empty");
+  const auto empty = run("run " + path("empty"));
+  EXPECT_EQ(empty.status, 2) << empty.err;
+  EXPECT_NE(empty.err.find("is a folder, not a job file"), std::string::npos) << empty.err;
+  EXPECT_EQ(empty.err.find("the job file is empty"), std::string::npos) << empty.err;
+}
