@@ -77,7 +77,8 @@ StepResult FlipKernel::step(ChainState& state, Rng& rng) {
     return StepResult::invalid;
   const double energy_before = state.rules.energy(plan);
   move(state, v, to);
-  if (!plan.is_connected(from) || !within_county_limit(state.rules)) {
+  // The chain's plans are valid, so `from` was connected with v: the check may start next to v.
+  if (!plan.is_connected_without(from, v) || !within_county_limit(state.rules)) {
     move(state, v, from);
     return StepResult::invalid;
   }
