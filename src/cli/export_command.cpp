@@ -19,7 +19,7 @@ struct ExportArgs {
 int run_export(ExportArgs& args) {
   ExportOptions& o = args.options;
   if (!args.every.empty())
-    o.plans.every = parse_whole_option(args.every, "--every", 1, UINT64_MAX, "write records 0, N, 2N, ...");
+    o.plans.every = parse_whole_option(args.every, "--every", 1, UINT64_MAX, "N (records 0, N, 2N, ... are written)");
   // A ladder has at most 64 rungs (tempering.rungs, docs/jobs.md), numbered from 0.
   if (!args.rung.empty()) o.rung = parse_whole_option(args.rung, "--rung", 0, 63, "a rung of the run's ladders");
   if (!args.plans.empty()) o.plans.records = parse_record_list(args.plans, "--plans");

@@ -123,7 +123,7 @@ void add_run_command(CLI::App& app, Action& action) {
       if (!args->output.empty()) options.output_dir = args->output;
       if (!args->max_steps.empty())  // an InputError here reaches main(): exit 2
         options.max_steps = parse_whole_option(args->max_steps, "--max-steps", 1, UINT64_MAX,
-                                               "steps per chain, burn-in included");
+                                               "the steps per chain (burn-in included)");
       options.progress = !args->quiet;
       return run_command(options, args->log_level, args->quiet);
     };

@@ -49,9 +49,9 @@ nlohmann::json to_json(const SelftestResult& r) {
 
 int run(const SelftestOptions& options) {
   const std::uint64_t samples =
-      options.samples.empty() ? 0 : parse_whole_option(options.samples, "--samples", 1, 100'000'000, "recorded plans per case (1 or more)");
+      options.samples.empty() ? 0 : parse_whole_option(options.samples, "--samples", 1, 100'000'000, "the recorded plans per case");
   const std::uint64_t thin =
-      options.thin.empty() ? 0 : parse_whole_option(options.thin, "--thin", 1, 1'000'000, "steps between recorded plans (1 or more)");
+      options.thin.empty() ? 0 : parse_whole_option(options.thin, "--thin", 1, 1'000'000, "the steps between recorded plans");
   std::vector<SelftestCase> cases = options.job.empty() ? builtin_selftest_cases(options.quick) : cases_from_job(options);
   std::printf("%-44s %-13s %7s %8s %7s %8s %9s %6s %s\n", "case", "kernel", "plans", "samples", "visited", "TV",
               "p-value", "accept", "result");

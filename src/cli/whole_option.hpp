@@ -12,8 +12,9 @@ namespace planmill::cli {
 
 inline std::uint64_t parse_whole_option(const std::string& text, const std::string& option, std::uint64_t lo,
                                         std::uint64_t hi, const std::string& meaning) {
-  const std::string range = "give a whole number from " + std::to_string(lo) + " to " + std::to_string(hi) + " (" +
-                            meaning + ")";
+  const std::string range = "give " + meaning + " as a whole number " +
+                            (hi == UINT64_MAX ? std::to_string(lo) + " or more"
+                                              : "from " + std::to_string(lo) + " to " + std::to_string(hi));
   std::uint64_t value = 0;
   const char* end = text.data() + text.size();
   const auto [stop, ec] = std::from_chars(text.data(), end, value);
