@@ -5,6 +5,7 @@
 #include <string>
 
 #include "cli/commands.hpp"
+#include "cli/whole_option.hpp"
 #include "planmill/export/export.hpp"
 
 namespace planmill::cli {
@@ -12,11 +13,15 @@ namespace {
 
 struct ExportArgs {
   ExportOptions options;
-  std::string plans, chains, layout = "files";
+  std::string plans, chains, layout = "files", every, rung;
 };
 
 int run_export(ExportArgs& args) {
   ExportOptions& o = args.options;
+  if (!args.every.empty())
+    o.plans.every = parse_whole_option(args.every, "--every", 1, UINT64_MAX, "N (records 0, N, 2N, ... are written)");
+  // A ladder has at most 64 rungs (tempering.rungs, docs/jobs.md), numbered from 0.
+  if (!args.rung.empty()) o.rung = parse_whole_option(args.rung, "--rung", 0, 63, "a rung of the run's ladders");
   if (!args.plans.empty()) o.plans.records = parse_record_list(args.plans, "--plans");
   if (!args.chains.empty()) {
     o.plans.chains_given = true;
@@ -52,15 +57,14 @@ void add_export_command(CLI::App& app, Action& action) {
   sub->add_option("--out", args->options.out_dir, "folder to write into (created or reused)")
       ->required();
   sub->add_option("--plans", args->plans, "plans to write, as CHAIN:RECORD,... (records from 0)");
-  sub->add_option("--every", args->options.plans.every,
-                  "write records 0, N, 2N, ... of every chain (or of the --chains)")
-      ->check(CLI::PositiveNumber);
+  sub->add_option("--every", args->every,
+                  "write records 0, N, 2N, ... of every chain (or of the --chains); N >= 1");
   sub->add_option("--chains", args->chains,
                   "chains for --every, as 0,2,5-7; alone: every record of these chains");
   sub->add_option("--plan-layout", args->layout,
                   "files: one CSV per plan; wide: one CSV, a column per plan; both")
       ->check(CLI::IsMember({"files", "wide", "both"}));
-  sub->add_option("--rung", args->options.rung,
+  sub->add_option("--rung", args->rung,
                   "rung of each ladder to export (0, the default: the ensemble; R > 0 needs "
                   "[tempering] record = \"all\")");
   sub->add_option("--map-units", args->options.units_path,

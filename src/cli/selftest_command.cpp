@@ -5,6 +5,7 @@
 #include <nlohmann/json.hpp>
 
 #include "cli/commands.hpp"
+#include "cli/whole_option.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/job/kernel_settings.hpp"
@@ -17,8 +18,7 @@ namespace {
 struct SelftestOptions {
   std::string job;
   bool quick = false;
-  std::uint64_t samples = 0;
-  std::uint64_t thin = 0;
+  std::string samples, thin;  // empty: the case's own
   std::uint64_t seed = 1;
   std::string json;
   std::string frequencies;
@@ -48,6 +48,10 @@ nlohmann::json to_json(const SelftestResult& r) {
 }
 
 int run(const SelftestOptions& options) {
+  const std::uint64_t samples =
+      options.samples.empty() ? 0 : parse_whole_option(options.samples, "--samples", 1, 100'000'000, "the recorded plans per case");
+  const std::uint64_t thin =
+      options.thin.empty() ? 0 : parse_whole_option(options.thin, "--thin", 1, 1'000'000, "the steps between recorded plans");
   std::vector<SelftestCase> cases = options.job.empty() ? builtin_selftest_cases(options.quick) : cases_from_job(options);
   std::printf("%-44s %-13s %7s %8s %7s %8s %9s %6s %s\n", "case", "kernel", "plans", "samples", "visited", "TV",
               "p-value", "accept", "result");
@@ -55,8 +59,8 @@ int run(const SelftestOptions& options) {
   std::string frequencies = "case,plan,exact,seen,empirical\n";
   bool all_passed = true;
   for (auto& c : cases) {
-    if (options.samples) c.samples = options.samples;
-    if (options.thin) c.thin = options.thin;
+    if (samples) c.samples = samples;
+    if (thin) c.thin = thin;
     if (options.job.empty()) c.seed = options.seed;
     const SelftestResult r = run_selftest(c);
     all_passed &= r.passed;
@@ -88,8 +92,8 @@ void add_selftest_command(CLI::App& app, Action& action) {
       "selftest", "check each kernel's law against exact enumeration (built-in small maps, or a small job's map)");
   sub->add_option("job", options->job, "a job file whose map is small enough to enumerate (optional)");
   sub->add_flag("--quick", options->quick, "fewer samples (a few seconds)");
-  sub->add_option("--samples", options->samples, "recorded plans per case");
-  sub->add_option("--thin", options->thin, "steps between recorded plans");
+  sub->add_option("--samples", options->samples, "recorded plans per case (1 or more)");
+  sub->add_option("--thin", options->thin, "steps between recorded plans (1 or more)");
   sub->add_option("--seed", options->seed, "random seed");
   sub->add_option("--json", options->json, "write the results as JSON");
   sub->add_option("--frequencies", options->frequencies, "write exact and empirical probability of every plan (CSV)");

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cstdint>
+#include <cstdio>
 #include <unordered_map>
 
 #include "io/fields.hpp"
@@ -70,14 +71,38 @@ class UnitTableReader {
     return parsed.value == 0.0 ? 0.0 : parsed.value;  // no negative zero
   }
 
+  // A count (population, group, votes) no larger than largest_exact_count: then every tally over
+  // units is exact in a double.
+  double count(const CsvRow& row, std::size_t c, const char* what) const {
+    const double value = number(row, c, what);
+    const double largest = io::largest_exact_count(table_.rows.size());
+    if (value > largest) {
+      char bound[32];
+      std::snprintf(bound, sizeof bound, "%.0f", largest);
+      throw InputError({table_.source, row.line, table_.header[c]},
+                       std::string(what) + " " + quoted(row.fields[c]) + " is too large (at most " + bound +
+                           " for a map of " + std::to_string(table_.rows.size()) +
+                           " units, so that every total stays exact)",
+                       "check the column for a wrong unit or scale");
+    }
+    return value;
+  }
+
   std::int64_t population(const CsvRow& row, std::size_t c) const {
-    const double value = number(row, c, "population");
-    if (value != std::floor(value) || value > io::kLargestExactWhole) {
+    const double value = count(row, c, "population");
+    if (!io::is_whole_decimal(row.fields[c])) {
       throw InputError({table_.source, row.line, table_.header[c]},
                        "population " + quoted(row.fields[c]) + " is not a whole number",
                        "populations count people: write a whole number");
     }
     return static_cast<std::int64_t>(value);
+  }
+
+  std::vector<double> counts(std::size_t c) const {
+    std::vector<double> values;
+    values.reserve(table_.rows.size());
+    for (const CsvRow& row : table_.rows) values.push_back(count(row, c, "count"));
+    return values;
   }
 
   std::vector<double> numbers(std::size_t c, const char* what) const {
@@ -186,7 +211,7 @@ void read_units(const MapSpec& spec, const CsvTable& units, UnitGraphBuilder& bu
   std::vector<std::size_t> groups;
   std::size_t next = 0;
   for (std::size_t i = 0; i < spec.group_columns.size(); ++i) groups.push_back(next++);
-  for (const auto& column : counts) builder.add_count_column(column.name, reader.numbers(column.index, "count"));
+  for (const auto& column : counts) builder.add_count_column(column.name, reader.counts(column.index));
   if (!groups.empty()) builder.set_groups(std::move(groups));
   for (const auto& election : spec.elections) {
     Election e{election.name, election.parties, {}};

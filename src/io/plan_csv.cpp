@@ -42,7 +42,7 @@ Plan plan_from_table(const CsvTable& table, const GraphHandle& handle, std::size
     const std::string& text = row.fields[1];
     const io::ParsedNumber number = io::parse_number(text);
     const InputError::Where where{source, row.line, district_column};
-    if (number.status != io::NumberStatus::ok || number.value != std::floor(number.value)) {
+    if (number.status != io::NumberStatus::ok || !io::is_whole_decimal(text)) {
       throw InputError(where, "district '" + text + "' is not a whole number",
                        "number districts 1 to " + std::to_string(k));
     }

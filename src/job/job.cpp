@@ -1,6 +1,7 @@
 #include "planmill/job/job.hpp"
 
 #include <cmath>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <set>
@@ -55,6 +56,19 @@ class Section {
     if (!node) {
       if (required) missing(key);
       return fallback;
+    }
+    if (node->is_floating_point()) {
+      // TOML reads 1e6 and 2.0 as floats, which may already have been rounded (2^53 + 1 cannot be
+      // told from 2^53), so a float is never taken for an integer; say how to write one.
+      const double v = **node->as_floating_point();
+      if (std::isfinite(v) && v == std::floor(v) && std::fabs(v) < 1e15) {
+        char digits[32];
+        std::snprintf(digits, sizeof digits, "%.0f", v);
+        fail(key, "must be a whole number written as an integer; TOML reads a point or an exponent as a float",
+             std::string("write ") + digits + " (digit groups may be split with _, e.g. 1_000_000)");
+      }
+      fail(key, "must be a whole number, written without a decimal point or an exponent",
+           "write it as digits, e.g. 1000000 or 1_000_000");
     }
     if (!node->is_integer()) fail(key, "must be a whole number", "write it without quotes or a decimal point");
     const std::int64_t value = **node->as_integer();
@@ -329,7 +343,11 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
   const toml::table* districts = top.table("districts");
   if (!districts) top.fail("districts", "section [districts] is missing", "add [districts] with count = K");
   Section d(*districts, "districts", job.path);
-  job.districts = static_cast<std::size_t>(d.integer("count", 0, 1, 65'534, true));
+  // One district is no plan to sample: every kernel needs a pair of districts (a cut edge).
+  if (const toml::node* count = districts->get("count"); count && count->is_integer() && **count->as_integer() < 2)
+    d.fail("count", "is " + std::to_string(**count->as_integer()) + "; a plan needs at least 2 districts",
+           "set districts.count to 2 or more");
+  job.districts = static_cast<std::size_t>(d.integer("count", 0, 2, 65'534, true));
   const std::string start = d.string("start", "random");
   job.start = start == "random" ? start : resolve(base, start);
   d.reject_unknown();
@@ -357,6 +375,17 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
 }
 
 JobSpec load_job(const std::string& path) {
+  std::error_code ec;
+  if (fs::is_directory(path, ec)) {
+    const fs::path dir(path);
+    std::string remedy = "give the path of a job file (TOML), e.g. " + (dir / "job.toml").string();
+    if (fs::exists(dir / "run-state.json", ec))
+      remedy = "it holds a run: to continue it, give the job file that started the run with --output " + path +
+               " --resume (" + (dir / "job.toml").string() + " is a copy of its text)";
+    else if (!fs::exists(dir / "job.toml", ec))
+      remedy = "give the path of a job file (TOML); see docs/jobs.md";
+    throw InputError({path, 0, ""}, "is a folder, not a job file", remedy);
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError({path, 0, ""}, "cannot open the job file", "check the path");
   std::ostringstream text;

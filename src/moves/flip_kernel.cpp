@@ -24,10 +24,16 @@ void BoundarySet::refresh(const Plan& plan, UnitIndex u) {
 
 UnitIndex BoundarySet::draw(Rng& rng) const noexcept {
   const auto n = static_cast<std::uint32_t>(on_boundary_.size());
-  for (;;) {
+  for (std::uint32_t miss = 0; miss < n; ++miss) {
     const UnitIndex u = uniform_below(rng, n);
     if (on_boundary_[u]) return u;
   }
+  // Bounded like uniform_cut_edge (moves/kernel.cpp): after n misses, the j-th boundary unit for a
+  // uniform j. Each round and the scan are uniform over the set, so their mixture is too.
+  std::uint32_t j = uniform_below(rng, static_cast<std::uint32_t>(count_));
+  for (UnitIndex u = 0; u < n; ++u)
+    if (on_boundary_[u] && j-- == 0) return u;
+  return 0;  // not reached while count_ is right
 }
 
 void BoundarySet::update_around(const Plan& plan, UnitIndex u) {
@@ -59,6 +65,7 @@ void FlipKernel::move(ChainState& state, UnitIndex u, DistrictIndex to) {
 StepResult FlipKernel::step(ChainState& state, Rng& rng) {
   // alpha = min{1, pi(P')/pi(P) * |dP| |N(v,P)| / (|dP'| |N(v,P')|)}: docs/kernels.md, "Flip".
   Plan& plan = state.plan;
+  if (boundary_.size() == 0) return StepResult::no_cut;  // one district: nothing can move
   const double boundary_before = static_cast<double>(boundary_.size());
   const UnitIndex v = boundary_.draw(rng);
   const DistrictIndex from = plan.district_of(v);
@@ -70,7 +77,8 @@ StepResult FlipKernel::step(ChainState& state, Rng& rng) {
     return StepResult::invalid;
   const double energy_before = state.rules.energy(plan);
   move(state, v, to);
-  if (!plan.is_connected(from) || !within_county_limit(state.rules)) {
+  // The chain's plans are valid, so `from` was connected with v: the check may start next to v.
+  if (!plan.is_connected_without(from, v) || !within_county_limit(state.rules)) {
     move(state, v, from);
     return StepResult::invalid;
   }

@@ -15,6 +15,7 @@ class BoundarySet {
   // Re-evaluates u and its neighbours after u moved.
   void update_around(const Plan& plan, UnitIndex u);
   [[nodiscard]] std::size_t size() const noexcept { return count_; }
+  // A uniform member; the set must not be empty. Bounded: see flip_kernel.cpp.
   [[nodiscard]] UnitIndex draw(Rng& rng) const noexcept;
 
  private:

@@ -10,14 +10,16 @@ namespace planmill {
 
 TreeProposal::TreeProposal(const UnitGraph& graph) : side_(graph.unit_count()), before_(graph.unit_count()) {}
 
-void TreeProposal::draw(const Plan& plan, Rng& rng) {
+bool TreeProposal::draw(const Plan& plan, Rng& rng) {
   const UnitGraph& g = plan.graph();
   const EdgeIndex e = uniform_cut_edge(plan, rng);
+  if (e == kNoEdge) return false;
   a_ = plan.district_of(g.edge_first(e));
   b_ = plan.district_of(g.edge_second(e));
   if (a_ > b_) std::swap(a_, b_);
   region_.build_from_seeds(plan, g.edge_first(e), g.edge_second(e));
   sampler_.sample(region_, rng);
+  return true;
 }
 
 std::span<const std::uint32_t> TreeProposal::balanced_cuts(const RuleTracker& rules) {
@@ -48,7 +50,7 @@ RecombinationKernel::RecombinationKernel(const KernelSettings&, const UnitGraph&
     : proposal_(graph) {}
 
 StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
-  proposal_.draw(state.plan, rng);
+  if (!proposal_.draw(state.plan, rng)) return StepResult::no_cut;
   const auto cuts = proposal_.balanced_cuts(state.rules);
   if (cuts.empty()) return StepResult::no_cut;
   proposal_.apply(state, cuts[uniform_below(rng, static_cast<std::uint32_t>(cuts.size()))], rng);
@@ -89,7 +91,7 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   // the pair, q(P')/q(P) times |E(A,B)|/|E(A',B')| reduces to cut(P)/cut(P').
   const double cut_before = static_cast<double>(state.plan.cut_edge_count());
   const double energy_before = state.rules.energy(state.plan);
-  proposal_.draw(state.plan, rng);
+  if (!proposal_.draw(state.plan, rng)) return StepResult::no_cut;
   const auto cuts = proposal_.balanced_cuts(state.rules);
   const std::size_t bound =
       settings_.balanced_cut_bound > 0 ? settings_.balanced_cut_bound : proposal_.region_size() - 1;

@@ -13,8 +13,9 @@ namespace planmill {
 class TreeProposal {
  public:
   explicit TreeProposal(const UnitGraph& graph);
-  // Merges the districts at a uniform cut edge and draws a uniform spanning tree of their union.
-  void draw(const Plan& plan, Rng& rng);
+  // Merges the districts at a uniform cut edge and draws a uniform spanning tree of their union;
+  // false (and nothing drawn) if the plan has no cut edge.
+  bool draw(const Plan& plan, Rng& rng);
   [[nodiscard]] std::span<const std::uint32_t> balanced_cuts(const RuleTracker& rules);
   // Relabels the merged region: the subtree below `child` gets one of the two labels (by a fair
   // coin, so the proposal is symmetric in the labels), the rest the other.

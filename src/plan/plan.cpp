@@ -210,6 +210,41 @@ bool Plan::is_connected(DistrictIndex d) const {
   return queue_.size() == size_[d];
 }
 
+bool Plan::is_connected_without(DistrictIndex d, UnitIndex left) const {
+  if (size_[d] == 0) return false;
+  const UnitGraph& g = *graph_;
+  if (seen_.size() != unit_count()) {
+    seen_.assign(unit_count(), 0);
+    seen_epoch_ = 0;
+  }
+  if (seen_epoch_ >= UINT32_MAX - 2) {  // two epochs per call: clear before they wrap
+    std::fill(seen_.begin(), seen_.end(), 0U);
+    seen_epoch_ = 0;
+  }
+  const std::uint32_t target = ++seen_epoch_, reached = ++seen_epoch_;
+  // Neighbours of `left` in d, marked as targets.
+  std::size_t remaining = 0;
+  UnitIndex start = 0;
+  for (UnitIndex w : g.neighbors(left))
+    if (district_[w] == d && seen_[w] != target) {
+      if (remaining++ == 0) start = w;
+      seen_[w] = target;
+    }
+  if (remaining == 0) return is_connected(d);  // not from a connected d; answer the long way
+  queue_.clear();
+  queue_.push_back(start);
+  seen_[start] = reached;
+  if (--remaining == 0) return true;
+  for (std::size_t head = 0; head < queue_.size(); ++head)
+    for (UnitIndex v : g.neighbors(queue_[head]))
+      if (district_[v] == d && seen_[v] != reached) {
+        if (seen_[v] == target && --remaining == 0) return true;
+        seen_[v] = reached;
+        queue_.push_back(v);
+      }
+  return false;
+}
+
 bool Plan::all_connected() const {
   for (DistrictIndex d = 0; d < k_; ++d)
     if (!is_connected(d)) return false;

@@ -58,6 +58,13 @@ SelftestResult run_selftest(const SelftestCase& test) {
   result.name = test.name;
   result.kernel = kernel_name(test.kernel.kind);
 
+  if (graph.unit_count() > kSelftestMaxUnits)
+    throw InputError({test.name, 0, ""},
+                     "the map has " + std::to_string(graph.unit_count()) +
+                         " units, too many to enumerate every plan (selftest takes at most " +
+                         std::to_string(kSelftestMaxUnits) + " units)",
+                     "run selftest on a small map (a few dozen units), or without a job for the built-in cases");
+
   // 1. Every valid plan and its exact target probability.
   const Plan probe(test.graph, k, std::vector<DistrictIndex>(graph.unit_count(), 0));
   const RuleTracker bounds(probe, test.rules);
@@ -71,6 +78,12 @@ SelftestResult run_selftest(const SelftestCase& test) {
     Plan plan(test.graph, k, std::vector<DistrictIndex>(labels.begin(), labels.end()));
     const RuleTracker rules(plan, test.rules);
     if (!rules.hard_rules_ok(plan)) return;
+    if (log_weights.size() == kSelftestMaxPlans)
+      throw InputError({test.name, 0, ""},
+                       "more than " + std::to_string(kSelftestMaxPlans) +
+                           " valid plans, too many to enumerate (selftest takes at most " +
+                           std::to_string(kSelftestMaxPlans) + ")",
+                       "use a smaller map, fewer districts or a tighter population_deviation");
     canonical_key(labels, relabel, key);
     index.emplace(key, log_weights.size());
     result.plans.push_back({key, 0.0, 0});

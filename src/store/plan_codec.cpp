@@ -310,6 +310,7 @@ struct GraphModel {
           if (m > k - c) return false;
           // The m-th non-candidate: skip the candidates that come before it.
           std::size_t extra = 0, at = 0;
+          // Finite: `extra` only grows and never exceeds c, so this settles within c + 1 rounds.
           for (;;) {
             at = fenwick.select(static_cast<std::uint32_t>(m + extra));
             std::size_t before = 0;

@@ -79,6 +79,8 @@ class NameMaker {
                                                "stead", "holm", "ridge", "moor", "field", "crest"};
     static const char* const kTownTails[] = {"haven",  "burg",  "port", "minster",
                                              "bridge", "mouth", "gate", "vale"};
+    // Finite: from attempt 41 on the name ends in the number of names so far, which no earlier
+    // name can end in, so that attempt succeeds.
     for (int attempt = 0;; ++attempt) {
       std::string name = kHeads[uniform_below(rng_, 24)];
       name += kMiddles[uniform_below(rng_, 8)];
@@ -98,14 +100,24 @@ double distance_squared(double ax, double ay, double bx, double by) {
 }
 
 // A random point inside a random outline cell.
+// Rejection from the bounding grid, bounded: after width * height misses, the j-th inside cell for
+// a uniform j (still uniform over inside cells; the outline has at least one).
 std::pair<double, double> random_inland_point(const synth::Outline& outline, Rng& rng) {
-  for (;;) {
+  const std::size_t cells = outline.width * outline.height;
+  std::size_t cell = cells;
+  for (std::size_t miss = 0; miss < cells && cell == cells; ++miss) {
     const std::uint32_t x = uniform_below(rng, static_cast<std::uint32_t>(outline.width));
     const std::uint32_t y = uniform_below(rng, static_cast<std::uint32_t>(outline.height));
-    if (!outline.inside[y * outline.width + x]) continue;
-    return {(x + 0.1 + 0.8 * uniform01(rng)) * synth::kCellKm,
-            (y + 0.1 + 0.8 * uniform01(rng)) * synth::kCellKm};
+    if (outline.inside[y * outline.width + x]) cell = y * outline.width + x;
   }
+  if (cell == cells) {
+    std::uint32_t j = uniform_below(rng, static_cast<std::uint32_t>(outline.cell_count));
+    for (cell = 0; cell + 1 < cells; ++cell)
+      if (outline.inside[cell] && j-- == 0) break;
+  }
+  const std::size_t x = cell % outline.width, y = cell / outline.width;
+  return {(static_cast<double>(x) + 0.1 + 0.8 * uniform01(rng)) * synth::kCellKm,
+          (static_cast<double>(y) + 0.1 + 0.8 * uniform01(rng)) * synth::kCellKm};
 }
 
 std::vector<Place> make_places(const synth::Outline& outline, std::size_t units, std::size_t cities,
@@ -127,6 +139,8 @@ std::vector<Place> make_places(const synth::Outline& outline, std::size_t units,
     Place city;
     city.city = true;
     double min_gap = 0.35 * span;
+    // Finite: the gap shrinks by a fifth every 50 attempts and reaches 0 (underflow) within a few
+    // hundred thousand, and every point is then far enough.
     for (int attempt = 0;; ++attempt) {
       if (attempt % 50 == 49) min_gap *= 0.8;
       std::tie(city.x, city.y) = random_inland_point(outline, rng);
@@ -198,11 +212,15 @@ std::vector<Cluster> make_clusters(const std::vector<Place>& places, std::uint64
     if (!city.city) continue;
     const int count = uniform01(rng) < 0.6 ? 2 : 1;
     for (int i = 0; i < count; ++i) {
+      // A point of the unit disc by rejection (each round hits with chance pi/4); bounded at 64
+      // rounds, after which the centre is used (chance about 1e-43).
       double dx = 0.0, dy = 0.0;
-      do {
+      for (int round = 0; round < 64; ++round) {
         dx = 2.0 * uniform01(rng) - 1.0;
         dy = 2.0 * uniform01(rng) - 1.0;
-      } while (dx * dx + dy * dy > 1.0);
+        if (dx * dx + dy * dy <= 1.0) break;
+        dx = dy = 0.0;
+      }
       const double reach = 0.9 * city.core_radius;
       clusters.push_back({city.x + reach * dx, city.y + reach * dy,
                           (0.5 + 0.5 * uniform01(rng)) * city.core_radius,
@@ -417,8 +435,11 @@ void check_options(const SynthOptions& options) {
                      "at most 1000000 units (got " + std::to_string(options.units) + ")",
                      "ask for fewer units");
   }
-  if (options.districts < 1) {
-    throw InputError({"", 0, "--districts"}, "must be at least 1", "ask for 1 or more districts");
+  if (options.districts < 2) {
+    throw InputError({"", 0, "--districts"},
+                     "must be at least 2 (got " + std::to_string(options.districts) +
+                         "); a plan needs two or more districts",
+                     "ask for 2 or more districts");
   }
   if (options.units < 2 * options.districts) {
     throw InputError({"", 0, "--units"},

@@ -36,11 +36,16 @@ class Cli : public ::testing::Test {
   }
   void TearDown() override { fs::remove_all(dir_); }
 
-  Outcome run(const std::string& args) {
-    const std::string command = std::string(PLANMILL_BINARY) + " " + args + " >" + (dir_ / "out").string() +
+  Outcome run(const std::string& args) { return run_prefixed("", args); }
+  Outcome run_prefixed(const std::string& prefix, const std::string& args) {
+    const std::string command = prefix + std::string(PLANMILL_BINARY) + " " + args + " >" + (dir_ / "out").string() +
                                 " 2>" + (dir_ / "err").string();
     const int raw = std::system(command.c_str());
     return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(dir_ / "out"), slurp(dir_ / "err")};
+  }
+  // run() killed after `seconds` (exit status 137 then), for commands that used to hang.
+  Outcome run_within(int seconds, const std::string& args) {
+    return run_prefixed("timeout -s KILL " + std::to_string(seconds) + " ", args);
   }
   void write(const std::string& name, const std::string& text) { std::ofstream(dir_ / name) << text; }
   std::string path(const std::string& name) const { return (dir_ / name).string(); }
@@ -172,3 +177,100 @@ TEST_F(Cli, StartingPlanThatBreaksTheRulesIsNamedWithDistrictAndAmount) {
 }
 
 }  // namespace
+
+// Issue 11, item 2: a one-district job used to pass check and then spin for ever in run (the
+// cut-edge draw never found a cut edge). `timeout` keeps a regression from hanging the suite.
+TEST_F(Cli, OneDistrictIsRefusedByCheckAndRun) {
+  write_small_map("recombination", 1, 0.3);
+  for (const std::string command : {"check " + path("job.toml"),
+                                    "run " + path("job.toml") + " --quiet --output " + path("runs")}) {
+    const auto o = run_within(60, command);
+    EXPECT_EQ(o.status, 2) << command << "\n" << o.err;
+    EXPECT_NE(o.err.find("job.toml:"), std::string::npos) << o.err;
+    EXPECT_NE(o.err.find("'districts.count'"), std::string::npos) << o.err;
+    EXPECT_NE(o.err.find("at least 2"), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  }
+}
+
+TEST_F(Cli, SynthRefusesOneDistrict) {
+  const auto o = run("synth --units 40 --districts 1 --out " + path("one"));
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("'--districts'"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("at least 2"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  EXPECT_FALSE(fs::exists(dir_ / "one" / "job.toml"));
+}
+
+// Issue 11, item 11, as check meets it: a whole population that is only too large says so.
+TEST_F(Cli, HugePopulationIsTooLargeNotFractional) {
+  write_small_map("flip", 3, 0.3);
+  write("units.csv", "id,people,cty\na,3,x\nb,1e17,x\nc,2,y\nd,1,x\ne,3,x\nf,2,y\ng,2,x\nh,1,y\ni,2,y\n");
+  const auto o = run("check " + path("job.toml"));
+  EXPECT_EQ(o.status, 2);
+  EXPECT_NE(o.err.find("units.csv:3: 'people': population '1e17' is too large (at most "), std::string::npos) << o.err;
+  EXPECT_EQ(o.err.find("whole"), std::string::npos) << o.err;
+}
+
+// Issue 11, item 14: options that used to be taken silently, run on or wrap around. Each is one
+// line naming the option, exit 2, and nothing is run.
+TEST_F(Cli, SelftestRefusesAMapTooBigToEnumerate) {
+  const auto o = run_within(60, std::string("selftest ") + PLANMILL_SOURCE_DIR + "/jobs/demo/job.toml");
+  EXPECT_EQ(o.status, 2) << o.out << o.err;
+  EXPECT_NE(o.err.find("2000 units, too many to enumerate"), std::string::npos) << o.err;
+  EXPECT_NE(o.err.find("at most 40 units"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+}
+
+TEST_F(Cli, SelftestRefusesZeroSamplesOrThin) {
+  for (const std::string option : {"--samples", "--thin"}) {
+    const auto o = run_within(60, "selftest --quick " + option + " 0");
+    EXPECT_EQ(o.status, 2) << option << "\n" << o.out << o.err;
+    EXPECT_NE(o.err.find("'" + option + "': is 0, too small (at least 1)"), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+    EXPECT_EQ(o.out.find("selftest"), std::string::npos) << o.out;
+  }
+}
+
+TEST_F(Cli, RunRefusesMaxStepsBelowTheJobsSteps) {
+  write_small_map("flip", 3, 0.3);
+  write("job.toml", slurp(dir_ / "job.toml") + "steps = 200\n");
+  const auto o = run_within(120, "run " + path("job.toml") + " --quiet --output " + path("runs") +
+                                     " --until-converged --max-steps 50");
+  EXPECT_EQ(o.status, 2) << o.out << o.err;
+  EXPECT_NE(o.err.find("'--max-steps': is 50, below the job's sampler.steps (200)"), std::string::npos) << o.err;
+  EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  EXPECT_FALSE(fs::exists(dir_ / "runs" / "run-state.json"));
+}
+
+TEST_F(Cli, ExportRefusesEveryZeroAndRungsBeyondAnyLadder) {
+  struct Case {
+    std::string args, expect;
+  };
+  for (const Case& c : {Case{"--every 0", "'--every': is 0, too small (at least 1)"},
+                        Case{"--rung 18446744073709551616", "'--rung': is 18446744073709551616, too large (at most 63)"},
+                        Case{"--rung 64", "'--rung': is 64, too large (at most 63)"},
+                        Case{"--rung -1", "'--rung': is '-1', not a whole number"}}) {
+    const auto o = run("export " + path("runs") + " --out " + path("csv") + " " + c.args);
+    EXPECT_EQ(o.status, 2) << c.args << "\n" << o.err;
+    EXPECT_NE(o.err.find(c.expect), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+    EXPECT_LT(o.err.size(), 200u) << o.err;  // no printed range of a double
+  }
+}
+
+TEST_F(Cli, RunOnAFolderSaysItIsAFolder) {
+  fs::create_directories(dir_ / "runs" / "old");
+  write("runs/old/job.toml", "[districts]\ncount = 2\n");
+  write("runs/old/run-state.json", "{}\n");
+  const auto held = run("run " + path("runs/old"));
+  EXPECT_EQ(held.status, 2) << held.err;
+  EXPECT_NE(held.err.find("runs/old: is a folder, not a job file"), std::string::npos) << held.err;
+  EXPECT_NE(held.err.find("--output " + path("runs/old") + " --resume"), std::string::npos) << held.err;
+  EXPECT_EQ(std::count(held.err.begin(), held.err.end(), '\n'), 1) << held.err;
+  fs::create_directories(dir_ / "empty");
+  const auto empty = run("run " + path("empty"));
+  EXPECT_EQ(empty.status, 2) << empty.err;
+  EXPECT_NE(empty.err.find("is a folder, not a job file"), std::string::npos) << empty.err;
+  EXPECT_EQ(empty.err.find("the job file is empty"), std::string::npos) << empty.err;
+}

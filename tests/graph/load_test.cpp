@@ -138,6 +138,62 @@ TEST_F(LoadTest, PopulationNotWhole) {
   EXPECT_NE(m.find("whole"), std::string::npos) << m;
 }
 
+// Issue 11, item 11: huge counts. With the fifth unit below the map has 5 units, so a count may be
+// at most floor(2^53 / 5) (computed here in integers, apart from the loader's double arithmetic).
+constexpr std::uint64_t kLargestCountOf5 = (std::uint64_t{1} << 53) / 5;
+
+std::string too_large_text() { return "too large (at most " + std::to_string(kLargestCountOf5) + " for a map of 5 units"; }
+
+TEST_F(LoadTest, HugeWholePopulationsAreTooLargeNotFractional) {
+  for (const std::string pop : {"1e17", "1e19", "9007199254740993", "1801439850948199"}) {
+    const std::string m = expect_input_error(
+        [&] { (void)load_unit_graph(spec(std::string(kUnits) + "e," + pop + ",C1,T1,1,1,0,0,0,v\n", kAdjacency)); },
+        units_path(), 6, "pop");
+    EXPECT_NE(m.find(too_large_text()), std::string::npos) << m;
+    EXPECT_EQ(m.find("whole"), std::string::npos) << m;
+  }
+}
+
+TEST_F(LoadTest, WholeNumbersWithAnExponentAreAcceptedUpToTheBound) {
+  const std::string largest = std::to_string(kLargestCountOf5);
+  const std::string adjacency = std::string(kAdjacency) + "d,e,1\n";
+  const UnitGraph g = load_unit_graph(
+      spec(std::string(kUnits) + "e,1e6,C1,T1,1,1,1.5e1," + largest + ",0,v\n", adjacency));
+  EXPECT_EQ(g.population(4), 1000000);
+  EXPECT_EQ(g.count_column(0)[4], 15.0);
+  EXPECT_EQ(g.count_column(1)[4], static_cast<double>(kLargestCountOf5));
+  const UnitGraph at_bound =
+      load_unit_graph(spec(std::string(kUnits) + "e," + largest + ",C1,T1,1,1,0,0,0,v\n", adjacency));
+  EXPECT_EQ(at_bound.population(4), static_cast<std::int64_t>(kLargestCountOf5));
+}
+
+TEST_F(LoadTest, PopulationWhoseFractionTheDoubleRoundsAwayIsNotWhole) {
+  // 1801439850948197.9 lies between 2^50 and 2^51, where doubles are 0.25 apart: it parses to the
+  // whole 1801439850948198, but as written it is not whole.
+  const std::string m = expect_input_error(
+      [&] {
+        (void)load_unit_graph(
+            spec(std::string(kUnits) + "e,1801439850948197.9,C1,T1,1,1,0,0,0,v\n", kAdjacency));
+      },
+      units_path(), 6, "pop");
+  EXPECT_NE(m.find("not a whole number"), std::string::npos) << m;
+  expect_input_error(
+      [&] { (void)load_unit_graph(spec(std::string(kUnits) + "e,1.25e1,C1,T1,1,1,0,0,0,v\n", kAdjacency)); },
+      units_path(), 6, "pop");
+}
+
+TEST_F(LoadTest, HugeVoteAndGroupCountsAreTooLarge) {
+  for (const std::string votes : {"1e308", "1e17", "9007199254740993"}) {
+    const std::string m = expect_input_error(
+        [&] { (void)load_unit_graph(spec(std::string(kUnits) + "e,1,C1,T1,1,1,0," + votes + ",0,v\n", kAdjacency)); },
+        units_path(), 6, "gov_a");
+    EXPECT_NE(m.find(too_large_text()), std::string::npos) << m;
+  }
+  expect_input_error(
+      [&] { (void)load_unit_graph(spec(std::string(kUnits) + "e,1,C1,T1,1,1,1e19,0,0,v\n", kAdjacency)); },
+      units_path(), 6, "grp");
+}
+
 TEST_F(LoadTest, NanCount) {
   expect_input_error(
       [&] { (void)load_unit_graph(spec(std::string(kUnits) + "e,1,C1,T1,1,1,NaN,0,0,v\n", kAdjacency)); },

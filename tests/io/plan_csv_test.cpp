@@ -82,6 +82,20 @@ TEST(PlanCsv, DistrictNotAWholeNumber) {
   expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\",\n", "p.csv", g_handle, 2); }, "p.csv", 5, "d");
 }
 
+// Issue 11, item 11: a huge whole district number is out of range, not "not a whole number";
+// 2e0 is district 2, written with an exponent.
+TEST(PlanCsv, HugeWholeDistrictIsOutOfRangeAndExponentsAreWhole) {
+  const GraphHandle g_handle = share_graph(odd_ids());
+  for (const std::string d : {"1e19", "1e17", "9007199254740993"}) {
+    const std::string m =
+        expect_input_error([&] { (void)parse_plan_csv(kGood + "\" d\"," + d + "\n", "p.csv", g_handle, 2); },
+                           "p.csv", 5, "d");
+    EXPECT_NE(m.find("outside 1..2"), std::string::npos) << m;
+  }
+  const Plan plan = parse_plan_csv(kGood + "\" d\",2e0\n", "p.csv", g_handle, 2);
+  EXPECT_EQ(plan.district_of(3), 1);
+}
+
 TEST(PlanCsv, EmptyDistrictMeansTheWrongK) {
   const GraphHandle g_handle = share_graph(odd_ids());
   const UnitGraph& g = *g_handle;

@@ -126,6 +126,12 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"party/column mismatch", "columns = [\"gov_a\", \"gov_b\"]", "columns = [\"gov_a\"]",
                "'map.elections.columns'"},
         BadJob{"syntax", "count = 20", "count = = 20", "not valid TOML"},
+        BadJob{"one district", "count = 20", "count = 1",
+               "'districts.count': is 1; a plan needs at least 2 districts; set districts.count to 2 or more"},
+        BadJob{"no districts", "count = 20", "count = 0", "'districts.count': is 0; a plan needs at least 2"},
+        BadJob{"whole float", "count = 20", "count = 2e1", "'districts.count': must be a whole number written as an integer"},
+        BadJob{"whole float names digits", "chains = 8", "chains = 8.0", "write 8 (digit groups"},
+        BadJob{"huge float", "chains = 8", "chains = 1e19", "'sampler.chains': must be a whole number"},
         BadJob{"tempering needs hottest_beta", "[verdict]", "[tempering]\nrungs = 4\n[verdict]",
                "'tempering.hottest_beta': required key is missing"}),
     [](const auto& info) {

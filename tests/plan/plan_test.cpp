@@ -94,6 +94,39 @@ TEST(Plan, Contiguity) {
   EXPECT_FALSE(one.is_connected(2));
 }
 
+// Issue 11, item 17: the flip kernel's contiguity check starts next to the unit that left. Over
+// random single-unit moves between connected districts it must answer as the full search does.
+TEST(Plan, ContiguityWithoutTheUnitThatLeftAgreesWithTheFullSearch) {
+  const GraphHandle g_handle = share_graph(test::grid(8, 8));
+  const UnitGraph& g = *g_handle;
+  Plan plan(g_handle, 4, test::stripe_assignment(8, 8, 4));
+  ASSERT_TRUE(plan.all_connected());
+  Rng rng = make_stream(2028, 0);
+  std::size_t split = 0, kept = 0;
+  for (int i = 0; i < 20000; ++i) {
+    const UnitIndex u = uniform_below(rng, static_cast<std::uint32_t>(g.unit_count()));
+    const auto neighbours = g.neighbors(u);
+    const UnitIndex w = neighbours[uniform_below(rng, static_cast<std::uint32_t>(neighbours.size()))];
+    const DistrictIndex from = plan.district_of(u), to = plan.district_of(w);
+    if (from == to) continue;
+    plan.move(u, to);
+    const bool fast = plan.is_connected_without(from, u);
+    ASSERT_EQ(fast, plan.is_connected(from)) << "step " << i << ", unit " << u;
+    if (fast) {
+      ++kept;
+    } else {
+      ++split;
+      plan.move(u, from);  // keep every district connected, as a chain does
+    }
+  }
+  EXPECT_GT(split, 100u);  // both answers were exercised
+  EXPECT_GT(kept, 100u);
+  // The last unit of a district leaves: the district is empty, so not connected.
+  Plan pair(share_graph(test::grid(1, 3)), 2, {0, 1, 1});
+  pair.move(0, 1);
+  EXPECT_FALSE(pair.is_connected_without(0, 0));
+}
+
 TEST(Plan, PopulationDeviationWorkedExample) {
   // METHODS.md section 9: ideal 100,000, largest 102,000, smallest 99,000 -> overall range 3%;
   // the largest absolute deviation is 2%.

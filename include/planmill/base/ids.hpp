@@ -8,4 +8,5 @@ using UnitIndex = std::uint32_t;
 using DistrictIndex = std::uint16_t;   // up to 65,535 districts
 using EdgeIndex = std::uint32_t;
 inline constexpr DistrictIndex kNoDistrict = static_cast<DistrictIndex>(0xFFFF);
+inline constexpr EdgeIndex kNoEdge = static_cast<EdgeIndex>(0xFFFFFFFF);
 }  // namespace planmill

@@ -69,8 +69,11 @@ class Kernel {
 [[nodiscard]] std::unique_ptr<Kernel> make_kernel(const KernelSettings& settings, const UnitGraph& graph,
                                                   std::size_t district_count);
 
-// A uniformly chosen cut edge of the plan (rejection from uniform edges: exact, O(1) expected
-// per cut-edge fraction). The plan must have at least one cut edge.
+// A uniformly chosen cut edge of the plan, or kNoEdge if the plan has none (one district).
+// Rejection from uniform edges of the map (exact, O(1) expected per cut-edge fraction), bounded:
+// after max_misses misses (default: the map's edge count) the j-th cut edge for a uniform j is
+// found by one scan, so a draw never takes more than about two passes over the edges.
 [[nodiscard]] EdgeIndex uniform_cut_edge(const Plan& plan, Rng& rng) noexcept;
+[[nodiscard]] EdgeIndex uniform_cut_edge(const Plan& plan, Rng& rng, std::size_t max_misses) noexcept;
 
 }  // namespace planmill

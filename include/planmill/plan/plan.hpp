@@ -65,6 +65,10 @@ class Plan {
 
   // Contiguity by breadth-first search inside the district; scratch buffers are reused.
   [[nodiscard]] bool is_connected(DistrictIndex d) const;
+  // The same answer after unit `left` has just moved out of d, provided d was connected with it:
+  // searches d from a neighbour of `left` and stops once every neighbour of `left` in d is reached
+  // (each unit of d reached `left` through one of them), so it never scans the map for a start.
+  [[nodiscard]] bool is_connected_without(DistrictIndex d, UnitIndex left) const;
   [[nodiscard]] bool all_connected() const;
 
   // Recomputes every tally from scratch and compares (for tests and heavy assertions).

@@ -53,6 +53,15 @@ struct SelftestResult {
 inline constexpr double kSelftestMinPValue = 1e-4;
 inline constexpr double kAcceptedPerRecord = 25.0;
 
+// Limits of the enumeration, checked before and while it runs: a map of more units than
+// kSelftestMaxUnits is refused at once (the count of plans grows about exponentially in the
+// units: the 6x6 grid into 6 has 451,206, the 7x7 into 7 about 1.6e8), and the enumeration stops
+// with an error once it has found more than kSelftestMaxPlans valid plans (each one is held in
+// memory and must be seen by the chain).
+inline constexpr std::size_t kSelftestMaxUnits = 40;
+inline constexpr std::size_t kSelftestMaxPlans = 2'000'000;
+
+// Throws InputError (file = the case's name) when the map is beyond those limits.
 [[nodiscard]] SelftestResult run_selftest(const SelftestCase& test);
 
 // The built-in cases: grids and irregular graphs with unequal populations, every kernel, several
