@@ -220,6 +220,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"host", f.host},
          {"size_bytes", ec ? json(nullptr) : json(static_cast<std::uint64_t>(size))},
          {"sha256", sha256_now(path)},
+         {"committed_sha256", text_or_null(f.sha256)},
+         {"identity", reader.identity_of(f.file)},
          {"verify", damaged ? "damaged" : "ok"},
          {"chains", file_chains.count(f.file) ? file_chains[f.file] : json::array()},
          {"problems", file_problems.count(f.file) ? file_problems[f.file] : json::array()},

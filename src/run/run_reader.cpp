@@ -4,6 +4,7 @@
 #include <stdexcept>
 
 #include "planmill/base/error.hpp"
+#include "planmill/io/file_hash.hpp"
 #include "planmill/store/hdf5_handle.hpp"
 
 namespace planmill {
@@ -147,6 +148,26 @@ std::vector<double> RunReader::read_observables(std::uint64_t chain, std::uint64
   return out;
 }
 
+std::string RunReader::identity_of(const std::string& file) const {
+  if (!identities_) {
+    identities_.emplace();
+    for (const auto& f : state_.files) {
+      std::string status = "not recorded";
+      if (!f.sha256.empty()) {
+        try {
+          status = sha256_file_hex(layout_.resolve(f.file).string()) == f.sha256 ? "matches"
+                                                                                  : "differs";
+        } catch (const InputError&) {
+          status = "missing";
+        }
+      }
+      (*identities_)[f.file] = status;
+    }
+  }
+  const auto it = identities_->find(file);
+  return it == identities_->end() ? "not recorded" : it->second;
+}
+
 std::vector<ChainProblem> RunReader::verify() const { return verify_records(false); }
 std::vector<ChainProblem> RunReader::verify_rungs() const { return verify_records(true); }
 
@@ -166,6 +187,16 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
               {c.index, s.first, s.first + s.records - 1,
                s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file),
                rung});
+          continue;
+        }
+        if (identity_of(s.file) == "differs") {
+          if (s.records == 0) continue;
+          problems.push_back({c.index, s.first, s.first + s.records - 1,
+                              s.file + ": " + rung_text(rung) +
+                                  "is not the file the run committed (its SHA-256 differs from "
+                                  "the one " + layout_.state_file().filename().string() +
+                                  " records)",
+                              rung});
           continue;
         }
         // A group the file lacks holds no records; an unreadable index is left to verify() below.
@@ -191,7 +222,7 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
   if (!file_checks_) {
     file_checks_.emplace();
     for (const auto& [name, reader] : files_) {
-      if (reader != nullptr) (*file_checks_)[name] = reader->verify();
+      if (reader != nullptr && identity_of(name) != "differs") (*file_checks_)[name] = reader->verify();
     }
   }
   for (const auto& [name, checks] : *file_checks_) {

@@ -57,8 +57,9 @@ json to_json(const RunState& s) {
   }
   j["files"] = json::array();
   for (const auto& f : s.files) {
-    j["files"].push_back(
-        {{"file", f.file}, {"segment", f.segment}, {"rank", f.rank}, {"host", f.host}});
+    json entry = {{"file", f.file}, {"segment", f.segment}, {"rank", f.rank}, {"host", f.host}};
+    if (!f.sha256.empty()) entry["sha256"] = f.sha256;
+    j["files"].push_back(std::move(entry));
   }
   j["chains"] = json::array();
   for (const auto& c : s.chains) {
@@ -110,7 +111,8 @@ RunState from_json(const json& j) {
   }
   for (const auto& f : j.at("files")) {
     s.files.push_back({f.at("file").get<std::string>(), f.at("segment").get<std::uint64_t>(),
-                       f.at("rank").get<int>(), f.at("host").get<std::string>()});
+                       f.at("rank").get<int>(), f.at("host").get<std::string>(),
+                       f.contains("sha256") ? f.at("sha256").get<std::string>() : std::string()});
   }
   for (const auto& c : j.at("chains")) {
     ChainEntry e;

@@ -642,7 +642,8 @@ class ChainRunner {
         }
         writer_.reset();  // closes the HDF5 file
         fsync_path(layout_.resolve(writer_file_));
-        part.files.push_back({writer_file_, segment_, w_.rank, host_});
+        part.files.push_back({writer_file_, segment_, w_.rank, host_,
+                              sha256_file_hex(layout_.resolve(writer_file_).string())});
       }
       const std::string now = utc_now_iso8601();
       for (std::size_t k = 0; k < chains_.size(); ++k) {

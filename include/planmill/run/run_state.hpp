@@ -71,6 +71,11 @@ struct PlanFileEntry {
   std::uint64_t segment = 0;
   int rank = 0;
   std::string host;
+  // SHA-256 of the file as committed (closed and flushed before the checkpoint that lists it):
+  // a file put in its place, even a valid plan file of the same rank, does not match. Empty in
+  // run states written before planmill recorded it; such files are checked by their own checksums
+  // only.
+  std::string sha256;
 };
 
 // One start or resume of the run.

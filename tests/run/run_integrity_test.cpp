@@ -1,0 +1,118 @@
+// The run state as the guard of a run folder: the plan files it committed (by SHA-256), the input
+// files the job names (by content, wherever the folder and its inputs now are), the snapshots it
+// resumes from, and files that went missing. Real `planmill` processes on real files.
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <functional>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <vector>
+
+#include "planmill/run/run_state.hpp"
+#include "../support/run_jobs.hpp"
+
+namespace planmill {
+namespace {
+
+namespace fs = std::filesystem;
+using test::shell;
+
+fs::path scratch(const std::string& name) { return test::scratch_dir("planmill-integrity-test", name); }
+
+std::string text_of(const fs::path& path) {
+  std::ifstream in(path);
+  return {std::istreambuf_iterator<char>(in), {}};
+}
+
+// `planmill ARGS`, its stdout and stderr in `log`; returns the exit status.
+int planmill(const std::string& args, const fs::path& log) {
+  return shell(std::string(PLANMILL_BINARY) + " " + args + " >" + log.string() + " 2>&1");
+}
+
+int run(int ranks, const fs::path& job, const fs::path& out, const std::string& extra, const fs::path& log) {
+  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
+  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
+  return shell("mpiexec --oversubscribe -n " + std::to_string(ranks) + " " + PLANMILL_BINARY + " run " +
+               job.string() + " --output " + out.string() + " --quiet " + extra + " >" + log.string() +
+               " 2>&1");
+}
+
+// Blocks of 200 steps after a burn-in of 100, each ended by a checkpoint: with --max-steps 700 a
+// run commits three plan files per rank, each with 40 records of every chain.
+constexpr const char* kBlocks = "chains = 2\nsteps = 300\nburn_in = 100\nrecord_every = 5\nseed = 3";
+constexpr const char* kUnreachable = "[verdict]\ness_min = 1000000\n";
+const std::string kThreeBlocks = "--until-converged --max-steps 700";
+
+fs::path blocks_job(const fs::path& dir) {
+  const fs::path job = test::write_synth_job(dir, kBlocks);
+  std::ofstream(job, std::ios::app) << kUnreachable;
+  return job;
+}
+
+void edit_state(const fs::path& run_dir, const std::function<void(nlohmann::json&)>& edit) {
+  const fs::path file = run_dir / "run-state.json";
+  nlohmann::json state = nlohmann::json::parse(text_of(file));
+  edit(state);
+  std::ofstream(file, std::ios::trunc) << state.dump(1);
+}
+
+TEST(RunIntegrity, APlanFileReplacedByAnotherOfTheSameRankIsNotTheRunsFile) {
+  const auto dir = scratch("swap");
+  const auto job = blocks_job(dir);
+  const auto out = dir / "out";
+  ASSERT_EQ(run(1, job, out, kThreeBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  const RunState state = read_run_state(RunLayout{out});
+  ASSERT_EQ(state.files.size(), 3U);
+  for (const auto& f : state.files) EXPECT_EQ(f.sha256.size(), 64U) << f.file;
+  const std::string diagnose = "diagnose " + out.string() + " --rhat-max 100 --ess-min 1";
+  const std::string exports = "export " + out.string() + " --out " + (dir / "csv").string();
+  ASSERT_EQ(planmill("merge " + out.string(), dir / "merge0.log"), 0) << text_of(dir / "merge0.log");
+  ASSERT_EQ(planmill(diagnose, dir / "diagnose0.log"), 0) << text_of(dir / "diagnose0.log");
+  ASSERT_EQ(planmill(exports, dir / "export0.log"), 0) << text_of(dir / "export0.log");
+
+  // Two valid files of rank 0, the same record counts: only their identity tells them apart.
+  const fs::path a = out / "plans" / "seg-00000-rank-000.h5", b = out / "plans" / "seg-00001-rank-000.h5";
+  fs::rename(a, dir / "tmp.h5");
+  fs::rename(b, a);
+  fs::rename(dir / "tmp.h5", b);
+  const std::string message = "plans/seg-00000-rank-000.h5: is not the file the run committed";
+  EXPECT_EQ(planmill("merge " + out.string(), dir / "merge.log"), 3);
+  EXPECT_NE(text_of(dir / "merge.log").find(message), std::string::npos) << text_of(dir / "merge.log");
+  EXPECT_NE(text_of(dir / "merge.log").find("plans/seg-00001-rank-000.h5: is not the file"), std::string::npos);
+  const auto manifest = nlohmann::json::parse(text_of(out / "manifest.json"));
+  EXPECT_EQ(manifest["plan_files"][0]["identity"], "differs");
+  EXPECT_EQ(manifest["plan_files"][0]["verify"], "damaged");
+  EXPECT_EQ(manifest["plan_files"][2]["identity"], "matches");
+  EXPECT_EQ(planmill(diagnose, dir / "diagnose.log"), 3);
+  EXPECT_NE(text_of(dir / "diagnose.log").find(message), std::string::npos) << text_of(dir / "diagnose.log");
+  EXPECT_EQ(planmill(exports, dir / "export.log"), 3);
+  EXPECT_NE(text_of(dir / "export.log").find(message), std::string::npos) << text_of(dir / "export.log");
+
+  // Put back, the files match again.
+  fs::rename(a, dir / "tmp.h5");
+  fs::rename(b, a);
+  fs::rename(dir / "tmp.h5", b);
+  EXPECT_EQ(planmill("merge " + out.string(), dir / "merge1.log"), 0) << text_of(dir / "merge1.log");
+}
+
+TEST(RunIntegrity, ARunStateWithoutPlanFileHashesStaysReadable) {
+  const auto dir = scratch("old-files");
+  const auto job = blocks_job(dir);
+  const auto out = dir / "out";
+  ASSERT_EQ(run(1, job, out, kThreeBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  edit_state(out, [](nlohmann::json& s) {
+    for (auto& f : s["files"]) f.erase("sha256");
+  });
+  EXPECT_EQ(planmill("merge " + out.string(), dir / "merge.log"), 0) << text_of(dir / "merge.log");
+  const auto manifest = nlohmann::json::parse(text_of(out / "manifest.json"));
+  EXPECT_EQ(manifest["plan_files"][0]["identity"], "not recorded");
+  EXPECT_TRUE(manifest["plan_files"][0]["committed_sha256"].is_null());
+}
+
+
+}  // namespace
+}  // namespace planmill
