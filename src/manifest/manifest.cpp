@@ -28,10 +28,10 @@ json sha256_now(const std::string& path) {
   }
 }
 
-// "matches", "changed" or "missing": a file hashed at run start against what is there now.
+// "matches", "differs" or "missing": a file hashed at run start against what is there now.
 std::string compare(const std::string& recorded, const json& now) {
   if (now.is_null()) return "missing";
-  return now.get<std::string>() == recorded ? "matches" : "changed";
+  return now.get<std::string>() == recorded ? "matches" : "differs";
 }
 
 json counters_json(const StoredCounters& c) {
@@ -109,11 +109,14 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   json inputs = json::array();
   std::size_t inputs_changed = 0;
   for (const auto& f : s.inputs) {
-    const json now = sha256_now(f.path);
+    // Relative paths from the job file of the run's latest start or resume.
+    const std::string resolved = resolve_input_path(s.job_path, f.path);
+    const json now = sha256_now(resolved);
     const std::string status = compare(f.sha256, now);
     inputs_changed += status != "matches";
     inputs.push_back({{"role", f.role},
                       {"path", f.path},
+                      {"checked", resolved},
                       {"sha256_at_start", f.sha256},
                       {"sha256_now", now},
                       {"status", status}});

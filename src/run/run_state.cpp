@@ -145,6 +145,21 @@ RunState from_json(const json& j) {
 
 }  // namespace
 
+std::string input_path_for_state(const std::string& job_file, const std::string& path) {
+  namespace fs = std::filesystem;
+  const fs::path file = fs::absolute(path).lexically_normal();
+  const fs::path base = fs::absolute(job_file).lexically_normal().parent_path();
+  const fs::path relative = file.lexically_relative(base);
+  return relative.empty() ? file.string() : relative.string();
+}
+
+std::string resolve_input_path(const std::string& job_file, const std::string& stored) {
+  namespace fs = std::filesystem;
+  const fs::path p(stored);
+  if (p.is_absolute()) return p.string();
+  return (fs::path(job_file).parent_path() / p).lexically_normal().string();
+}
+
 std::string RunLayout::plan_file_name(std::uint64_t segment, int rank) {
   char name[64];
   std::snprintf(name, sizeof name, "plans/seg-%05llu-rank-%03d.h5",

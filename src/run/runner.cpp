@@ -342,10 +342,11 @@ class ChainRunner {
     s.git_commit = kGitCommit;
     s.job_path = fs::absolute(options_.job_path).lexically_normal().string();
     s.job_sha256 = sha256_hex(job.text);
-    s.inputs.push_back({"job", s.job_path, s.job_sha256});
-    // Absolute, so that merge and resume find them from any folder.
+    s.inputs.push_back({"job", input_path_for_state(s.job_path, s.job_path), s.job_sha256});
+    // By content and by the path the job names (relative to the job file): a resume checks the
+    // files the job it is given names, wherever the run folder and its inputs are now.
     const auto input = [&](const char* role, const std::string& path) {
-      s.inputs.push_back({role, fs::absolute(path).lexically_normal().string(), sha256_file_hex(path)});
+      s.inputs.push_back({role, input_path_for_state(s.job_path, path), sha256_file_hex(path)});
     };
     input("units", job.map.units_path);
     input("adjacency", job.map.adjacency_path);
@@ -374,14 +375,37 @@ class ChainRunner {
                            layout_.job_copy().string() + ")",
                        "resume with the same job file, or start a new run with --output");
     }
-    for (const auto& input : s.inputs) {
-      if (input.role == "job") continue;
-      if (!fs::exists(input.path) || sha256_file_hex(input.path) != input.sha256) {
-        throw InputError({input.path, 0, ""},
-                         "has changed since the run started (its SHA-256 differs)",
-                         "restore the " + input.role + " file the run started with");
+    // The files the job given now names, each against the content the run started with (the
+    // paths recorded are only where they were; a run state from before relative paths holds
+    // absolute ones, and is checked the same way).
+    const JobSpec& job = loaded_->job;
+    const std::string job_file = fs::absolute(options_.job_path).lexically_normal().string();
+    std::vector<std::pair<std::string, std::string>> named = {{"units", job.map.units_path},
+                                                              {"adjacency", job.map.adjacency_path}};
+    if (loaded_->start) named.emplace_back("start plan", job.start);
+    for (const auto& [role, path] : named) {
+      const auto recorded = std::find_if(s.inputs.begin(), s.inputs.end(),
+                                         [&](const InputFileEntry& e) { return e.role == role; });
+      if (recorded == s.inputs.end()) {
+        throw InputError({layout_.state_file().string(), 0, "inputs"},
+                         "records no " + role + " file, but the job names " + path,
+                         "resume with the job the run started with");
       }
+      if (!fs::exists(path)) {
+        throw InputError({path, 0, ""}, "is missing",
+                         "restore the " + role + " file the run started with");
+      }
+      if (sha256_file_hex(path) != recorded->sha256) {
+        throw InputError({path, 0, ""}, "has changed since the run started (SHA-256 differs)",
+                         "restore the " + role + " file the run started with, or start a new "
+                         "run with --output");
+      }
+      recorded->path = input_path_for_state(job_file, path);
     }
+    for (auto& input : s.inputs) {
+      if (input.role == "job") input.path = input_path_for_state(job_file, job_file);
+    }
+    s.job_path = job_file;
     remove_unlisted_plan_files(layout_, s);
     return s;
   }

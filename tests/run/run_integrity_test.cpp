@@ -114,5 +114,117 @@ TEST(RunIntegrity, ARunStateWithoutPlanFileHashesStaysReadable) {
 }
 
 
+std::vector<std::string> split_commas(const std::string& line) {
+  std::vector<std::string> out(1);
+  for (const char c : line) {
+    if (c == ',') {
+      out.emplace_back();
+    } else {
+      out.back().push_back(c);
+    }
+  }
+  return out;
+}
+
+// One more person in the first unit of a unit table: a different file that still loads.
+void change_unit_table(const fs::path& units) {
+  std::ifstream in(units);
+  std::string header, first;
+  std::getline(in, header);
+  std::getline(in, first);
+  const std::string rest(std::istreambuf_iterator<char>(in), {});
+  in.close();
+  const auto names = split_commas(header);
+  auto values = split_commas(first);
+  const auto pop = std::find(names.begin(), names.end(), "pop");
+  ASSERT_NE(pop, names.end()) << header;
+  auto& value = values[static_cast<std::size_t>(pop - names.begin())];
+  value = std::to_string(std::stol(value) + 1);
+  std::string row;
+  for (const auto& v : values) row += (row.empty() ? "" : ",") + v;
+  std::ofstream(units, std::ios::trunc) << header << "\n" << row << "\n" << rest;
+}
+
+// Two blocks committed (finished at its step budget); --resume with a larger budget goes on.
+const std::string kTwoBlocks = "--until-converged --max-steps 500";
+
+TEST(RunIntegrity, ACopiedRunFolderDoesNotResumeOnAChangedUnitTable) {
+  const auto dir = scratch("copy");
+  const auto job = blocks_job(dir / "first");
+  ASSERT_EQ(run(1, job, dir / "first" / "out", kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  fs::copy(dir / "first", dir / "second", fs::copy_options::recursive);
+  change_unit_table(dir / "second" / "state" / "units.csv");
+  ASSERT_EQ(planmill("check " + (dir / "second" / "state" / "job.toml").string(), dir / "check.log"), 0)
+      << "the changed table must still load: " << text_of(dir / "check.log");
+  const std::string before = text_of(dir / "second" / "out" / "run-state.json");
+  EXPECT_EQ(run(1, dir / "second" / "state" / "job.toml", dir / "second" / "out", "--resume " + kThreeBlocks,
+                dir / "resume.log"),
+            2);
+  const std::string log = text_of(dir / "resume.log");
+  EXPECT_NE(log.find((dir / "second" / "state" / "units.csv").string() +
+                     ": has changed since the run started (SHA-256 differs)"),
+            std::string::npos)
+      << log;
+  EXPECT_EQ(text_of(dir / "second" / "out" / "run-state.json"), before) << "the copied run was touched";
+  // The original, with its own unchanged inputs, still resumes.
+  EXPECT_EQ(run(1, job, dir / "first" / "out", "--resume " + kThreeBlocks, dir / "first.log"), 3)
+      << text_of(dir / "first.log");
+}
+
+TEST(RunIntegrity, AMovedRunFolderWithItsInputsResumesAndItsManifestFindsThem) {
+  const auto dir = scratch("move");
+  const auto job = blocks_job(dir / "before");
+  ASSERT_EQ(run(1, job, dir / "before" / "out", kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  fs::rename(dir / "before", dir / "after");
+  const auto moved = dir / "after" / "out";
+  EXPECT_EQ(run(1, dir / "after" / "state" / "job.toml", moved, "--resume " + kThreeBlocks, dir / "resume.log"), 3)
+      << text_of(dir / "resume.log");
+  const RunState state = read_run_state(RunLayout{moved});
+  EXPECT_EQ(state.chains[0].steps, 700U);
+  for (const auto& input : state.inputs) {
+    EXPECT_FALSE(fs::path(input.path).is_absolute()) << input.role << ": " << input.path;
+  }
+  ASSERT_EQ(planmill("merge " + moved.string(), dir / "merge.log"), 0) << text_of(dir / "merge.log");
+  const auto manifest = nlohmann::json::parse(text_of(moved / "manifest.json"));
+  for (const auto& input : manifest["inputs"]) EXPECT_EQ(input["status"], "matches") << input.dump();
+  // The manifest looks for inputs where the job file of the latest session is.
+  change_unit_table(dir / "after" / "state" / "units.csv");
+  ASSERT_EQ(planmill("merge " + moved.string(), dir / "merge2.log"), 0) << text_of(dir / "merge2.log");
+  const auto changed = nlohmann::json::parse(text_of(moved / "manifest.json"));
+  EXPECT_EQ(changed["inputs"][1]["role"], "units");
+  EXPECT_EQ(changed["inputs"][1]["status"], "differs");
+  fs::remove(dir / "after" / "state" / "adjacency.csv");
+  ASSERT_EQ(planmill("merge " + moved.string(), dir / "merge3.log"), 0) << text_of(dir / "merge3.log");
+  EXPECT_EQ(nlohmann::json::parse(text_of(moved / "manifest.json"))["inputs"][2]["status"], "missing");
+}
+
+TEST(RunIntegrity, AResumeWithADeletedInputSaysItIsMissing) {
+  const auto dir = scratch("deleted-input");
+  const auto job = blocks_job(dir);
+  ASSERT_EQ(run(1, job, dir / "out", kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  fs::remove(dir / "state" / "adjacency.csv");
+  EXPECT_EQ(run(1, job, dir / "out", "--resume " + kThreeBlocks, dir / "resume.log"), 2);
+  const std::string log = text_of(dir / "resume.log");
+  EXPECT_NE(log.find((dir / "state" / "adjacency.csv").string() + ": is missing"), std::string::npos) << log;
+  EXPECT_EQ(log.find("has changed"), std::string::npos) << log;
+}
+
+TEST(RunIntegrity, ARunStateWithAbsoluteInputPathsStillResumes) {
+  const auto dir = scratch("old-inputs");
+  const auto job = blocks_job(dir);
+  ASSERT_EQ(run(1, job, dir / "out", kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  edit_state(dir / "out", [&](nlohmann::json& s) {  // as planmill wrote inputs before
+    for (auto& input : s["inputs"]) {
+      input["path"] = (dir / "state" / input["path"].get<std::string>()).lexically_normal().string();
+    }
+  });
+  ASSERT_EQ(planmill("merge " + (dir / "out").string(), dir / "merge.log"), 0) << text_of(dir / "merge.log");
+  for (const auto& input : nlohmann::json::parse(text_of(dir / "out" / "manifest.json"))["inputs"]) {
+    EXPECT_EQ(input["status"], "matches") << input.dump();
+  }
+  EXPECT_EQ(run(1, job, dir / "out", "--resume " + kThreeBlocks, dir / "resume.log"), 3) << text_of(dir / "resume.log");
+  EXPECT_EQ(read_run_state(RunLayout{dir / "out"}).chains[0].steps, 700U);
+}
+
 }  // namespace
 }  // namespace planmill
