@@ -1,4 +1,5 @@
 #include "planmill/chain/chain.hpp"
+#include "planmill/chain/snapshot_check.hpp"
 
 #include <bit>
 #include <sstream>
@@ -41,6 +42,60 @@ std::string Chain::save() const {
   return out.str();
 }
 
+namespace {
+
+// A snapshot's plan is one a chain can hold: every district used and contiguous.
+void check_plan(const Plan& plan, const std::vector<DistrictIndex>& labels) {
+  std::vector<std::size_t> units(plan.district_count(), 0);
+  for (const DistrictIndex d : labels) ++units[d];
+  for (std::size_t d = 0; d < units.size(); ++d) {
+    if (units[d] == 0) {
+      throw std::invalid_argument("the plan in the chain snapshot leaves district " +
+                                  std::to_string(d) + " empty");
+    }
+  }
+  for (std::size_t d = 0; d < units.size(); ++d) {
+    if (!plan.is_connected(static_cast<DistrictIndex>(d))) {
+      throw std::invalid_argument("the plan in the chain snapshot has district " +
+                                  std::to_string(d) + " in pieces (not contiguous)");
+    }
+  }
+}
+
+}  // namespace
+
+void check_chain_snapshot(std::string_view snapshot, const GraphHandle& graph,
+                          std::size_t district_count) {
+  std::istringstream in{std::string(snapshot)};
+  std::string magic;
+  int version = 0;
+  std::uint64_t index = 0, bits = 0, steps = 0, outcome = 0;
+  std::size_t units = 0, districts = 0;
+  in >> magic >> version >> index >> units >> districts;
+  if (!in || magic != "planmill-chain" || (version != 1 && version != 2))
+    throw std::invalid_argument("not a planmill chain snapshot");
+  if (version == 2) in >> bits;
+  if (units != graph->unit_count())
+    throw std::invalid_argument("the chain snapshot has " + std::to_string(units) +
+                                " units, the map " + std::to_string(graph->unit_count()));
+  if (districts != district_count)
+    throw std::invalid_argument("the chain snapshot has " + std::to_string(districts) +
+                                " districts, the job " + std::to_string(district_count));
+  Rng rng;
+  in >> rng >> steps;
+  for (std::size_t k = 0; k < kStepResultCount; ++k) in >> outcome;
+  std::vector<DistrictIndex> labels(units);
+  for (auto& d : labels) in >> d;
+  if (!in) throw std::invalid_argument("chain snapshot is truncated");
+  for (const DistrictIndex d : labels) {
+    if (d >= districts)
+      throw std::invalid_argument("the plan in the chain snapshot has district label " +
+                                  std::to_string(d) + ", beyond " + std::to_string(districts));
+  }
+  const Plan plan(graph, districts, labels);
+  check_plan(plan, labels);
+}
+
 void Chain::restore(std::string_view snapshot) {
   std::istringstream in{std::string(snapshot)};
   std::string magic;
@@ -65,7 +120,13 @@ void Chain::restore(std::string_view snapshot) {
   std::vector<DistrictIndex> labels(units);
   for (auto& d : labels) in >> d;
   if (!in) throw std::invalid_argument("chain snapshot is truncated");
-  Plan plan(state_.plan.graph_handle(), districts, std::move(labels));
+  for (const DistrictIndex d : labels) {
+    if (d >= districts)
+      throw std::invalid_argument("the plan in the chain snapshot has district label " +
+                                  std::to_string(d) + ", beyond " + std::to_string(districts));
+  }
+  Plan plan(state_.plan.graph_handle(), districts, labels);
+  check_plan(plan, labels);
   state_ = ChainState(std::move(plan), state_.rules.rules());
   kernel_->reset(state_);
   rng_ = rng;

@@ -1,6 +1,7 @@
 #include "planmill/run/run_reader.hpp"
 
 #include <algorithm>
+#include <filesystem>
 #include <stdexcept>
 
 #include "planmill/base/error.hpp"
@@ -13,6 +14,11 @@ RunReader::RunReader(const std::string& run_dir)
     : layout_{run_dir}, state_(read_run_state(layout_)) {
   for (const auto& f : state_.files) {
     std::unique_ptr<EnsembleReader> reader;
+    if (!std::filesystem::exists(layout_.resolve(f.file))) {
+      unreadable_.emplace(f.file, "missing");  // said so, not as HDF5's error stack
+      files_.emplace(f.file, nullptr);
+      continue;
+    }
     try {
       reader = std::make_unique<EnsembleReader>(layout_.resolve(f.file).string());
     } catch (const StoreError& e) {
@@ -183,10 +189,11 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
     for (std::uint64_t rung = rungs ? 1 : 0; rung < (rungs ? c.recorded_rungs : 1); ++rung) {
       for (const auto& s : spans_of(c.index)) {
         if (s.reader == nullptr) {
-          problems.push_back(
-              {c.index, s.first, s.first + s.records - 1,
-               s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file),
-               rung});
+          const std::string& why = unreadable_.at(s.file);
+          problems.push_back({c.index, s.first, s.first + s.records - 1,
+                              s.file + ": " + rung_text(rung) +
+                                  (why == "missing" ? why : "cannot be opened: " + why),
+                              rung});
           continue;
         }
         if (identity_of(s.file) == "differs") {

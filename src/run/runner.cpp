@@ -20,6 +20,7 @@
 
 #include "planmill/base/error.hpp"
 #include "planmill/chain/chain.hpp"
+#include "planmill/chain/snapshot_check.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/file_hash.hpp"
@@ -406,6 +407,36 @@ class ChainRunner {
       if (input.role == "job") input.path = input_path_for_state(job_file, job_file);
     }
     s.job_path = job_file;
+    // Each chain goes on from its snapshot; one that has stepped cannot start again from nothing.
+    const std::string state_file = layout_.state_file().string();
+    for (const auto& c : s.chains) {
+      const std::string which = "chain " + std::to_string(c.index);
+      if (c.snapshot.empty()) {
+        if (c.steps == 0) continue;
+        throw InputError({state_file, 0, "chains"},
+                         which + " has taken " + std::to_string(c.steps) +
+                             " steps but holds no snapshot to go on from",
+                         "restore run-state.json from a backup, or start a new run with --output");
+      }
+      try {
+        if (tempered()) {
+          check_ladder_snapshot(c.snapshot, loaded_->graph, job.districts);
+        } else {
+          check_chain_snapshot(c.snapshot, loaded_->graph, job.districts);
+        }
+      } catch (const std::invalid_argument& e) {
+        throw InputError({state_file, 0, "chains"}, which + ": " + e.what(),
+                         "restore run-state.json from a backup, or start a new run with --output");
+      }
+    }
+    // Every committed plan file must be there: the run's records so far are in them.
+    for (const auto& f : s.files) {
+      if (!fs::exists(layout_.resolve(f.file))) {
+        throw InputError({layout_.resolve(f.file).string(), 0, ""}, "missing",
+                         "the run state lists it; restore it from a backup, or start a new run "
+                         "with --output");
+      }
+    }
     remove_unlisted_plan_files(layout_, s);
     return s;
   }

@@ -226,5 +226,80 @@ TEST(RunIntegrity, ARunStateWithAbsoluteInputPathsStillResumes) {
   EXPECT_EQ(read_run_state(RunLayout{dir / "out"}).chains[0].steps, 700U);
 }
 
+// The snapshot of chain 0 with its lines changed by `edit` (Chain::save(): header, numbers,
+// random stream, counters, labels).
+void edit_snapshot(const fs::path& run_dir, const std::function<void(std::vector<std::string>&)>& edit) {
+  edit_state(run_dir, [&](nlohmann::json& s) {
+    std::vector<std::string> lines(1);
+    for (const char c : s["chains"][0]["snapshot"].get<std::string>()) {
+      if (c == '\n') {
+        lines.emplace_back();
+      } else {
+        lines.back().push_back(c);
+      }
+    }
+    edit(lines);
+    std::string text;
+    for (std::size_t i = 0; i < lines.size(); ++i) text += (i ? "\n" : "") + lines[i];
+    s["chains"][0]["snapshot"] = text;
+  });
+}
+
+std::string labels_by(std::size_t units, std::size_t modulus) {
+  std::string text;
+  for (std::size_t u = 0; u < units; ++u) text += std::to_string(u % modulus) + " ";
+  return text;
+}
+
+TEST(RunIntegrity, AResumeRefusesAChainWithoutASnapshotOrWithAPlanItCannotHold) {
+  const auto dir = scratch("snapshot");
+  const auto job = blocks_job(dir);
+  const auto out = dir / "out";
+  ASSERT_EQ(run(1, job, out, kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  const std::string committed = text_of(out / "run-state.json");
+  const auto refused = [&](const std::string& what) {
+    EXPECT_EQ(run(1, job, out, "--resume " + kThreeBlocks, dir / "resume.log"), 2) << what;
+    const std::string log = text_of(dir / "resume.log");
+    EXPECT_NE(log.find((out / "run-state.json").string() + ": 'chains': chain 0"), std::string::npos) << log;
+    EXPECT_NE(log.find(what), std::string::npos) << log;
+    std::ofstream(out / "run-state.json", std::ios::trunc) << committed;
+  };
+  edit_state(out, [](nlohmann::json& s) { s["chains"][0]["snapshot"] = ""; });
+  refused("chain 0 has taken 500 steps but holds no snapshot");
+  // Striped by unit index, the districts of the invented map fall apart.
+  edit_snapshot(out, [](std::vector<std::string>& lines) { lines[4] = labels_by(200, 4); });
+  refused("not contiguous");
+  edit_snapshot(out, [](std::vector<std::string>& lines) { lines[4] = labels_by(200, 3); });
+  refused("leaves district 3 empty");
+  edit_snapshot(out, [](std::vector<std::string>& lines) {
+    lines[1].replace(lines[1].find(" 200 4 "), 7, " 200 5 ");
+  });
+  refused("has 5 districts, the job 4");
+  // Untouched, it resumes.
+  EXPECT_EQ(run(1, job, out, "--resume " + kThreeBlocks, dir / "resume.log"), 3) << text_of(dir / "resume.log");
+}
+
+TEST(RunIntegrity, ADeletedPlanFileIsReportedAsMissing) {
+  const auto dir = scratch("deleted-plans");
+  const auto job = blocks_job(dir);
+  const auto out = dir / "out";
+  ASSERT_EQ(run(1, job, out, kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  fs::remove(out / "plans" / "seg-00001-rank-000.h5");
+  const std::string message = "plans/seg-00001-rank-000.h5: missing";
+  const auto says_missing = [&](const fs::path& log) {
+    const std::string text = text_of(log);
+    EXPECT_NE(text.find(message), std::string::npos) << text;
+    EXPECT_EQ(text.find("H5"), std::string::npos) << "no HDF5 error stack: " << text;
+  };
+  EXPECT_EQ(planmill("merge " + out.string(), dir / "merge.log"), 3);
+  says_missing(dir / "merge.log");
+  EXPECT_EQ(planmill("diagnose " + out.string() + " --rhat-max 100 --ess-min 1", dir / "diagnose.log"), 3);
+  says_missing(dir / "diagnose.log");
+  EXPECT_EQ(planmill("export " + out.string() + " --out " + (dir / "csv").string(), dir / "export.log"), 3);
+  says_missing(dir / "export.log");
+  EXPECT_EQ(run(1, job, out, "--resume " + kThreeBlocks, dir / "resume.log"), 2);
+  says_missing(dir / "resume.log");
+}
+
 }  // namespace
 }  // namespace planmill
