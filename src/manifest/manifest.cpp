@@ -122,6 +122,12 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
                       {"status", status}});
   }
   m["inputs"] = inputs;
+  json builds = json::array();
+  for (const auto& b : s.builds) {
+    builds.push_back({{"compiler", b.compiler}, {"cxx_flags", b.cxx_flags}, {"isa", b.isa},
+                      {"hdf5", b.hdf5}, {"mpi", b.mpi}});
+  }
+  m["builds"] = builds;
   m["seed"] = s.seed;
   m["target_steps"] = s.target_steps;
   m["burn_in"] = s.burn_in;

@@ -42,6 +42,13 @@ json to_json(const RunState& s) {
   for (const auto& f : s.inputs) {
     j["inputs"].push_back({{"role", f.role}, {"path", f.path}, {"sha256", f.sha256}});
   }
+  if (!s.builds.empty()) {
+    j["builds"] = json::array();
+    for (const auto& b : s.builds) {
+      j["builds"].push_back({{"compiler", b.compiler}, {"cxx_flags", b.cxx_flags}, {"isa", b.isa},
+                             {"hdf5", b.hdf5}, {"mpi", b.mpi}});
+    }
+  }
   j["seed"] = s.seed;
   j["target_steps"] = s.target_steps;
   j["burn_in"] = s.burn_in;
@@ -95,6 +102,13 @@ RunState from_json(const json& j) {
   for (const auto& f : j.at("inputs")) {
     s.inputs.push_back({f.at("role").get<std::string>(), f.at("path").get<std::string>(),
                         f.at("sha256").get<std::string>()});
+  }
+  if (j.contains("builds")) {
+    for (const auto& b : j.at("builds")) {
+      s.builds.push_back({b.at("compiler").get<std::string>(), b.at("cxx_flags").get<std::string>(),
+                          b.at("isa").get<std::string>(), b.at("hdf5").get<std::string>(),
+                          b.at("mpi").get<std::string>()});
+    }
   }
   s.seed = j.at("seed").get<std::uint64_t>();
   s.target_steps = j.at("target_steps").get<std::uint64_t>();

@@ -26,6 +26,7 @@
 #include "planmill/io/file_hash.hpp"
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/job/loaded_job.hpp"
+#include "planmill/run/build_info.hpp"
 #include "planmill/run/observables.hpp"
 #include "planmill/run/placement.hpp"
 #include "planmill/run/run_lock.hpp"
@@ -344,6 +345,7 @@ class ChainRunner {
     s.job_path = fs::absolute(options_.job_path).lexically_normal().string();
     s.job_sha256 = sha256_hex(job.text);
     s.inputs.push_back({"job", input_path_for_state(s.job_path, s.job_path), s.job_sha256});
+    s.builds.push_back(this_build());
     // By content and by the path the job names (relative to the job file): a resume checks the
     // files the job it is given names, wherever the run folder and its inputs are now.
     const auto input = [&](const char* role, const std::string& path) {
@@ -428,6 +430,25 @@ class ChainRunner {
         throw InputError({state_file, 0, "chains"}, which + ": " + e.what(),
                          "restore run-state.json from a backup, or start a new run with --output");
       }
+    }
+    // Another build may step the same snapshot to other plans: refuse it unless the user accepts
+    // that, and then list it (a state from before builds were recorded is not checked).
+    const BuildInfo here = this_build();
+    if (!s.builds.empty() && !(s.builds.back() == here)) {
+      std::string differences;
+      for (const auto& d : build_differences(s.builds.back(), here)) {
+        differences += (differences.empty() ? "" : "; ") + d;
+      }
+      if (!options_.allow_other_build) {
+        throw InputError({state_file, 0, "builds"},
+                         "the run was drawn by a build that could decide differently (" +
+                             differences + ")",
+                         "resume with the planmill build that drew it, or add "
+                         "--allow-other-build to go on with this one (the run state then lists "
+                         "both builds)");
+      }
+      spdlog::warn("resuming with another build ({}); run-state.json lists both", differences);
+      s.builds.push_back(here);
     }
     // Every committed plan file must be there: the run's records so far are in them.
     for (const auto& f : s.files) {

@@ -301,5 +301,43 @@ TEST(RunIntegrity, ADeletedPlanFileIsReportedAsMissing) {
   says_missing(dir / "resume.log");
 }
 
+TEST(RunIntegrity, AResumeByAnotherBuildIsRefusedUnlessAllowed) {
+  const auto dir = scratch("build");
+  const auto job = blocks_job(dir);
+  const auto out = dir / "out";
+  ASSERT_EQ(run(1, job, out, kTwoBlocks, dir / "run.log"), 3) << text_of(dir / "run.log");
+  const RunState started = read_run_state(RunLayout{out});
+  ASSERT_EQ(started.builds.size(), 1U);
+  EXPECT_FALSE(started.builds[0].compiler.empty());
+  EXPECT_FALSE(started.builds[0].isa.empty());
+  EXPECT_FALSE(started.builds[0].hdf5.empty());
+  EXPECT_FALSE(started.builds[0].mpi.empty());
+  // As if another machine's compiler and instruction set had drawn the run so far.
+  edit_state(out, [](nlohmann::json& s) {
+    s["builds"][0]["compiler"] = "GCC 0.1";
+    s["builds"][0]["isa"] = s["builds"][0]["isa"].get<std::string>() + " avx-imagined";
+  });
+  EXPECT_EQ(run(1, job, out, "--resume " + kThreeBlocks, dir / "resume.log"), 2);
+  const std::string log = text_of(dir / "resume.log");
+  EXPECT_NE(log.find("run-state.json: 'builds': the run was drawn by a build that could decide differently"),
+            std::string::npos)
+      << log;
+  EXPECT_NE(log.find("compiler: '" + started.builds[0].compiler + "' here, 'GCC 0.1' in the run"), std::string::npos)
+      << log;
+  EXPECT_NE(log.find("instruction set: "), std::string::npos) << log;
+  EXPECT_EQ(log.find("MPI: "), std::string::npos) << "only what differs: " << log;
+  EXPECT_EQ(run(1, job, out, "--resume --allow-other-build " + kThreeBlocks, dir / "allowed.log"), 3)
+      << text_of(dir / "allowed.log");
+  const RunState resumed = read_run_state(RunLayout{out});
+  ASSERT_EQ(resumed.builds.size(), 2U);
+  EXPECT_EQ(resumed.builds[1], started.builds[0]);
+  EXPECT_EQ(resumed.chains[0].steps, 700U);
+  ASSERT_EQ(planmill("merge " + out.string(), dir / "merge.log"), 0) << text_of(dir / "merge.log");
+  EXPECT_EQ(nlohmann::json::parse(text_of(out / "manifest.json"))["builds"].size(), 2U);
+  // A run state from before builds were recorded resumes unchecked.
+  edit_state(out, [](nlohmann::json& s) { s.erase("builds"); });
+  EXPECT_EQ(run(1, job, out, "--resume --until-converged --max-steps 900", dir / "old.log"), 3) << text_of(dir / "old.log");
+}
+
 }  // namespace
 }  // namespace planmill

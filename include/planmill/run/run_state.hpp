@@ -17,6 +17,7 @@
 #include <string_view>
 #include <vector>
 
+#include "planmill/run/build_info.hpp"
 #include "planmill/store/ensemble.hpp"
 
 namespace planmill {
@@ -110,6 +111,10 @@ struct RunState {
   std::string job_path;  // absolute, as given on the command line of the latest start or resume
   std::string job_sha256;
   std::vector<InputFileEntry> inputs;
+  // Every build that drew this run's plans, in order: the one that started it, then any that a
+  // resume with --allow-other-build went on with. Empty in run states from before planmill
+  // recorded it.
+  std::vector<BuildInfo> builds;
   std::uint64_t seed = 0;
   std::uint64_t target_steps = 0;  // steps per chain the run aims at (burn-in included)
   std::uint64_t burn_in = 0;
