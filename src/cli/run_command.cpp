@@ -114,6 +114,9 @@ void add_run_command(CLI::App& app, Action& action) {
                 "passes (needs --max-steps)");
   sub->add_option("--max-steps", args->max_steps,
                   "with --until-converged: at most this many steps per chain (burn-in included)");
+  sub->add_flag("--allow-other-build", args->options.allow_other_build,
+                "with --resume: go on even when this planmill was built differently from the one "
+                "that drew the run (compiler, flags, instruction set, HDF5, MPI)");
   sub->add_flag("--quiet", args->quiet, "no progress reports, only warnings and errors");
   sub->add_option("--log-level", args->log_level, "trace, debug, info, warn, error or off")
       ->check(CLI::IsMember({"trace", "debug", "info", "warn", "error", "off"}));

@@ -168,6 +168,10 @@ CsvTable read_csv_file(const std::string& path) {
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec))
     throw InputError({path, 0, {}}, "is a folder, not a file", "give the path of the CSV file");
+  if (!std::filesystem::exists(path, ec)) {
+    throw InputError({path, 0, {}}, "is missing",
+                     "check the path (relative paths are taken from the job file's folder)");
+  }
   std::ifstream in(path, std::ios::binary);
   if (!in) {
     throw InputError({path, 0, {}}, std::string("cannot open the file: ") + std::strerror(errno),

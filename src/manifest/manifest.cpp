@@ -28,10 +28,10 @@ json sha256_now(const std::string& path) {
   }
 }
 
-// "matches", "changed" or "missing": a file hashed at run start against what is there now.
+// "matches", "differs" or "missing": a file hashed at run start against what is there now.
 std::string compare(const std::string& recorded, const json& now) {
   if (now.is_null()) return "missing";
-  return now.get<std::string>() == recorded ? "matches" : "changed";
+  return now.get<std::string>() == recorded ? "matches" : "differs";
 }
 
 json counters_json(const StoredCounters& c) {
@@ -109,16 +109,25 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   json inputs = json::array();
   std::size_t inputs_changed = 0;
   for (const auto& f : s.inputs) {
-    const json now = sha256_now(f.path);
+    // Relative paths from the job file of the run's latest start or resume.
+    const std::string resolved = resolve_input_path(s.job_path, f.path);
+    const json now = sha256_now(resolved);
     const std::string status = compare(f.sha256, now);
     inputs_changed += status != "matches";
     inputs.push_back({{"role", f.role},
                       {"path", f.path},
+                      {"checked", resolved},
                       {"sha256_at_start", f.sha256},
                       {"sha256_now", now},
                       {"status", status}});
   }
   m["inputs"] = inputs;
+  json builds = json::array();
+  for (const auto& b : s.builds) {
+    builds.push_back({{"compiler", b.compiler}, {"cxx_flags", b.cxx_flags}, {"isa", b.isa},
+                      {"hdf5", b.hdf5}, {"mpi", b.mpi}});
+  }
+  m["builds"] = builds;
   m["seed"] = s.seed;
   m["target_steps"] = s.target_steps;
   m["burn_in"] = s.burn_in;
@@ -220,6 +229,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"host", f.host},
          {"size_bytes", ec ? json(nullptr) : json(static_cast<std::uint64_t>(size))},
          {"sha256", sha256_now(path)},
+         {"committed_sha256", text_or_null(f.sha256)},
+         {"identity", reader.identity_of(f.file)},
          {"verify", damaged ? "damaged" : "ok"},
          {"chains", file_chains.count(f.file) ? file_chains[f.file] : json::array()},
          {"problems", file_problems.count(f.file) ? file_problems[f.file] : json::array()},

@@ -1,9 +1,11 @@
 #include "planmill/run/run_reader.hpp"
 
 #include <algorithm>
+#include <filesystem>
 #include <stdexcept>
 
 #include "planmill/base/error.hpp"
+#include "planmill/io/file_hash.hpp"
 #include "planmill/store/hdf5_handle.hpp"
 
 namespace planmill {
@@ -12,6 +14,11 @@ RunReader::RunReader(const std::string& run_dir)
     : layout_{run_dir}, state_(read_run_state(layout_)) {
   for (const auto& f : state_.files) {
     std::unique_ptr<EnsembleReader> reader;
+    if (!std::filesystem::exists(layout_.resolve(f.file))) {
+      unreadable_.emplace(f.file, "missing");  // said so, not as HDF5's error stack
+      files_.emplace(f.file, nullptr);
+      continue;
+    }
     try {
       reader = std::make_unique<EnsembleReader>(layout_.resolve(f.file).string());
     } catch (const StoreError& e) {
@@ -147,6 +154,26 @@ std::vector<double> RunReader::read_observables(std::uint64_t chain, std::uint64
   return out;
 }
 
+std::string RunReader::identity_of(const std::string& file) const {
+  if (!identities_) {
+    identities_.emplace();
+    for (const auto& f : state_.files) {
+      std::string status = "not recorded";
+      if (!f.sha256.empty()) {
+        try {
+          status = sha256_file_hex(layout_.resolve(f.file).string()) == f.sha256 ? "matches"
+                                                                                  : "differs";
+        } catch (const InputError&) {
+          status = "missing";
+        }
+      }
+      (*identities_)[f.file] = status;
+    }
+  }
+  const auto it = identities_->find(file);
+  return it == identities_->end() ? "not recorded" : it->second;
+}
+
 std::vector<ChainProblem> RunReader::verify() const { return verify_records(false); }
 std::vector<ChainProblem> RunReader::verify_rungs() const { return verify_records(true); }
 
@@ -162,10 +189,21 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
     for (std::uint64_t rung = rungs ? 1 : 0; rung < (rungs ? c.recorded_rungs : 1); ++rung) {
       for (const auto& s : spans_of(c.index)) {
         if (s.reader == nullptr) {
-          problems.push_back(
-              {c.index, s.first, s.first + s.records - 1,
-               s.file + ": " + rung_text(rung) + "cannot be opened: " + unreadable_.at(s.file),
-               rung});
+          const std::string& why = unreadable_.at(s.file);
+          problems.push_back({c.index, s.first, s.first + s.records - 1,
+                              s.file + ": " + rung_text(rung) +
+                                  (why == "missing" ? why : "cannot be opened: " + why),
+                              rung});
+          continue;
+        }
+        if (identity_of(s.file) == "differs") {
+          if (s.records == 0) continue;
+          problems.push_back({c.index, s.first, s.first + s.records - 1,
+                              s.file + ": " + rung_text(rung) +
+                                  "is not the file the run committed (its SHA-256 differs from "
+                                  "the one " + layout_.state_file().filename().string() +
+                                  " records)",
+                              rung});
           continue;
         }
         // A group the file lacks holds no records; an unreadable index is left to verify() below.
@@ -191,7 +229,7 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
   if (!file_checks_) {
     file_checks_.emplace();
     for (const auto& [name, reader] : files_) {
-      if (reader != nullptr) (*file_checks_)[name] = reader->verify();
+      if (reader != nullptr && identity_of(name) != "differs") (*file_checks_)[name] = reader->verify();
     }
   }
   for (const auto& [name, checks] : *file_checks_) {

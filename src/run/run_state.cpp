@@ -42,6 +42,13 @@ json to_json(const RunState& s) {
   for (const auto& f : s.inputs) {
     j["inputs"].push_back({{"role", f.role}, {"path", f.path}, {"sha256", f.sha256}});
   }
+  if (!s.builds.empty()) {
+    j["builds"] = json::array();
+    for (const auto& b : s.builds) {
+      j["builds"].push_back({{"compiler", b.compiler}, {"cxx_flags", b.cxx_flags}, {"isa", b.isa},
+                             {"hdf5", b.hdf5}, {"mpi", b.mpi}});
+    }
+  }
   j["seed"] = s.seed;
   j["target_steps"] = s.target_steps;
   j["burn_in"] = s.burn_in;
@@ -57,8 +64,9 @@ json to_json(const RunState& s) {
   }
   j["files"] = json::array();
   for (const auto& f : s.files) {
-    j["files"].push_back(
-        {{"file", f.file}, {"segment", f.segment}, {"rank", f.rank}, {"host", f.host}});
+    json entry = {{"file", f.file}, {"segment", f.segment}, {"rank", f.rank}, {"host", f.host}};
+    if (!f.sha256.empty()) entry["sha256"] = f.sha256;
+    j["files"].push_back(std::move(entry));
   }
   j["chains"] = json::array();
   for (const auto& c : s.chains) {
@@ -95,6 +103,13 @@ RunState from_json(const json& j) {
     s.inputs.push_back({f.at("role").get<std::string>(), f.at("path").get<std::string>(),
                         f.at("sha256").get<std::string>()});
   }
+  if (j.contains("builds")) {
+    for (const auto& b : j.at("builds")) {
+      s.builds.push_back({b.at("compiler").get<std::string>(), b.at("cxx_flags").get<std::string>(),
+                          b.at("isa").get<std::string>(), b.at("hdf5").get<std::string>(),
+                          b.at("mpi").get<std::string>()});
+    }
+  }
   s.seed = j.at("seed").get<std::uint64_t>();
   s.target_steps = j.at("target_steps").get<std::uint64_t>();
   s.burn_in = j.at("burn_in").get<std::uint64_t>();
@@ -110,7 +125,8 @@ RunState from_json(const json& j) {
   }
   for (const auto& f : j.at("files")) {
     s.files.push_back({f.at("file").get<std::string>(), f.at("segment").get<std::uint64_t>(),
-                       f.at("rank").get<int>(), f.at("host").get<std::string>()});
+                       f.at("rank").get<int>(), f.at("host").get<std::string>(),
+                       f.contains("sha256") ? f.at("sha256").get<std::string>() : std::string()});
   }
   for (const auto& c : j.at("chains")) {
     ChainEntry e;
@@ -142,6 +158,21 @@ RunState from_json(const json& j) {
 }
 
 }  // namespace
+
+std::string input_path_for_state(const std::string& job_file, const std::string& path) {
+  namespace fs = std::filesystem;
+  const fs::path file = fs::absolute(path).lexically_normal();
+  const fs::path base = fs::absolute(job_file).lexically_normal().parent_path();
+  const fs::path relative = file.lexically_relative(base);
+  return relative.empty() ? file.string() : relative.string();
+}
+
+std::string resolve_input_path(const std::string& job_file, const std::string& stored) {
+  namespace fs = std::filesystem;
+  const fs::path p(stored);
+  if (p.is_absolute()) return p.string();
+  return (fs::path(job_file).parent_path() / p).lexically_normal().string();
+}
 
 std::string RunLayout::plan_file_name(std::uint64_t segment, int rank) {
   char name[64];

@@ -20,12 +20,14 @@
 
 #include "planmill/base/error.hpp"
 #include "planmill/chain/chain.hpp"
+#include "planmill/chain/snapshot_check.hpp"
 #include "planmill/diagnose/stopping_rule.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/file_hash.hpp"
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/job/loaded_job.hpp"
+#include "planmill/run/build_info.hpp"
 #include "planmill/run/observables.hpp"
 #include "planmill/run/placement.hpp"
 #include "planmill/run/run_lock.hpp"
@@ -332,12 +334,21 @@ class ChainRunner {
   // The state of a run not yet begun: nothing is written until every chain is built.
   RunState new_state() {
     const JobSpec& job = loaded_->job;
-    if (fs::exists(layout_.state_file())) {
+    // A run that failed or was killed before its first checkpoint holds nothing that counts: a
+    // fresh run takes its folder over (once its own chains are built).
+    replace_empty_run_ = fs::exists(layout_.state_file()) && read_run_state(layout_).checkpoints == 0;
+    if (fs::exists(layout_.state_file()) && !replace_empty_run_) {
       throw InputError({layout_.state_file().string(), 0, ""}, "already holds a run",
                        "add --resume to continue it, or choose another folder with --output");
     }
     for (const auto& entry : fs::directory_iterator(layout_.root)) {
-      if (entry.path().filename() == RunLock::file_name()) continue;
+      const fs::path name = entry.path().filename();
+      if (name == RunLock::file_name()) continue;
+      if (replace_empty_run_ && (name == layout_.state_file().filename() ||
+                                 name == layout_.job_copy().filename() ||
+                                 name == layout_.plans_dir().filename())) {
+        continue;
+      }
       throw InputError({layout_.root.string(), 0, ""},
                        "is not empty (it holds " + entry.path().filename().string() +
                            ") and holds no run",
@@ -349,10 +360,12 @@ class ChainRunner {
     s.git_commit = kGitCommit;
     s.job_path = fs::absolute(options_.job_path).lexically_normal().string();
     s.job_sha256 = sha256_hex(job.text);
-    s.inputs.push_back({"job", s.job_path, s.job_sha256});
-    // Absolute, so that merge and resume find them from any folder.
+    s.inputs.push_back({"job", input_path_for_state(s.job_path, s.job_path), s.job_sha256});
+    s.builds.push_back(this_build());
+    // By content and by the path the job names (relative to the job file): a resume checks the
+    // files the job it is given names, wherever the run folder and its inputs are now.
     const auto input = [&](const char* role, const std::string& path) {
-      s.inputs.push_back({role, fs::absolute(path).lexically_normal().string(), sha256_file_hex(path)});
+      s.inputs.push_back({role, input_path_for_state(s.job_path, path), sha256_file_hex(path)});
     };
     input("units", job.map.units_path);
     input("adjacency", job.map.adjacency_path);
@@ -381,12 +394,84 @@ class ChainRunner {
                            layout_.job_copy().string() + ")",
                        "resume with the same job file, or start a new run with --output");
     }
-    for (const auto& input : s.inputs) {
-      if (input.role == "job") continue;
-      if (!fs::exists(input.path) || sha256_file_hex(input.path) != input.sha256) {
-        throw InputError({input.path, 0, ""},
-                         "has changed since the run started (its SHA-256 differs)",
-                         "restore the " + input.role + " file the run started with");
+    // The files the job given now names, each against the content the run started with (the
+    // paths recorded are only where they were; a run state from before relative paths holds
+    // absolute ones, and is checked the same way).
+    const JobSpec& job = loaded_->job;
+    const std::string job_file = fs::absolute(options_.job_path).lexically_normal().string();
+    std::vector<std::pair<std::string, std::string>> named = {{"units", job.map.units_path},
+                                                              {"adjacency", job.map.adjacency_path}};
+    if (loaded_->start) named.emplace_back("start plan", job.start);
+    for (const auto& [role, path] : named) {
+      const auto recorded = std::find_if(s.inputs.begin(), s.inputs.end(),
+                                         [&](const InputFileEntry& e) { return e.role == role; });
+      if (recorded == s.inputs.end()) {
+        throw InputError({layout_.state_file().string(), 0, "inputs"},
+                         "records no " + role + " file, but the job names " + path,
+                         "resume with the job the run started with");
+      }
+      if (!fs::exists(path)) {
+        throw InputError({path, 0, ""}, "is missing",
+                         "restore the " + role + " file the run started with");
+      }
+      if (sha256_file_hex(path) != recorded->sha256) {
+        throw InputError({path, 0, ""}, "has changed since the run started (SHA-256 differs)",
+                         "restore the " + role + " file the run started with, or start a new "
+                         "run with --output");
+      }
+      recorded->path = input_path_for_state(job_file, path);
+    }
+    for (auto& input : s.inputs) {
+      if (input.role == "job") input.path = input_path_for_state(job_file, job_file);
+    }
+    s.job_path = job_file;
+    // Each chain goes on from its snapshot; one that has stepped cannot start again from nothing.
+    const std::string state_file = layout_.state_file().string();
+    for (const auto& c : s.chains) {
+      const std::string which = "chain " + std::to_string(c.index);
+      if (c.snapshot.empty()) {
+        if (c.steps == 0) continue;
+        throw InputError({state_file, 0, "chains"},
+                         which + " has taken " + std::to_string(c.steps) +
+                             " steps but holds no snapshot to go on from",
+                         "restore run-state.json from a backup, or start a new run with --output");
+      }
+      try {
+        if (tempered()) {
+          check_ladder_snapshot(c.snapshot, loaded_->graph, job.districts);
+        } else {
+          check_chain_snapshot(c.snapshot, loaded_->graph, job.districts);
+        }
+      } catch (const std::invalid_argument& e) {
+        throw InputError({state_file, 0, "chains"}, which + ": " + e.what(),
+                         "restore run-state.json from a backup, or start a new run with --output");
+      }
+    }
+    // Another build may step the same snapshot to other plans: refuse it unless the user accepts
+    // that, and then list it (a state from before builds were recorded is not checked).
+    const BuildInfo here = this_build();
+    if (!s.builds.empty() && !(s.builds.back() == here)) {
+      std::string differences;
+      for (const auto& d : build_differences(s.builds.back(), here)) {
+        differences += (differences.empty() ? "" : "; ") + d;
+      }
+      if (!options_.allow_other_build) {
+        throw InputError({state_file, 0, "builds"},
+                         "the run was drawn by a build that could decide differently (" +
+                             differences + ")",
+                         "resume with the planmill build that drew it, or add "
+                         "--allow-other-build to go on with this one (the run state then lists "
+                         "both builds)");
+      }
+      spdlog::warn("resuming with another build ({}); run-state.json lists both", differences);
+      s.builds.push_back(here);
+    }
+    // Every committed plan file must be there: the run's records so far are in them.
+    for (const auto& f : s.files) {
+      if (!fs::exists(layout_.resolve(f.file))) {
+        throw InputError({layout_.resolve(f.file).string(), 0, ""}, "missing",
+                         "the run state lists it; restore it from a backup, or start a new run "
+                         "with --output");
       }
     }
     remove_unlisted_plan_files(layout_, s);
@@ -399,6 +484,11 @@ class ChainRunner {
     std::string encoded;
     on_root_then_agree(w_, [&] {
       if (fresh_) {
+        if (replace_empty_run_) {
+          spdlog::info("{} held a run that never reached a checkpoint; starting anew there",
+                       layout_.root.string());
+          fs::remove_all(layout_.plans_dir());
+        }
         fs::create_directories(layout_.plans_dir());
         write_file_atomically(layout_.job_copy().string(), loaded_->job.text);
       }
@@ -697,7 +787,8 @@ class ChainRunner {
         }
         writer_->close();  // writes the file in one piece, fsynced
         writer_.reset();
-        part.files.push_back({writer_file_, segment_, w_.rank, host_});
+        part.files.push_back({writer_file_, segment_, w_.rank, host_,
+                              sha256_file_hex(layout_.resolve(writer_file_).string())});
       }
       const std::string now = utc_now_iso8601();
       for (std::size_t k = 0; k < chains_.size(); ++k) {
@@ -943,6 +1034,7 @@ class ChainRunner {
   World w_;
   std::unique_ptr<RunLock> lock_;  // rank 0: held for the whole run
   bool fresh_ = false;             // rank 0: a new run, its folder not yet written
+  bool replace_empty_run_ = false;  // rank 0: the folder holds a run that never checkpointed
   std::string host_;
   std::unique_ptr<LoadedJob> loaded_;
   RuleSet rules_;

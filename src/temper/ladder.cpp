@@ -1,5 +1,7 @@
 #include "planmill/temper/ladder.hpp"
 
+#include "planmill/chain/snapshot_check.hpp"
+
 #include <algorithm>
 #include <bit>
 #include <cmath>
@@ -362,6 +364,19 @@ std::string Ladder::combine_snapshots(std::span<const std::string> parts) {
   out << shared;
   write_replicas(out, all);
   return out.str();
+}
+
+void check_ladder_snapshot(std::string_view snapshot, const GraphHandle& graph,
+                           std::size_t district_count) {
+  std::vector<std::pair<std::size_t, std::string>> replicas;
+  (void)split_snapshot(snapshot, replicas);
+  for (const auto& [i, text] : replicas) {
+    try {
+      check_chain_snapshot(text, graph, district_count);
+    } catch (const std::invalid_argument& e) {
+      throw std::invalid_argument("replica " + std::to_string(i) + ": " + e.what());
+    }
+  }
 }
 
 void Ladder::restore(std::string_view snapshot) {

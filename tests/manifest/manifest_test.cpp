@@ -80,7 +80,7 @@ TEST(Manifest, DescribesEveryChainPlanFileAndInputOfTheRun) {
   ASSERT_EQ(m["inputs"].size(), 3U);
   EXPECT_EQ(m["inputs"][0]["status"], "matches");
   EXPECT_EQ(m["inputs"][0]["sha256_now"], m["inputs"][0]["sha256_at_start"]);
-  EXPECT_EQ(m["inputs"][1]["status"], "changed");
+  EXPECT_EQ(m["inputs"][1]["status"], "differs");
   EXPECT_NE(m["inputs"][1]["sha256_now"], m["inputs"][1]["sha256_at_start"]);
   EXPECT_EQ(m["inputs"][2]["status"], "missing");
   EXPECT_TRUE(m["inputs"][2]["sha256_now"].is_null());

@@ -52,8 +52,15 @@ class RunReader {
   // Checksums and consistency of every listed file, with record ranges counted per chain across
   // files; empty = all good. verify() covers the chains (the ensemble); verify_rungs() the hotter
   // rungs' records, with ChainProblem::chain_index the chain and `what` naming the rung.
+  // A listed file whose SHA-256 differs from the one the run state recorded when it was committed
+  // is not the run's file (another plan file put in its place): every span in it is reported as
+  // such, and its own checks are not consulted.
   [[nodiscard]] std::vector<ChainProblem> verify() const;
   [[nodiscard]] std::vector<ChainProblem> verify_rungs() const;
+  // A listed file against the SHA-256 the run state recorded for it: "matches", "differs",
+  // "missing", or "not recorded" (a run state from before planmill recorded it). Hashes each
+  // file once.
+  [[nodiscard]] std::string identity_of(const std::string& file) const;
 
  private:
   struct Span {
@@ -75,6 +82,7 @@ class RunReader {
   std::map<std::string, std::string> unreadable_;  // file -> why it could not be opened
   // Each opened file's own check, done once for verify() and verify_rungs() together.
   mutable std::optional<std::map<std::string, std::vector<ChainProblem>>> file_checks_;
+  mutable std::optional<std::map<std::string, std::string>> identities_;  // file -> identity_of
 };
 
 }  // namespace planmill

@@ -17,6 +17,7 @@
 #include <string_view>
 #include <vector>
 
+#include "planmill/run/build_info.hpp"
 #include "planmill/store/ensemble.hpp"
 
 namespace planmill {
@@ -71,6 +72,11 @@ struct PlanFileEntry {
   std::uint64_t segment = 0;
   int rank = 0;
   std::string host;
+  // SHA-256 of the file as committed (closed and flushed before the checkpoint that lists it):
+  // a file put in its place, even a valid plan file of the same rank, does not match. Empty in
+  // run states written before planmill recorded it; such files are checked by their own checksums
+  // only.
+  std::string sha256;
 };
 
 // One start or resume of the run.
@@ -81,19 +87,34 @@ struct RunSession {
   std::string how_ended;           // "finished", "checkpointed on signal", "converged", ...
 };
 
+// An input is known by its content (SHA-256) and by the path the job names, relative to the job
+// file's folder, so a run folder moved or copied together with its inputs finds them again from
+// the job file given at resume, and a changed file is refused wherever the folder is. Run states
+// written before planmill did so hold absolute paths; those are used as they are.
 struct InputFileEntry {
   std::string role;  // "job", "units", "adjacency", "start plan"
-  std::string path;  // as resolved when the run started
+  std::string path;  // relative to the job file's folder (absolute in old run states)
   std::string sha256;
 };
+
+// `path` (a file the job names) as stored in the state: relative to the folder of `job_file`
+// when it can be, else absolute.
+[[nodiscard]] std::string input_path_for_state(const std::string& job_file, const std::string& path);
+// A stored input path as a file to open: an absolute one as it is, a relative one from the folder
+// of `job_file`.
+[[nodiscard]] std::string resolve_input_path(const std::string& job_file, const std::string& stored);
 
 struct RunState {
   std::int64_t format_version = kRunStateFormatVersion;
   std::string run_id;
   std::string planmill_version, git_commit;
-  std::string job_path;  // as given on the command line
+  std::string job_path;  // absolute, as given on the command line of the latest start or resume
   std::string job_sha256;
   std::vector<InputFileEntry> inputs;
+  // Every build that drew this run's plans, in order: the one that started it, then any that a
+  // resume with --allow-other-build went on with. Empty in run states from before planmill
+  // recorded it.
+  std::vector<BuildInfo> builds;
   std::uint64_t seed = 0;
   std::uint64_t target_steps = 0;  // steps per chain the run aims at (burn-in included)
   std::uint64_t burn_in = 0;

@@ -19,6 +19,7 @@ struct RunOptions {
   double progress_seconds = 5.0;
   bool until_converged = false;  // run in blocks of the job's steps until the verdict passes
   std::uint64_t max_steps = 0;   // with until_converged: the most steps per chain (burn-in included)
+  bool allow_other_build = false;  // resume even when this build differs from the run's (BuildInfo)
 };
 
 enum class RunEnd {
