@@ -635,8 +635,13 @@ class ChainRunner {
     writer_.reset();  // its records were never committed
     if (w_.root()) {
       if (bar_shown_) std::fprintf(stderr, "\n");
-      spdlog::warn("stopped without a checkpoint; the run in {} keeps its last checkpoint",
-                   layout_.root.string());
+      if (state_.checkpoints == 0) {
+        spdlog::warn("stopped before the first checkpoint: {} holds nothing that counts, and a "
+                     "fresh run may use it", layout_.root.string());
+      } else {
+        spdlog::warn("stopped; the run in {} keeps its last checkpoint ({} of them)",
+                     layout_.root.string(), state_.checkpoints);
+      }
     }
     if (!step_error_) throw RunFailedElsewhere{worst};
     try {
