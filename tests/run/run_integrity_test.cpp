@@ -68,7 +68,7 @@ TEST(RunIntegrity, APlanFileReplacedByAnotherOfTheSameRankIsNotTheRunsFile) {
   const RunState state = read_run_state(RunLayout{out});
   ASSERT_EQ(state.files.size(), 3U);
   for (const auto& f : state.files) EXPECT_EQ(f.sha256.size(), 64U) << f.file;
-  const std::string diagnose = "diagnose " + out.string() + " --rhat-max 100 --ess-min 1";
+  const std::string diagnose = "diagnose " + out.string() + " --rhat-max 100 --ess-min 1 --min-records 8";
   const std::string exports = "export " + out.string() + " --out " + (dir / "csv").string();
   ASSERT_EQ(planmill("merge " + out.string(), dir / "merge0.log"), 0) << text_of(dir / "merge0.log");
   ASSERT_EQ(planmill(diagnose, dir / "diagnose0.log"), 0) << text_of(dir / "diagnose0.log");
