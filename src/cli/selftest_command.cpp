@@ -9,7 +9,7 @@
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/job/kernel_settings.hpp"
-#include "planmill/rules/rules.hpp"
+#include "planmill/job/job_rules.hpp"
 #include "planmill/selftest/selftest.hpp"
 
 namespace planmill::cli {

@@ -14,7 +14,7 @@
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/csv.hpp"
 #include "planmill/io/file_hash.hpp"
-#include "planmill/io/plan_csv.hpp"
+#include "planmill/seed/plan_csv.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/plan/plan.hpp"
 #include "planmill/store/hdf5_handle.hpp"

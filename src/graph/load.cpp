@@ -5,10 +5,10 @@
 #include <cstdio>
 #include <unordered_map>
 
-#include "io/fields.hpp"
+#include "planmill/io/fields.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/io/csv.hpp"
-#include "planmill/io/map_csv.hpp"
+#include "planmill/graph/map_csv.hpp"
 
 namespace planmill {
 namespace {

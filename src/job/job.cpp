@@ -316,15 +316,6 @@ void read_tempering(Section& top, JobSpec& job) {
 
 }  // namespace
 
-const char* kernel_name(KernelKind kind) noexcept {
-  switch (kind) {
-    case KernelKind::recombination: return "recombination";
-    case KernelKind::merge_split: return "merge-split";
-    case KernelKind::flip: return "flip";
-  }
-  return "?";
-}
-
 JobSpec parse_job_text(std::string_view text, const std::string& source) {
   JobSpec job;
   job.path = source;

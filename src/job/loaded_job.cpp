@@ -1,8 +1,8 @@
 #include "planmill/job/loaded_job.hpp"
 
 #include "planmill/graph/feasibility.hpp"
-#include "planmill/io/plan_csv.hpp"
-#include "planmill/rules/rules.hpp"
+#include "planmill/job/job_rules.hpp"
+#include "planmill/seed/plan_csv.hpp"
 #include "planmill/seed/seed_plan.hpp"
 
 namespace planmill {

@@ -25,6 +25,7 @@
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/file_hash.hpp"
+#include "planmill/job/job_rules.hpp"
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/run/build_info.hpp"

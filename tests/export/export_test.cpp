@@ -14,7 +14,7 @@
 #include "planmill/graph/load.hpp"
 #include "planmill/io/csv.hpp"
 #include "planmill/io/file_hash.hpp"
-#include "planmill/io/plan_csv.hpp"
+#include "planmill/seed/plan_csv.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/plan/plan.hpp"
 

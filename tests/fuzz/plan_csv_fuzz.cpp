@@ -4,7 +4,7 @@
 
 #include "fuzz_support.hpp"
 #include "planmill/graph/unit_graph.hpp"
-#include "planmill/io/plan_csv.hpp"
+#include "planmill/seed/plan_csv.hpp"
 
 using namespace planmill;
 

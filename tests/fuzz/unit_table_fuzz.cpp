@@ -6,7 +6,7 @@
 
 #include "fuzz_support.hpp"
 #include "planmill/io/csv.hpp"
-#include "planmill/io/map_csv.hpp"
+#include "planmill/graph/map_csv.hpp"
 
 using namespace planmill;
 

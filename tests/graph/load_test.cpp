@@ -5,7 +5,7 @@
 #include <gtest/gtest.h>
 
 #include "../io/temp_files.hpp"
-#include "planmill/io/map_csv.hpp"
+#include "planmill/graph/map_csv.hpp"
 
 namespace planmill {
 namespace {

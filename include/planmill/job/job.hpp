@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "planmill/graph/map_spec.hpp"
+#include "planmill/moves/kernel_kind.hpp"
 
 namespace planmill {
 
@@ -23,8 +24,6 @@ struct RulesSpec {
   double county_splits_weight = 0.0;
   std::vector<GroupShareSpec> group_share;
 };
-
-enum class KernelKind { recombination, merge_split, flip };
 
 struct SamplerSpec {
   KernelKind kernel = KernelKind::recombination;
@@ -81,7 +80,5 @@ struct JobSpec {
 [[nodiscard]] JobSpec parse_job_text(std::string_view text, const std::string& source);
 // Reads and parses a job file.
 [[nodiscard]] JobSpec load_job(const std::string& path);
-
-[[nodiscard]] const char* kernel_name(KernelKind kind) noexcept;
 
 }  // namespace planmill

@@ -13,7 +13,7 @@
 #include <memory>
 
 #include "planmill/base/random.hpp"
-#include "planmill/job/job.hpp"
+#include "planmill/moves/kernel_kind.hpp"
 #include "planmill/plan/plan.hpp"
 #include "planmill/rules/rules.hpp"
 

@@ -1,6 +1,6 @@
 #pragma once
 // Plan: the district of every unit, with district tallies (population, every count column, area,
-// perimeter) and the cut-edge count kept up to date as units move. No I/O here (see io/plan_csv).
+// perimeter) and the cut-edge count kept up to date as units move. No I/O here (plan files: seed/plan_csv).
 // It also keeps a bounded list of the units moved since clear_changes() (changes()).
 #include <cstdint>
 #include <span>

@@ -18,8 +18,6 @@
 
 namespace planmill {
 
-struct RulesSpec;  // job/job.hpp
-
 // Soft reward: the energy falls by `weight` for each district whose share of group `column`
 // (count / district population) is at least `threshold`.
 struct GroupShareTerm {
@@ -35,11 +33,6 @@ struct RuleSet {
   double county_splits_weight = 0.0;              // soft
   std::vector<GroupShareTerm> group_share;        // soft
 };
-
-// The job file's rules resolved against a map: group names become count columns. Throws
-// InputError (keyed "rules.<key>", file `job_file`) when a rule needs data the map lacks.
-[[nodiscard]] RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph,
-                                    const std::string& job_file = {});
 
 // Integer population bounds of a district: [ceil((1-eps) ideal), floor((1+eps) ideal)] with
 // ideal = total / k. Products within 1e-9 (relative) of an integer count as that integer, so

@@ -1,11 +1,11 @@
 // Plan files: a written plan reads back equal, and each kind of bad plan file is an InputError
 // naming the file, line and column.
-#include "planmill/io/plan_csv.hpp"
+#include "planmill/seed/plan_csv.hpp"
 
 #include <gtest/gtest.h>
 
 #include "planmill/graph/unit_graph.hpp"
-#include "temp_files.hpp"
+#include "../io/temp_files.hpp"
 
 namespace planmill {
 namespace {

@@ -1,9 +1,9 @@
-#include "planmill/io/plan_csv.hpp"
+#include "planmill/seed/plan_csv.hpp"
 
 #include <cmath>
 #include <vector>
 
-#include "io/fields.hpp"
+#include "planmill/io/fields.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/csv.hpp"
