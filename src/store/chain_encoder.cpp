@@ -12,7 +12,9 @@
 
 #include "planmill/store/plan_codec.hpp"
 #include "store/delta_record.hpp"
+#include "store/graph_model.hpp"
 #include "store/graph_record.hpp"
+#include "store/range_coder.hpp"
 
 namespace planmill {
 namespace {
@@ -48,9 +50,11 @@ ChainEncoder::ChainEncoder(std::size_t unit_count, std::size_t district_count,
 
 void ChainEncoder::encode_graph(std::span<const DistrictIndex> plan,
                                 std::vector<std::uint8_t>& out) {
-  codec::encode_graph_record(
-      plan.first(n_), k_, lower_,
-      codec::GraphBuffers{probabilities_, tree_, position_, candidate_, candidate_count_}, out);
+  codec::RangeEncoder io(out);
+  codec::GraphModel model{n_,    k_,        lower_,    probabilities_,
+                          tree_, position_, candidate_, candidate_count_};
+  (void)model.run<true>(io, plan);
+  io.finish();
 }
 
 void ChainEncoder::take_whole(std::span<const DistrictIndex> plan) {
