@@ -5,6 +5,12 @@
 // bit-reversed order (decimation in frequency); inverse() takes a spectrum in bit-reversed order
 // and leaves points in natural order (decimation in time). Pointwise products of spectra do not
 // care about the order; for pairing bin k with bin n - k see mirror_bin().
+// Why our own and not a library: no FFT library is installed beyond Eigen's unsupported FFT
+// module (kissfft backend; no FFTW headers or package here). Timed against it on this machine
+// (forward + inverse, complex double, g++ -O2; ours includes a rescaling pass): 2^14 points
+// 0.87 vs 0.97 ms, 2^17 6.7 vs 16.2 ms, 2^20 71 vs 326 ms. Eigen's FFT also works on
+// std::complex arrays in natural order, so ess.cpp would need interleaving copies and a
+// bit-reversal per transform, which its bit-reversed spectra avoid.
 #include <cstddef>
 #include <vector>
 
