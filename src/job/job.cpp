@@ -341,6 +341,14 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
   job.districts = static_cast<std::size_t>(d.integer("count", 0, 2, 65'534, true));
   const std::string start = d.string("start", "random");
   job.start = start == "random" ? start : resolve(base, start);
+  const std::string starts = d.string("starts", start == "random" ? "random" : "mixed");
+  if (starts == "mixed") job.starts = ChainStarts::mixed;
+  else if (starts == "given") job.starts = ChainStarts::given;
+  else if (starts == "random") job.starts = ChainStarts::random;
+  else d.fail("starts", "unknown value '" + starts + "'", "use \"mixed\", \"given\" or \"random\"");
+  if (start == "random" && job.starts != ChainStarts::random)
+    d.fail("starts", "is \"" + starts + "\" but districts.start gives no plan",
+           "name a plan CSV in districts.start, or leave districts.starts out");
   d.reject_unknown();
 
   read_rules(top, job);

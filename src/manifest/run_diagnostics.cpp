@@ -46,7 +46,7 @@ std::string shared_start_plan(const RunReader& reader) {
   s << in.rdbuf();
   try {
     const JobSpec job = parse_job_text(s.str(), path.string());
-    return job.start == "random" ? std::string() : job.start;
+    return job.start == "random" || job.starts != ChainStarts::given ? std::string() : job.start;
   } catch (const std::exception&) {
     return {};
   }
@@ -57,7 +57,8 @@ std::string shared_start_plan(const RunReader& reader) {
 std::string shared_start_note(const std::string& start_plan) {
   return "every chain started from the same given plan (" + start_plan +
          "): R-hat compares chains, so it cannot see chains that all stayed near that plan; "
-         "confirm the verdict with a run from random seed plans (districts.start = \"random\")";
+         "confirm the verdict with a run whose other chains start from random seed plans "
+         "(districts.starts = \"mixed\", the default, or \"random\")";
 }
 
 RunDiagnostics diagnose_traces(const std::vector<std::string>& observable_names,

@@ -308,9 +308,9 @@ class ChainRunner {
     row_.assign(names_.size(), 0.0);
     if (w_.root()) {
       for (const auto& warning : loaded_->report.warnings) spdlog::warn("{}", warning);
-      if (loaded_->start && state_.chains.size() > 1) {
+      if (loaded_->start && loaded_->job.starts == ChainStarts::given && state_.chains.size() > 1) {
         spdlog::warn("every chain starts from {}: R-hat cannot see chains that all stay near one "
-                     "plan; confirm a verdict with a run from random seed plans",
+                     "plan; confirm a verdict with districts.starts = \"mixed\" or \"random\"",
                      loaded_->job.start);
       }
       const std::size_t units = state_.chains.size() * rungs();
@@ -547,7 +547,9 @@ class ChainRunner {
   }
 
   Plan start_plan(std::uint64_t chain_index) {
-    if (loaded_->start) return *loaded_->start;
+    const ChainStarts starts = loaded_->job.starts;
+    if (loaded_->start && (starts == ChainStarts::given || (starts == ChainStarts::mixed && chain_index == 0)))
+      return *loaded_->start;
     Rng rng = make_stream(state_.seed, kSeedPlanStreamBase + chain_index);
     return random_seed_plan(loaded_->graph, loaded_->job.districts, rules_, rng);
   }

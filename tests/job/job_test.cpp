@@ -132,6 +132,10 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"whole float", "count = 20", "count = 2e1", "'districts.count': must be a whole number written as an integer"},
         BadJob{"whole float names digits", "chains = 8", "chains = 8.0", "write 8 (digit groups"},
         BadJob{"huge float", "chains = 8", "chains = 1e19", "'sampler.chains': must be a whole number"},
+        BadJob{"starts without a start plan", "count = 20", "count = 20\nstarts = \"mixed\"",
+               "'districts.starts': is \"mixed\" but districts.start gives no plan"},
+        BadJob{"unknown starts", "count = 20", "count = 20\nstart = \"plan.csv\"\nstarts = \"spread\"",
+               "'districts.starts': unknown value 'spread'"},
         BadJob{"tempering needs hottest_beta", "[verdict]", "[tempering]\nrungs = 4\n[verdict]",
                "'tempering.hottest_beta': required key is missing"}),
     [](const auto& info) {
@@ -140,6 +144,17 @@ INSTANTIATE_TEST_SUITE_P(
         if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
       return name;
     });
+
+// With a start plan, chain 0 starts there and the others from random seed plans unless the job
+// says otherwise; without one every chain starts from a random seed plan.
+TEST(JobFile, ChainStartsDefaultToMixedWithAStartPlan) {
+  std::string text = kGood;
+  EXPECT_EQ(parse_job_text(text, "job.toml").starts, ChainStarts::random);
+  text.replace(text.find("count = 20"), 10, "count = 20\nstart = \"plan.csv\"");
+  EXPECT_EQ(parse_job_text(text, "job.toml").starts, ChainStarts::mixed);
+  text.replace(text.find("start = \"plan.csv\""), 18, "start = \"plan.csv\"\nstarts = \"given\"");
+  EXPECT_EQ(parse_job_text(text, "job.toml").starts, ChainStarts::given);
+}
 
 TEST(JobFile, MissingAndEmptyFilesAreNamed) {
   EXPECT_THROW((void)load_job("does/not/exist.toml"), InputError);

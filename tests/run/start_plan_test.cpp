@@ -34,15 +34,17 @@ int run(int ranks, const fs::path& job, const fs::path& out, const fs::path& log
                " run " + job.string() + " --output " + out.string() + " --quiet >" + log.string() + " 2>&1");
 }
 
-// The job's [sampler] body replaced and districts.start pointing at `plan`.
-void rewrite_job(const fs::path& job, const std::string& sampler, const fs::path& plan) {
+// The job's [sampler] body replaced, districts.start pointing at `plan` and districts.starts set
+// to `starts` (left out when empty).
+void rewrite_job(const fs::path& job, const std::string& sampler, const fs::path& plan,
+                 const std::string& starts = "given") {
   std::string text = read_text(job);
   text = text.substr(0, text.find("[sampler]"));
   const std::string count_line = "count = 4\n";
   const auto at = text.find(count_line);
   ASSERT_NE(at, std::string::npos);
-  const std::string start_line = "start = \"" + plan.string() + "\"\n";
-  if (text.find(start_line) == std::string::npos) text.insert(at + count_line.size(), start_line);
+  text = text.substr(0, at + count_line.size()) + "start = \"" + plan.string() + "\"\n" +
+         (starts.empty() ? "" : "starts = \"" + starts + "\"\n") + text.substr(text.find("[rules]"));
   std::ofstream(job, std::ios::trunc) << text << "[sampler]\n" << sampler << "\n";
 }
 
@@ -95,22 +97,39 @@ TEST_F(StartPlan, EveryKernelRunsFromAnExportedPlanOnOneAndTwoRanks) {
   }
 }
 
-// A flip step moves at most one unit, so the first record of every chain is the given plan or one
-// unit away from it: the chains did start there, not from a random seed plan.
-TEST_F(StartPlan, ChainsStartFromTheGivenPlan) {
-  rewrite_job(job_, "kernel = \"flip\"\nchains = 2\nsteps = 5\nseed = 4\n", plan_);
-  ASSERT_EQ(run(2, job_, dir_ / "flip", dir_ / "flip.log"), 0) << read_text(dir_ / "flip.log");
-  const std::vector<DistrictIndex> given = labels_in_file(plan_, job_.parent_path() / "units.csv");
+// A flip step moves at most one unit, so a chain whose first record is the given plan or one unit
+// away from it started there; one far from it started from a random seed plan.
+void expect_starts(const fs::path& job, const fs::path& plan, const fs::path& run_dir,
+                   const std::vector<bool>& from_given) {
+  const std::vector<DistrictIndex> given = labels_in_file(plan, job.parent_path() / "units.csv");
   ASSERT_EQ(given.size(), 200U);
-  RunReader reader((dir_ / "flip").string());
-  for (std::uint64_t chain = 0; chain < 2; ++chain) {
+  RunReader reader(run_dir.string());
+  for (std::uint64_t chain = 0; chain < from_given.size(); ++chain) {
     std::size_t differing = 999;
     reader.for_each_plan(chain, 0, 0, [&](std::uint64_t, std::span<const DistrictIndex> labels) {
       differing = 0;
       for (std::size_t u = 0; u < labels.size(); ++u) differing += labels[u] != given[u] ? 1 : 0;
     });
-    EXPECT_LE(differing, 1U) << "chain " << chain;
+    if (from_given[chain]) {
+      EXPECT_LE(differing, 1U) << "chain " << chain << " should start from the given plan";
+    } else {
+      EXPECT_GT(differing, 10U) << "chain " << chain << " should start from a random seed plan";
+    }
   }
+}
+
+TEST_F(StartPlan, ChainsStartFromTheGivenPlanOrFromRandomSeedPlansAsTheJobSays) {
+  const std::string sampler = "kernel = \"flip\"\nchains = 3\nsteps = 5\nseed = 4\n";
+  rewrite_job(job_, sampler, plan_, "given");
+  ASSERT_EQ(run(2, job_, dir_ / "given", dir_ / "given.log"), 0) << read_text(dir_ / "given.log");
+  expect_starts(job_, plan_, dir_ / "given", {true, true, true});
+  rewrite_job(job_, sampler, plan_, "");  // the default: "mixed"
+  ASSERT_EQ(run(2, job_, dir_ / "mixed", dir_ / "mixed.log"), 0) << read_text(dir_ / "mixed.log");
+  expect_starts(job_, plan_, dir_ / "mixed", {true, false, false});
+  EXPECT_EQ(read_text(dir_ / "mixed.log").find("every chain starts from"), std::string::npos);
+  rewrite_job(job_, sampler, plan_, "random");
+  ASSERT_EQ(run(2, job_, dir_ / "random", dir_ / "random.log"), 0) << read_text(dir_ / "random.log");
+  expect_starts(job_, plan_, dir_ / "random", {false, false, false});
 }
 
 // R-hat compares chains, so chains that all began at one plan can agree while none left it: the
@@ -127,6 +146,9 @@ TEST_F(StartPlan, DiagnoseCautionsWhenEveryChainStartedFromOnePlan) {
   ASSERT_EQ(run(1, job_, dir_ / "given", dir_ / "given.log"), 0) << read_text(dir_ / "given.log");
   EXPECT_NE(read_text(dir_ / "given.log").find("every chain starts from"), std::string::npos);
   EXPECT_NE(diagnose(dir_ / "given").find(caution), std::string::npos);
+  rewrite_job(job_, "kernel = \"recombination\"\nchains = 2\nsteps = 20\nseed = 4\n", plan_, "mixed");
+  ASSERT_EQ(run(1, job_, dir_ / "mixed", dir_ / "mixed.log"), 0) << read_text(dir_ / "mixed.log");
+  EXPECT_EQ(diagnose(dir_ / "mixed").find(caution), std::string::npos);
 }
 
 }  // namespace

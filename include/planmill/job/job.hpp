@@ -63,12 +63,20 @@ struct VerdictSpec {
   std::uint64_t min_records = 200;  // records per chain before a verdict can count
 };
 
+// Where each chain starts when the job gives a start plan (docs/jobs.md, "Starting plans").
+enum class ChainStarts {
+  mixed,   // chain 0 from the given plan, every other chain from its own random seed plan
+  given,   // every chain from the given plan: R-hat cannot see chains that all stay near it
+  random,  // every chain from its own random seed plan
+};
+
 struct JobSpec {
   std::string path;  // the job file as given
   std::string text;  // its full text, stored with every run
   MapSpec map;
   std::size_t districts = 0;
   std::string start = "random";  // or a resolved plan CSV path
+  ChainStarts starts = ChainStarts::mixed;  // with a start plan; without one, every chain is random
   RulesSpec rules;
   SamplerSpec sampler;
   TemperingSpec tempering;
