@@ -48,6 +48,8 @@ void expect_intact(const fs::path& out) {
 // The run folder is on a 3 MiB file system; once two checkpoints are in, the disk is filled, so
 // the next commit cannot write its plan files.
 TEST(RunFailure, AFullDiskEndsEveryRankWithExit5AndTheRunResumesOnceThereIsRoom) {
+  test::SmallDisk::release_leftover(
+      std::filesystem::temp_directory_path() / "planmill-failure-test-disk" / "disk");
   const auto dir = scratch("disk");
   test::SmallDisk disk(dir / "disk", 3 << 20);
   if (!disk.available()) GTEST_SKIP() << "cannot mount a tmpfs here (needs root)";

@@ -25,6 +25,11 @@ class SmallDisk {
   SmallDisk(const SmallDisk&) = delete;
   SmallDisk& operator=(const SmallDisk&) = delete;
 
+  // Unmounts what a test killed before its end left mounted at `folder`.
+  static void release_leftover(const std::filesystem::path& folder) {
+    (void)::umount2(folder.c_str(), MNT_DETACH);
+  }
+
   [[nodiscard]] bool available() const { return mounted_; }
   [[nodiscard]] const std::filesystem::path& path() const { return folder_; }
   // Fills the disk to the last byte with a file of its own (removed to make room again).
