@@ -8,6 +8,8 @@
 #include <map>
 #include <set>
 
+#include <unistd.h>
+
 #include "planmill/base/error.hpp"
 #include "planmill/export/export.hpp"
 #include "planmill/graph/unit_graph.hpp"
@@ -180,8 +182,23 @@ ExportResult export_run(const ExportOptions& o) {
     throw InputError({o.out_dir, 0, "--out"}, "cannot create the output folder: " + ec.message(),
                      "give a folder that can be written");
   }
+  // Every file goes to a staging folder inside `out` first and is moved into place only once all
+  // are written, so a failure (a full disk) leaves `out` as it was and no part of an export.
+  struct Staging {
+    fs::path dir;
+    ~Staging() {
+      std::error_code ignored;
+      fs::remove_all(dir, ignored);
+    }
+  } staging{out / (".export-partial-" + std::to_string(::getpid()))};
+  fs::remove_all(staging.dir, ec);
+  fs::create_directories(staging.dir, ec);
+  if (!fs::is_directory(staging.dir)) {
+    throw OutputError(staging.dir.string() + ": cannot create a folder (" + ec.message() +
+                      "); check that " + o.out_dir + " is writable");
+  }
   const auto write = [&](const std::string& name, std::string_view text) {
-    write_file_atomically((out / name).string(), text);
+    write_file_atomically((staging.dir / name).string(), text);
     result.written.push_back(name);
   };
 
@@ -190,7 +207,7 @@ ExportResult export_run(const ExportOptions& o) {
   // gap of more than kNewStretchGap records starts a new stretch (from its nearest self-contained
   // record) rather than decoding the gap.
   constexpr std::uint64_t kNewStretchGap = 256;
-  if (o.layout != PlanLayout::wide && !chosen.empty()) fs::create_directories(out / "plans", ec);
+  if (o.layout != PlanLayout::wide && !chosen.empty()) fs::create_directories(staging.dir / "plans", ec);
   std::map<std::uint64_t, std::vector<std::uint64_t>> wanted;
   for (const RecordRef& ref : chosen) wanted[ref.chain].push_back(ref.record);
   std::map<RecordRef, std::vector<DistrictIndex>> wide_labels;
@@ -267,6 +284,10 @@ ExportResult export_run(const ExportOptions& o) {
     write(wide_file_name(rung), wide);
   }
   for (const RecordRef& ref : chosen) result.plans += left_out(bad, ref.chain) ? 0 : 1;
+  for (const std::string& name : result.written) {  // renames within one file system: no new space
+    fs::create_directories((out / name).parent_path());
+    fs::rename(staging.dir / name, out / name);
+  }
   return result;
 }
 }  // namespace planmill
