@@ -996,7 +996,8 @@ class ChainRunner {
         out.summary += " --until-converged --max-steps " + std::to_string(options_.max_steps);
       }
     } else if (end == RunEnd::converged) {
-      out.summary += "\nconverged: every observable passes the verdict";
+      out.summary += "\nconverged: the stopping rule holds (every observable passes on the whole "
+                     "record and on its later half)";
     } else if (end == RunEnd::budget_spent) {
       out.summary += "\nnot converged within --max-steps " + std::to_string(options_.max_steps) +
                      " steps per chain; failing:" + verdict_summary_ +

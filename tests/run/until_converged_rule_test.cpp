@@ -55,6 +55,8 @@ TEST(UntilConverged, StopsOnlyWhenTheStoppingRuleHolds) {
       << read_text(dir / "run.log");
   const RunState state = read_run_state(RunLayout{out});
   EXPECT_EQ(state.stop_reason, "converged");
+  EXPECT_NE(read_text(dir / "run.log").find("converged: the stopping rule holds"), std::string::npos)
+      << read_text(dir / "run.log");
   const RunReader reader(out.string());
   const std::size_t records = reader.record_count(reader.chains()[0]);
   const diagnose::VerdictRule rule{1.05, 200, 600};
