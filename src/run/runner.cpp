@@ -337,8 +337,9 @@ class ChainRunner {
     const JobSpec& job = loaded_->job;
     // A run that failed or was killed before its first checkpoint holds nothing that counts: a
     // fresh run takes its folder over (once its own chains are built).
-    replace_empty_run_ = fs::exists(layout_.state_file()) && read_run_state(layout_).checkpoints == 0;
-    if (fs::exists(layout_.state_file()) && !replace_empty_run_) {
+    const bool holds_run = fs::exists(layout_.state_file());
+    replace_empty_run_ = holds_run && read_run_state(layout_).checkpoints == 0;
+    if (holds_run && !replace_empty_run_) {
       throw InputError({layout_.state_file().string(), 0, ""}, "already holds a run",
                        "add --resume to continue it, or choose another folder with --output");
     }
@@ -351,7 +352,7 @@ class ChainRunner {
         continue;
       }
       throw InputError({layout_.root.string(), 0, ""},
-                       "is not empty (it holds " + entry.path().filename().string() +
+                       "is not empty (it holds " + name.string() +
                            ") and holds no run",
                        "give a new or empty folder with --output or [output] dir");
     }

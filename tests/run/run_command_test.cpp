@@ -18,8 +18,8 @@
 
 #include "planmill/run/run_reader.hpp"
 #include "../support/run_jobs.hpp"
+#include "../support/run_processes.hpp"
 
-extern char** environ;
 
 namespace planmill {
 namespace {
@@ -32,11 +32,7 @@ fs::path write_job(const fs::path& dir, const std::string& sampler, double check
   return test::write_synth_job(dir, sampler, checkpoint_seconds);
 }
 
-std::string mpiexec(int ranks) {
-  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
-  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
-  return "mpiexec --oversubscribe -n " + std::to_string(ranks) + " ";
-}
+std::string mpiexec(int ranks) { return test::mpiexec_prefix(ranks); }
 
 int run(int ranks, const fs::path& job, const fs::path& out, const std::string& extra = "") {
   return shell(mpiexec(ranks) + PLANMILL_BINARY + " run " + job.string() + " --output " + out.string() +
@@ -106,63 +102,14 @@ TEST(Run, DifferentSeedsGiveDifferentPlans) {
 }
 
 pid_t spawn_run(int ranks, const fs::path& job, const fs::path& out) {
-  const std::string command = "exec " + mpiexec(ranks) + PLANMILL_BINARY + " run " + job.string() +
-                              " --output " + out.string() + " --quiet >" + out.string() + ".log 2>&1";
-  const char* argv[] = {"/bin/sh", "-c", command.c_str(), nullptr};
-  pid_t pid = 0;
-  EXPECT_EQ(posix_spawn(&pid, "/bin/sh", nullptr, nullptr, const_cast<char**>(argv), environ), 0);
-  return pid;
+  return test::spawn_shell(mpiexec(ranks) + PLANMILL_BINARY + " run " + job.string() + " --output " +
+                           out.string() + " --quiet >" + out.string() + ".log 2>&1");
 }
 
-std::vector<pid_t> children_of(pid_t parent) {
-  std::vector<pid_t> out;
-  for (const auto& entry : fs::directory_iterator("/proc")) {
-    const std::string name = entry.path().filename().string();
-    if (name.find_first_not_of("0123456789") != std::string::npos) continue;
-    std::ifstream stat(entry.path() / "stat");
-    std::string line;
-    std::getline(stat, line);
-    const auto close = line.rfind(')');
-    if (close == std::string::npos) continue;
-    std::istringstream rest(line.substr(close + 2));
-    char state = 0;
-    pid_t ppid = 0;
-    rest >> state >> ppid;
-    if (ppid == parent) out.push_back(std::stoi(name));
-  }
-  return out;
-}
-
-std::uint64_t committed_checkpoints(const fs::path& out) {
-  try {
-    return read_run_state(RunLayout{out}).checkpoints;
-  } catch (...) {
-    return 0;  // not written yet, or caught mid-rename
-  }
-}
-
-bool still_running(pid_t pid) {
-  siginfo_t info{};
-  return ::waitid(P_PID, static_cast<id_t>(pid), &info, WEXITED | WNOHANG | WNOWAIT) == 0 &&
-         info.si_pid == 0;  // WNOWAIT: leave the exit status for wait_exit()
-}
-
-// Waits until done(), or until the launched run ends, or for at most `seconds`.
-bool wait_for(const std::function<bool()>& done, pid_t launcher, double seconds) {
-  const auto end = std::chrono::steady_clock::now() + std::chrono::duration<double>(seconds);
-  while (std::chrono::steady_clock::now() < end) {
-    if (done()) return true;
-    if (!still_running(launcher)) return false;
-    std::this_thread::sleep_for(std::chrono::milliseconds(50));
-  }
-  return done();
-}
-
-int wait_exit(pid_t pid) {
-  int status = 0;
-  waitpid(pid, &status, 0);
-  return WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
-}
+using test::children_of;
+using test::committed_checkpoints;
+using test::wait_exit;
+using test::wait_for;
 
 // Long enough to be interrupted after a checkpoint (1 s apart), short enough for the suite.
 constexpr const char* kLongSampler = "chains = 4\nsteps = 300000\nburn_in = 1000\nrecord_every = 50\nseed = 3";

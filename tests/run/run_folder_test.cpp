@@ -18,8 +18,8 @@
 
 #include "planmill/run/run_reader.hpp"
 #include "../support/run_jobs.hpp"
+#include "../support/run_processes.hpp"
 
-extern char** environ;
 
 namespace planmill {
 namespace {
@@ -34,9 +34,7 @@ fs::path write_job(const fs::path& dir, const std::string& sampler, double check
 
 std::string command_line(int ranks, const fs::path& job, const fs::path& out, const std::string& extra,
                          const fs::path& log) {
-  setenv("OMPI_ALLOW_RUN_AS_ROOT", "1", 1);
-  setenv("OMPI_ALLOW_RUN_AS_ROOT_CONFIRM", "1", 1);
-  return "mpiexec --oversubscribe -n " + std::to_string(ranks) + " " + PLANMILL_BINARY + " run " +
+  return test::mpiexec_prefix(ranks) + PLANMILL_BINARY + " run " +
          job.string() + " --output " + out.string() + " --quiet " + extra + " >" + log.string() + " 2>&1";
 }
 
@@ -45,47 +43,14 @@ int run(int ranks, const fs::path& job, const fs::path& out, const std::string& 
 }
 
 pid_t spawn(int ranks, const fs::path& job, const fs::path& out, const std::string& extra, const fs::path& log) {
-  const std::string command = "exec " + command_line(ranks, job, out, extra, log);
-  const char* argv[] = {"/bin/sh", "-c", command.c_str(), nullptr};
-  pid_t pid = 0;
-  EXPECT_EQ(posix_spawn(&pid, "/bin/sh", nullptr, nullptr, const_cast<char**>(argv), environ), 0);
-  return pid;
+  return test::spawn_shell(command_line(ranks, job, out, extra, log));
 }
 
-int wait_exit(pid_t pid) {
-  int status = 0;
-  waitpid(pid, &status, 0);
-  return WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
-}
-
-bool still_running(pid_t pid) {
-  siginfo_t info{};
-  return ::waitid(P_PID, static_cast<id_t>(pid), &info, WEXITED | WNOHANG | WNOWAIT) == 0 &&
-         info.si_pid == 0;
-}
-
-std::uint64_t committed_checkpoints(const fs::path& out) {
-  try {
-    return read_run_state(RunLayout{out}).checkpoints;
-  } catch (...) {
-    return 0;
-  }
-}
-
-bool wait_for(const std::function<bool()>& done, pid_t launcher, double seconds) {
-  const auto end = std::chrono::steady_clock::now() + std::chrono::duration<double>(seconds);
-  while (std::chrono::steady_clock::now() < end) {
-    if (done()) return true;
-    if (!still_running(launcher)) return false;
-    std::this_thread::sleep_for(std::chrono::milliseconds(50));
-  }
-  return done();
-}
-
-std::string text_of(const fs::path& path) {
-  std::ifstream in(path);
-  return {std::istreambuf_iterator<char>(in), {}};
-}
+using test::committed_checkpoints;
+using test::still_running;
+using test::wait_exit;
+using test::wait_for;
+using test::read_text;
 
 // The folder is intact and complete: every chain has the records its steps call for.
 void expect_intact_finished_run(const fs::path& out, std::uint64_t records_per_chain) {
@@ -101,18 +66,18 @@ TEST(RunFolder, ASecondRunOrResumeIsRefusedWhileTheFirstRuns) {
   const auto job = write_job(dir, "chains = 4\nsteps = 1000000\nburn_in = 0\nrecord_every = 5000\nseed = 3", 1.0);
   const auto out = dir / "out";
   const pid_t first = spawn(2, job, out, "", dir / "first.log");
-  ASSERT_TRUE(wait_for([&] { return committed_checkpoints(out) >= 2; }, first, 120)) << text_of(dir / "first.log");
+  ASSERT_TRUE(wait_for([&] { return committed_checkpoints(out) >= 2; }, first, 120)) << read_text(dir / "first.log");
   EXPECT_EQ(run(2, job, out, "--resume", dir / "resume.log"), 2);
-  const std::string resume_log = text_of(dir / "resume.log");
+  const std::string resume_log = read_text(dir / "resume.log");
   EXPECT_NE(resume_log.find("is in use by host"), std::string::npos) << resume_log;
   EXPECT_NE(resume_log.find("pid"), std::string::npos) << resume_log;
   EXPECT_EQ(run(1, job, out, "", dir / "fresh.log"), 2);
-  EXPECT_NE(text_of(dir / "fresh.log").find("is in use by host"), std::string::npos) << text_of(dir / "fresh.log");
+  EXPECT_NE(read_text(dir / "fresh.log").find("is in use by host"), std::string::npos) << read_text(dir / "fresh.log");
   ASSERT_TRUE(still_running(first)) << "the first run ended before the second started; make it longer";
-  EXPECT_EQ(wait_exit(first), 0) << text_of(dir / "first.log");
+  EXPECT_EQ(wait_exit(first), 0) << read_text(dir / "first.log");
   expect_intact_finished_run(out, 200);
   // Once the first run has ended the folder is free again.
-  EXPECT_EQ(run(1, job, out, "--resume", dir / "after.log"), 0) << text_of(dir / "after.log");
+  EXPECT_EQ(run(1, job, out, "--resume", dir / "after.log"), 0) << read_text(dir / "after.log");
 }
 
 TEST(RunFolder, OfTwoFreshRunsStartedTogetherOneRunsAndTheOtherIsRefused) {
@@ -124,8 +89,8 @@ TEST(RunFolder, OfTwoFreshRunsStartedTogetherOneRunsAndTheOtherIsRefused) {
     const pid_t b = spawn(1, job, out, "", dir / "b.log");
     int exits[2] = {wait_exit(a), wait_exit(b)};
     std::sort(exits, exits + 2);
-    EXPECT_EQ(exits[0], 0) << text_of(dir / "a.log") << text_of(dir / "b.log");
-    EXPECT_EQ(exits[1], 2) << text_of(dir / "a.log") << text_of(dir / "b.log");
+    EXPECT_EQ(exits[0], 0) << read_text(dir / "a.log") << read_text(dir / "b.log");
+    EXPECT_EQ(exits[1], 2) << read_text(dir / "a.log") << read_text(dir / "b.log");
     expect_intact_finished_run(out, 200);
   }
 }
