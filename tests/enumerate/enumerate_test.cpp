@@ -31,7 +31,7 @@ TEST(Enumerate, GridIntoEqualPiecesMatchesOeisA172477) {
   EXPECT_EQ(grid_pieces(5), 4006U);
 }
 
-// 4x4 into 2 pieces of 8: 70 (METHODS.md section 6, checked by the brute force below too).
+// 4x4 into 2 pieces of 8: 70 (C(16,8) = 12870 halves, of which 70 are two connected pieces; checked by the brute force below too).
 TEST(Enumerate, FourByFourIntoTwoHalves) {
   const GraphHandle g_handle = share_graph(test::grid(4, 4));
   const UnitGraph& g = *g_handle;

@@ -61,7 +61,7 @@ TEST(Plan, RandomMovesKeepTalliesEqualToARecount) {
 }
 
 TEST(Plan, CutEdgesOfTheFourByFourGrid) {
-  // METHODS.md section 8 (Plan metrics): a 4x4 grid cut into two halves has 4 cut edges, into four
+  // Plain counting: a 4x4 grid cut into two halves has 4 cut edges, into four
   // 2x2 squares 8.
   const GraphHandle g_handle = share_graph(test::grid(4, 4));
   const UnitGraph& g = *g_handle;
@@ -128,7 +128,7 @@ TEST(Plan, ContiguityWithoutTheUnitThatLeftAgreesWithTheFullSearch) {
 }
 
 TEST(Plan, PopulationDeviationWorkedExample) {
-  // METHODS.md section 9: ideal 100,000, largest 102,000, smallest 99,000 -> overall range 3%;
+  // Plain arithmetic: ideal 100,000, largest 102,000, smallest 99,000 -> overall range 3%;
   // the largest absolute deviation is 2%.
   const GraphHandle g_handle = share_graph(test::graph_from_edges(3, test::path_edges(3), {102000, 99000, 99000}));
   const UnitGraph& g = *g_handle;

@@ -31,7 +31,7 @@ void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 namespace planmill {
 namespace {
 
-// Worked example (METHODS.md section 9, plain arithmetic): ideal 100,000 and eps 0.05 give
+// Worked example (plain arithmetic): ideal 100,000 and eps 0.05 give
 // [95,000, 105,000], even though 0.95 and 1.05 are not exact in binary.
 TEST(PopulationBounds, WorkedExample) {
   const PopulationBounds b = population_bounds(1'000'000, 10, 0.05);

@@ -48,7 +48,8 @@ double expectation(const SelftestResult& r, const GraphHandle& g_handle, std::si
 }
 
 TEST(SelftestTargets, SpanningTreeLawOnTheFourByFourGridMatchesWorkedValues) {
-  // METHODS.md section 6 [derived there by exact enumeration]: on the 4x4 grid into four of 4,
+  // Worked values (docs/kernels.md, "Check values"; derived by a hand-checkable enumeration outside
+  // planmill, not by its code): on the 4x4 grid into four of 4,
   // Z = 654, P(four 2x2 squares) = 256/654, E[cut edges] = 3140/327; under the uniform law (OEIS
   // A172477: 117 plans) E[cut edges] = 1348/117.
   auto tree_law = grid_case(4, 0.0, KernelKind::merge_split, 1.0, 0.0);
@@ -66,7 +67,7 @@ TEST(SelftestTargets, SpanningTreeLawOnTheFourByFourGridMatchesWorkedValues) {
 }
 
 TEST(SelftestTargets, TwoHalvesOfTheFourByFourGrid) {
-  // METHODS.md section 6: 4x4 into two of 8 has 70 plans; spanning-tree law Z = 10660 with
+  // Worked values (docs/kernels.md, "Check values"): 4x4 into two of 8 has 70 plans; spanning-tree law Z = 10660 with
   // E[cut] = 2672/533; uniform E[cut] = 264/35.
   auto tree_law = grid_case(2, 0.0, KernelKind::merge_split, 1.0, 0.0);
   tree_law.samples = 1;
@@ -90,8 +91,8 @@ TEST_P(BuiltinCase, PassesAgainstExactEnumeration) {
 
 INSTANTIATE_TEST_SUITE_P(All, BuiltinCase, ::testing::Range<std::size_t>(0, builtin_selftest_cases(true).size()));
 
-// The self-test must have the power to see a wrong acceptance ratio (METHODS.md sections 2-3 find
-// TV distances of 0.07-0.19 for such mistakes). Both must fail; the same cases with the correction
+// The self-test must have the power to see a wrong acceptance ratio (wrong acceptance ratios are
+// known to leave TV distances of about 0.07-0.19 on such maps; from the team's method notes). Both must fail; the same cases with the correction
 // pass above (measured here: TV about 0.07 for merge-split and 0.09 for flip without it, against
 // about 0.03 with it).
 TEST(SelftestPower, MergeSplitWithoutTheCutRatioFails) {

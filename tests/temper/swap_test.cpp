@@ -1,5 +1,5 @@
-// The swap round on its own: the acceptance probability against the formula of METHODS.md
-// section 4 (Hukushima & Nemoto 1996), the always-accepted case, which pairs each round proposes,
+// The swap round on its own: the acceptance probability against the formula of
+// Hukushima & Nemoto 1996 (docs/tempering.md), the always-accepted case, which pairs each round proposes,
 // and a fixed use of the random stream.
 #include "planmill/temper/swap.hpp"
 
@@ -12,7 +12,7 @@ namespace planmill {
 namespace {
 
 TEST(SwapRound, LowerEnergyToTheColderRungIsAlwaysAccepted) {
-  // METHODS.md section 4: moving the lower energy to the larger beta is always accepted.
+  // Hukushima & Nemoto 1996: moving the lower energy to the larger beta is always accepted.
   const std::vector<double> betas{2.0, 1.0};
   Rng rng = make_stream(3, 0);
   for (int n = 0; n < 1000; ++n) {
@@ -27,7 +27,7 @@ TEST(SwapRound, LowerEnergyToTheColderRungIsAlwaysAccepted) {
 }
 
 TEST(SwapRound, AcceptanceFrequencyMatchesTheFormula) {
-  // alpha = exp((b_0 - b_1)(E_0 - E_1)) = exp(0.5 * -1.4) = exp(-0.7) (METHODS.md section 4).
+  // alpha = exp((b_0 - b_1)(E_0 - E_1)) = exp(0.5 * -1.4) = exp(-0.7) (Hukushima & Nemoto 1996).
   // n = 200,000 Bernoulli trials: sd = sqrt(p (1 - p) / n) ~ 0.0011; allow 5 sd.
   const std::vector<double> betas{1.0, 0.5};
   const double expected = std::exp(-0.7);

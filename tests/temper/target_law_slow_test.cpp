@@ -1,6 +1,6 @@
 // The exact target-law checks of target_law_test.cpp with four times the samples, over several
-// seeds each (the exact law comes from enumerating every valid plan; the swap rule is METHODS.md
-// section 4, Hukushima & Nemoto 1996). Thresholds as in the self-test: p >= 1e-4 per case.
+// seeds each (the exact law comes from enumerating every valid plan; the swap rule is
+// Hukushima & Nemoto 1996, docs/tempering.md). Thresholds as in the self-test: p >= 1e-4 per case.
 #include <gtest/gtest.h>
 
 #include <cstdio>

@@ -1,6 +1,6 @@
 // The target rung of a ladder samples exactly the target law: its empirical law on small maps is
 // compared with the exact law from enumerating every valid plan (exact by construction; the
-// swap rule is METHODS.md section 4, Hukushima & Nemoto, J. Phys. Soc. Jpn. 65 (1996) 1604).
+// swap rule is Hukushima & Nemoto, J. Phys. Soc. Jpn. 65 (1996) 1604).
 // Thresholds are the self-test's: chi-square p >= 1e-4; and the TV distance at most twice what
 // independent draws from the exact law would show. A ladder with the wrong swap sign must fail.
 #include <gtest/gtest.h>
@@ -13,8 +13,8 @@
 namespace planmill {
 namespace {
 
-// Flip on the 4x4 grid into two districts of 7-9 units, energy = cut edges (METHODS.md section 3
-// uses this map for the flip kernel's check).
+// Flip on the 4x4 grid into two districts of 7-9 units, energy = cut edges (the map
+// docs/kernels.md uses for the flip kernel's check).
 test::LadderLawCase flip_case(std::vector<double> betas) {
   test::LadderLawCase c;
   c.graph = std::make_shared<const UnitGraph>(test::grid(4, 4));

@@ -179,7 +179,8 @@ TEST(WilsonUniformity, ChiSquareCheckRejectsNonUniformSamplers) {
   Rng rng = make_stream(31, 0);
   const std::size_t draws = 200 * catalog.tree_count();  // same size as the uniformity test
 
-  // Minimum spanning tree under i.i.d. uniform edge weights (Kruskal): not uniform (METHODS §1).
+  // Minimum spanning tree under i.i.d. uniform edge weights (Kruskal): not uniform (a standard
+  // counterexample; Broder 1989 motivates random-walk samplers by it).
   std::vector<std::uint64_t> counts(catalog.tree_count(), 0);
   std::vector<std::pair<double, std::uint32_t>> weighted(catalog.edge_count());
   for (std::size_t i = 0; i < draws; ++i) {
@@ -260,7 +261,8 @@ TEST(WilsonWalkLength, FourByFourGridMeanStepsMatchTheCommuteTimeFormula) {
   std::iota(all.begin(), all.end(), 0U);
   Region region;
   region.build(g, all);
-  // METHODS §5 [D]: corner root, 1605/28 steps; our hitting-time computation must agree.
+  // Worked value (docs/kernels.md, "Check values"; derived outside planmill): corner root,
+  // 1605/28 steps; our hitting-time computation must agree.
   EXPECT_NEAR(expected_wilson_steps(region, 0), 1605.0 / 28.0, 1e-9);
 
   SpanningTreeSampler sampler;

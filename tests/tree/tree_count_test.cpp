@@ -72,7 +72,7 @@ TEST(TreeCount, CompleteBipartiteGraphs) {
 }
 
 TEST(TreeCount, PetersenGraphAndCube) {
-  // Petersen graph: 2000 spanning trees; cube Q_3: 384 (the check values of METHODS section 5).
+  // Petersen graph: 2000 spanning trees (a standard value, from memory); cube Q_3: 384 (formula below).
   EXPECT_NEAR(log_count(10, petersen_edges()), std::log(2000.0), kLogTolerance);
   EXPECT_NEAR(log_count(8, hypercube_edges(3)), std::log(384.0), kLogTolerance);
   // Hypercube formula τ(Q_d) = 2^(2^d - d - 1) Π_{k=1..d} k^C(d,k) (from the Laplacian

@@ -4,8 +4,8 @@
 // It knows nothing of chains or plans, so a serial ladder and a ladder spread over ranks can share
 // it (each rank sends its replicas' energies, one place runs the round, all get the assignment).
 //
-// Acceptance for rungs r, r+1 (METHODS.md section 4; Hukushima & Nemoto, J. Phys. Soc. Jpn. 65
-// (1996) 1604): with E_r the energy of the replica now on rung r,
+// Acceptance for rungs r, r+1 (Hukushima & Nemoto, J. Phys. Soc. Jpn. 65 (1996) 1604;
+// docs/tempering.md): with E_r the energy of the replica now on rung r,
 //   alpha = min{1, exp((b_r - b_{r+1}) (E_r - E_{r+1}))}.
 // The tau^gamma factor of merge-split is the same on every rung and cancels.
 //
