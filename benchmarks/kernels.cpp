@@ -40,7 +40,7 @@ const State& benchmark_state() {
     GraphHandle graph = share_graph(load_unit_graph(job.map));
     std::filesystem::remove_all(dir);
     RuleSet rules;
-    rules.population_deviation = 0.05;
+    rules.population_tolerance = 0.05;
     Rng rng = make_stream(7, 99);
     Plan start = random_seed_plan(graph, 100, rules, rng);
     auto s = std::make_unique<State>(State{std::move(graph), start});
@@ -54,7 +54,7 @@ void run_kernel(benchmark::State& bench, KernelKind kind, double gamma, double c
   const State& s = benchmark_state();
   ChainSetup setup;
   setup.graph = s.graph;
-  setup.rules.population_deviation = 0.05;
+  setup.rules.population_tolerance = 0.05;
   setup.rules.cut_edges_weight = cut_weight;
   setup.kernel.kind = kind;
   setup.kernel.gamma = gamma;

@@ -41,7 +41,7 @@ const State& benchmark_state() {
     GraphHandle graph = share_graph(load_unit_graph(job.map));
     fs::remove_all(dir);
     RuleSet rules;
-    rules.population_deviation = 0.05;
+    rules.population_tolerance = 0.05;
     Rng rng = make_stream(7, 99);
     Plan start = random_seed_plan(graph, 100, rules, rng);
     auto s = std::make_unique<State>(State{std::move(graph), start});
@@ -56,7 +56,7 @@ const State& benchmark_state() {
 Chain make_chain(const State& s) {
   ChainSetup setup;
   setup.graph = s.graph;
-  setup.rules.population_deviation = 0.05;
+  setup.rules.population_tolerance = 0.05;
   setup.kernel.kind = KernelKind::recombination;
   Chain chain(setup, s.start);
   for (int i = 0; i < 2000; ++i) chain.step();  // warm the buffers and leave the seed plan

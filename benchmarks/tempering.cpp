@@ -223,7 +223,7 @@ int main(int argc, char** argv) {
 
   ChainSetup base;
   base.graph = graph_handle;
-  base.rules.population_deviation = 0.05;
+  base.rules.population_tolerance = 0.05;
   base.rules.cut_edges_weight = s.cut_weight;
   base.kernel.kind = KernelKind::flip;
   base.kernel.beta = s.beta;

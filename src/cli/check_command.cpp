@@ -20,7 +20,7 @@ int run_check(const std::string& job_path) {
   std::printf("components   %zu\n", components.sizes.size());
   std::printf("districts    %zu\n", loaded.job.districts);
   std::printf("population   %lld total, %.1f ideal per district, tolerance +/-%.2f%%\n",
-              static_cast<long long>(g.total_population()), ideal, 100.0 * loaded.job.rules.population_deviation);
+              static_cast<long long>(g.total_population()), ideal, 100.0 * loaded.job.rules.population_tolerance);
   if (g.has_counties()) std::printf("counties     %zu\n", g.counties().names.size());
   if (g.has_municipalities()) std::printf("towns        %zu\n", g.municipalities().names.size());
   if (loaded.report.zero_population_units > 0)

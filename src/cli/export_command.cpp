@@ -53,7 +53,7 @@ int run_export(ExportArgs& args) {
 void add_export_command(CLI::App& app, Action& action) {
   auto args = std::make_shared<ExportArgs>();
   auto* sub = app.add_subcommand("export", "write a run's observables and chosen plans as CSV");
-  sub->add_option("run_dir", args->options.run_dir, "run folder")->required();
+  sub->add_option("RUNDIR", args->options.run_dir, "run folder written by 'planmill run'")->required();
   sub->add_option("--out", args->options.out_dir, "folder to write into (created or reused)")
       ->required();
   sub->add_option("--plans", args->plans, "plans to write, as CHAIN:RECORD,... (records from 0)");

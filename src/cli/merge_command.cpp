@@ -1,6 +1,6 @@
 // planmill merge RUNDIR: checks every plan file of a run and writes RUNDIR/manifest.json
 // (docs/manifest.md). Exit status: 0 written and all files intact, 3 written but some records
-// are damaged (listed; hot-rung records too), 2 not a readable run dir.
+// are damaged (listed; hot-rung records too), 2 not a readable run folder.
 #include <filesystem>
 #include <iostream>
 #include <memory>
@@ -16,7 +16,7 @@ namespace {
 int run_merge(const std::string& run_dir) {
   if (!std::filesystem::is_directory(run_dir)) {
     throw InputError({run_dir, 0, {}}, "is not a folder",
-                     "give the run dir that 'planmill run' wrote");
+                     "give the run folder that 'planmill run' wrote");
   }
   const RunReader reader(run_dir);
   const auto problems = reader.verify();
@@ -56,8 +56,8 @@ int run_merge(const std::string& run_dir) {
 void add_merge_command(CLI::App& app, Action& action) {
   auto run_dir = std::make_shared<std::string>();
   auto* sub =
-      app.add_subcommand("merge", "check a run dir's plan files and write its manifest.json");
-  sub->add_option("rundir", *run_dir, "run dir written by 'planmill run'")->required();
+      app.add_subcommand("merge", "check a run folder's plan files and write its manifest.json");
+  sub->add_option("RUNDIR", *run_dir, "run folder written by 'planmill run'")->required();
   sub->callback([&action, run_dir] { action = [run_dir] { return run_merge(*run_dir); }; });
 }
 

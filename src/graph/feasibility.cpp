@@ -17,7 +17,7 @@ std::string show(double x) {
 
 void check_feasible(const UnitGraph& graph, std::size_t districts, double eps, const std::string& job_path) {
   const InputError::Where count_key{job_path, 0, "districts.count"};
-  const InputError::Where tolerance_key{job_path, 0, "rules.population_deviation"};
+  const InputError::Where tolerance_key{job_path, 0, "rules.population_tolerance"};
   const std::size_t n = graph.unit_count();
   if (districts == 0) throw InputError(count_key, "must be at least 1", "ask for one or more districts");
   if (districts > n) {

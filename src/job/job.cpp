@@ -210,7 +210,10 @@ void read_rules(Section& top, JobSpec& job) {
   if (!table) return;
   Section rules(*table, "rules", job.path);
   RulesSpec& r = job.rules;
-  r.population_deviation = rules.number("population_deviation", r.population_deviation, 0.0, 1.0);
+  if (rules.has("population_deviation"))  // the earlier name, now kept for a plan's measured deviation
+    rules.fail("population_deviation", "is now called population_tolerance",
+               "rename the key; a plan's measured deviation is the observable population_deviation");
+  r.population_tolerance = rules.number("population_tolerance", r.population_tolerance, 0.0, 1.0);
   r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
   if (const toml::table* w = rules.table("weights")) {
     Section weights(*w, "rules.weights", job.path);

@@ -8,10 +8,10 @@ namespace planmill {
 
 RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::string& job_file) {
   RuleSet rules;
-  if (!(spec.population_deviation >= 0.0 && spec.population_deviation < 1.0))
-    throw InputError({job_file, 0, "rules.population_deviation"}, "must lie in [0, 1)",
+  if (!(spec.population_tolerance >= 0.0 && spec.population_tolerance < 1.0))
+    throw InputError({job_file, 0, "rules.population_tolerance"}, "must lie in [0, 1)",
                      "give the allowed deviation as a fraction, e.g. 0.05 for 5%");
-  rules.population_deviation = spec.population_deviation;
+  rules.population_tolerance = spec.population_tolerance;
   if (spec.county_splits_max >= 0)
     rules.county_splits_max = static_cast<std::size_t>(spec.county_splits_max);
   rules.cut_edges_weight = spec.cut_edges_weight;

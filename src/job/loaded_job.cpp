@@ -10,7 +10,7 @@ namespace planmill {
 LoadedJob load_and_check_job(const std::string& job_path) {
   LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt};
   loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
-  check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_deviation, job_path);
+  check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_tolerance, job_path);
   const RuleSet rules = make_rule_set(loaded.job.rules, *loaded.graph, job_path);
   if (loaded.job.start != "random") {
     loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));

@@ -96,7 +96,7 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   m["manifest_schema"] = kManifestSchemaVersion;
   m["written"] = utc_now_iso8601();
   m["run_id"] = s.run_id;
-  m["run_dir"] = layout.root.string();
+  m["run_folder"] = layout.root.string();
   m["run_by"] = {{"planmill_version", s.planmill_version}, {"git_commit", s.git_commit}};
   m["merged_by"] = {{"planmill_version", kVersion}, {"git_commit", kGitCommit}};
 

@@ -57,7 +57,7 @@ PopulationBounds population_bounds(std::int64_t total_population, std::size_t di
 RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
     : rules_(rules), k_(plan.district_count()) {
   const UnitGraph& g = plan.graph();
-  if (!(rules_.population_deviation >= 0.0 && rules_.population_deviation < 1.0))
+  if (!(rules_.population_tolerance >= 0.0 && rules_.population_tolerance < 1.0))
     throw std::invalid_argument("population deviation must lie in [0, 1)");
   for (const GroupShareTerm& t : rules_.group_share)
     if (t.column >= g.count_column_count())
@@ -75,7 +75,7 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
     for (std::uint32_t c : g.counties().code)
       county_count_ = std::max<std::size_t>(county_count_, c + 1);
   }
-  bounds_ = population_bounds(g.total_population(), k_, rules_.population_deviation);
+  bounds_ = population_bounds(g.total_population(), k_, rules_.population_tolerance);
   reset(plan);
 }
 
@@ -153,7 +153,7 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
   const double ideal = plan.ideal_population();
   if (bounds_.min > bounds_.max)
     add("no district population can meet the bounds: ideal " + ideal_text(ideal) +
-        " with deviation " + percent(rules_.population_deviation).substr(1) +
+        " with deviation " + percent(rules_.population_tolerance).substr(1) +
         " leaves no whole number between them; allow a larger deviation");
   for (DistrictIndex d = 0; d < k_; ++d) {
     const std::int64_t p = plan.population(d);

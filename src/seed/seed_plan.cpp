@@ -75,8 +75,8 @@ Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const Ru
   }
   std::ostringstream message;
   message << "no valid starting plan found for " << districts << " districts within +/-"
-          << 100.0 * rules.population_deviation << "% after " << effort.restarts << " attempts of up to "
-          << effort.trees_per_split << " spanning trees per split; loosen rules.population_deviation or "
+          << 100.0 * rules.population_tolerance << "% after " << effort.restarts << " attempts of up to "
+          << effort.trees_per_split << " spanning trees per split; loosen rules.population_tolerance or "
           << "county_splits_max, or give a plan file as districts.start";
   throw InfeasibleError(message.str());
 }

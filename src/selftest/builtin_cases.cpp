@@ -39,7 +39,7 @@ SelftestCase make(std::string name, std::shared_ptr<const UnitGraph> graph, std:
   c.name = std::move(name);
   c.graph = std::move(graph);
   c.districts = k;
-  c.rules.population_deviation = deviation;
+  c.rules.population_tolerance = deviation;
   c.kernel.kind = kind;
   c.kernel.gamma = gamma;
   c.kernel.beta = beta;

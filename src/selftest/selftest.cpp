@@ -83,7 +83,7 @@ SelftestResult run_selftest(const SelftestCase& test) {
                        "more than " + std::to_string(kSelftestMaxPlans) +
                            " valid plans, too many to enumerate (selftest takes at most " +
                            std::to_string(kSelftestMaxPlans) + ")",
-                       "use a smaller map, fewer districts or a tighter population_deviation");
+                       "use a smaller map, fewer districts or a tighter population_tolerance");
     canonical_key(labels, relabel, key);
     index.emplace(key, log_weights.size());
     result.plans.push_back({key, 0.0, 0});

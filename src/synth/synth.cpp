@@ -635,7 +635,7 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
       "[[map.elections]]\nname = \"sen\"\nparties = [\"A\", \"B\"]\n"
       "columns = [\"sen_a\", \"sen_b\"]\n"
       "[districts]\ncount = " +
-      std::to_string(options.districts) + "\n[rules]\npopulation_deviation = 0.05\n";
+      std::to_string(options.districts) + "\n[rules]\npopulation_tolerance = 0.05\n";
 
   const std::filesystem::path dir(options.out_dir);
   const std::vector<std::pair<std::string, std::string>> files = {{"units.csv", units_csv},

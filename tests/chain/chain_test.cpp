@@ -12,7 +12,7 @@ namespace {
 struct Fixture {
   GraphHandle graph = share_graph(test::grid(8, 8));
   RuleSet rules;
-  Fixture() { rules.population_deviation = 0.1; }
+  Fixture() { rules.population_tolerance = 0.1; }
   ChainSetup setup(KernelKind kind, std::uint64_t index) {
     ChainSetup s{graph, rules, {}, 99, index};
     s.kernel.kind = kind;
@@ -81,7 +81,7 @@ TEST(Chain, RejectsASnapshotOfAnotherMap) {
   Chain chain(f.setup(KernelKind::flip, 0), f.start());
   const GraphHandle other = share_graph(test::grid(4, 4));
   RuleSet rules;
-  rules.population_deviation = 0.5;
+  rules.population_tolerance = 0.5;
   Rng rng = make_stream(1, 1);
   Chain small({other, rules, {}, 1, 0}, random_seed_plan(other, 4, rules, rng));
   EXPECT_THROW(chain.restore(small.save()), std::invalid_argument);

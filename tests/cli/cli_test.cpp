@@ -56,7 +56,7 @@ class Cli : public ::testing::Test {
     write("adj.csv", "from,to\na,b\nb,c\nd,e\ne,f\ng,h\nh,i\na,d\nd,g\nb,e\ne,h\nc,f\nf,i\n");
     write("job.toml", "[map]\nunits = \"units.csv\"\nadjacency = \"adj.csv\"\nid = \"id\"\npopulation = \"people\"\n"
                       "county = \"cty\"\n[districts]\ncount = " +
-                          std::to_string(districts) + "\n[rules]\npopulation_deviation = " + std::to_string(deviation) +
+                          std::to_string(districts) + "\n[rules]\npopulation_tolerance = " + std::to_string(deviation) +
                           "\n[rules.weights]\ncut_edges = 0.5\n[sampler]\nkernel = \"" + kernel + "\"\n");
   }
 

@@ -299,7 +299,7 @@ TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
     EXPECT_EQ(std::to_string(cut_edges), row.fields[cut]) << plan_file_name(ref);
     const double recorded = std::strtod(row.fields[deviation].c_str(), nullptr);
     EXPECT_NEAR(worst, recorded, 1e-12) << plan_file_name(ref);  // rounding only
-    EXPECT_LE(recorded, job.rules.population_deviation);
+    EXPECT_LE(recorded, job.rules.population_tolerance);
     ++plans;
   }
   EXPECT_EQ(plans, 36u);

@@ -19,11 +19,11 @@ TEST(MakeRuleSet, ResolvesGroupsAndNamesMissingData) {
   const GraphHandle g_handle = share_graph(test::grid(3, 3, x));
   const UnitGraph& g = *g_handle;
   RulesSpec spec;
-  spec.population_deviation = 0.02;
+  spec.population_tolerance = 0.02;
   spec.cut_edges_weight = 0.5;
   spec.group_share = {{"black", 0.4, 3.0}};
   const RuleSet rules = make_rule_set(spec, g, "job.toml");
-  EXPECT_EQ(rules.population_deviation, 0.02);
+  EXPECT_EQ(rules.population_tolerance, 0.02);
   EXPECT_FALSE(rules.county_splits_max.has_value());
   ASSERT_EQ(rules.group_share.size(), 1U);
   EXPECT_EQ(rules.group_share[0].column, 1U);
@@ -39,7 +39,7 @@ TEST(MakeRuleSet, ResolvesGroupsAndNamesMissingData) {
     EXPECT_EQ(e.where().file, "job.toml");
   }
   RulesSpec wide = spec;
-  wide.population_deviation = 1.5;
+  wide.population_tolerance = 1.5;
   EXPECT_THROW((void)make_rule_set(wide, g, "job.toml"), InputError);
   RulesSpec unknown = spec;
   unknown.group_share = {{"hispanic", 0.4, 3.0}};

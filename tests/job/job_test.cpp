@@ -28,7 +28,7 @@ columns = ["gov_a", "gov_b"]
 count = 20
 
 [rules]
-population_deviation = 0.02
+population_tolerance = 0.02
 county_splits_max = 5
 [rules.weights]
 cut_edges = 0.5
@@ -66,7 +66,7 @@ TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
   ASSERT_EQ(job.map.elections.size(), 1u);
   EXPECT_EQ(job.map.elections[0].columns[1], "gov_b");
   EXPECT_EQ(job.districts, 20u);
-  EXPECT_DOUBLE_EQ(job.rules.population_deviation, 0.02);
+  EXPECT_DOUBLE_EQ(job.rules.population_tolerance, 0.02);
   EXPECT_EQ(job.rules.county_splits_max, 5);
   EXPECT_DOUBLE_EQ(job.rules.cut_edges_weight, 0.5);
   ASSERT_EQ(job.rules.group_share.size(), 1u);
@@ -116,8 +116,10 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"unknown section", "[verdict]", "[verdikt]", "'verdikt': unknown key"},
         BadJob{"min_records too small", "min_records = 300", "min_records = 4", "'verdict.min_records'"},
         BadJob{"wrong type", "count = 20", "count = \"20\"", "'districts.count': must be a whole number"},
-        BadJob{"out of range", "population_deviation = 0.02", "population_deviation = 1.5",
-               "'rules.population_deviation'"},
+        BadJob{"out of range", "population_tolerance = 0.02", "population_tolerance = 1.5",
+               "'rules.population_tolerance'"},
+        BadJob{"the earlier key name", "population_tolerance = 0.02", "population_deviation = 0.02",
+               "'rules.population_deviation': is now called population_tolerance"},
         BadJob{"negative chains", "chains = 8", "chains = -1", "'sampler.chains'"},
         BadJob{"unknown kernel", "\"merge-split\"", "\"annealing\"", "unknown kernel"},
         BadJob{"missing id", "id = \"unit\"\n", "", "'map.id': required key is missing"},

@@ -24,7 +24,7 @@ TEST(UniformCutEdge, APlanWithoutCutEdgesGivesNone) {
 TEST(UniformCutEdge, EveryKernelSaysNoCutOnAOneDistrictPlan) {
   const GraphHandle g = share_graph(test::grid(3, 3));
   RuleSet rules;
-  rules.population_deviation = 0.5;
+  rules.population_tolerance = 0.5;
   for (const KernelKind kind : {KernelKind::recombination, KernelKind::merge_split, KernelKind::flip}) {
     ChainState state(Plan(g, 1, std::vector<DistrictIndex>(9, 0)), rules);
     KernelSettings settings;

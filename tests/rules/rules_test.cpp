@@ -59,7 +59,7 @@ TEST(RuleTracker, PopulationBoundsAndViolationText) {
   for (UnitIndex r = 0; r < 4; ++r) a[r * 4 + 3] = 1;
   Plan plan(g_handle, 2, a);
   RuleSet rules;
-  rules.population_deviation = 0.1;
+  rules.population_tolerance = 0.1;
   RuleTracker tracker(plan, rules);
   EXPECT_EQ(tracker.population_min(), 8);
   EXPECT_EQ(tracker.population_max(), 8);
@@ -77,7 +77,7 @@ TEST(RuleTracker, PopulationBoundsAndViolationText) {
   // eps = 0 with ideal 16/3: no whole number fits, and the text says so.
   const Plan three(g_handle, 3, test::stripe_assignment(4, 4, 3));
   RuleSet exact;
-  exact.population_deviation = 0.0;
+  exact.population_tolerance = 0.0;
   const RuleTracker none(three, exact);
   EXPECT_GT(none.population_min(), none.population_max());
   EXPECT_FALSE(none.hard_rules_ok(three));
@@ -98,7 +98,7 @@ TEST(RuleTracker, CountySplitsByHand) {
   for (UnitIndex u = 8; u < 16; ++u) a[u] = 1;
   Plan plan(g_handle, 2, a);
   RuleSet rules;
-  rules.population_deviation = 0.5;
+  rules.population_tolerance = 0.5;
   rules.county_splits_max = 2;
   rules.county_splits_weight = 1.0;
   RuleTracker tracker(plan, rules);
@@ -196,7 +196,7 @@ RandomMap random_map(Rng& rng) {
   }
   x.counts = {{"g1", g1}, {"g2", g2}};
   RandomMap m{share_graph(test::grid(6, 6, x)), {}};
-  m.rules.population_deviation = 0.3;
+  m.rules.population_tolerance = 0.3;
   m.rules.county_splits_max = 4;
   m.rules.cut_edges_weight = 0.37;
   m.rules.county_splits_weight = 1.3;
@@ -283,7 +283,7 @@ TEST(RuleTracker, RejectsRulesTheMapCannotSupport) {
   group.group_share = {{0, 0.5, 1.0}};
   EXPECT_THROW(RuleTracker(plan, group), std::invalid_argument);
   RuleSet wide;
-  wide.population_deviation = 1.0;
+  wide.population_tolerance = 1.0;
   EXPECT_THROW(RuleTracker(plan, wide), std::invalid_argument);
 }
 

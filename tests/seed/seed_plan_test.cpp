@@ -14,7 +14,7 @@ TEST(SeedPlan, RandomSeedsAreValidForManyShapes) {
   const UnitGraph& g = *g_handle;
   for (std::size_t k : {2u, 3u, 5u, 8u, 12u}) {
     RuleSet rules;
-    rules.population_deviation = 0.05;
+    rules.population_tolerance = 0.05;
     Rng rng = make_stream(7, k);
     const Plan plan = random_seed_plan(g_handle, k, rules, rng);
     EXPECT_TRUE(plan.all_connected()) << k;
@@ -30,7 +30,7 @@ TEST(SeedPlan, RestartsAfterAFailedLaterSplitStartFromTheWholeMap) {
   const GraphHandle g_handle = share_graph(test::grid(6, 6));
   const UnitGraph& g = *g_handle;
   RuleSet rules;
-  rules.population_deviation = 0.0;  // three districts of exactly 12 units
+  rules.population_tolerance = 0.0;  // three districts of exactly 12 units
   for (std::uint64_t seed = 1; seed <= 5; ++seed) {
     Rng rng = make_stream(seed, 0);
     const Plan plan = random_seed_plan(g_handle, 3, rules, rng, {1, 5000});
@@ -44,7 +44,7 @@ TEST(SeedPlan, ImpossibleToleranceIsAnInfeasibleErrorAfterBoundedEffort) {
   const GraphHandle g_handle = share_graph(test::graph_from_edges(5, test::path_edges(5)));
   const UnitGraph& g = *g_handle;
   RuleSet rules;
-  rules.population_deviation = 0.0;
+  rules.population_tolerance = 0.0;
   Rng rng = make_stream(1, 0);
   try {
     (void)random_seed_plan(g_handle, 2, rules, rng, {20, 3});
@@ -60,7 +60,7 @@ TEST(SeedPlan, UserPlanViolationsNameTheDistrict) {
   // District 1 = {0, 3}: not contiguous; district 2 has the remaining 6 units.
   Plan plan(g_handle, 2, {0, 1, 1, 0, 1, 1, 1, 1});
   RuleSet rules;
-  rules.population_deviation = 0.1;
+  rules.population_tolerance = 0.1;
   try {
     check_seed_plan(plan, rules, "start.csv");
     FAIL();

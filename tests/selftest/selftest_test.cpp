@@ -27,7 +27,7 @@ SelftestCase grid_case(std::size_t k, double deviation, KernelKind kind, double 
   SelftestCase c;
   c.graph = std::make_shared<const UnitGraph>(test::grid(4, 4));
   c.districts = k;
-  c.rules.population_deviation = deviation;
+  c.rules.population_tolerance = deviation;
   c.kernel.kind = kind;
   c.kernel.gamma = gamma;
   c.kernel.beta = beta;

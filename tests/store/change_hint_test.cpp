@@ -105,7 +105,7 @@ TEST(ChangeHint, RealChainRecordsExactlyWithAndWithoutTheList) {
   const UnitGraph& graph = *graph_handle;
   fs::remove_all(dir);
   RuleSet rules;
-  rules.population_deviation = 0.05;
+  rules.population_tolerance = 0.05;
   Rng rng = make_stream(5, 2);
   ChainSetup setup;
   setup.graph = graph_handle;

@@ -136,7 +136,7 @@ TEST(PlanCodec, RealChainRoundTripsAtEveryInterval) {
   const UnitGraph& graph = *graph_handle;
   fs::remove_all(dir);
   RuleSet rules;
-  rules.population_deviation = 0.05;
+  rules.population_tolerance = 0.05;
   Rng rng = make_stream(5, 1);
   Plan start = random_seed_plan(graph_handle, 20, rules, rng);
   ChainSetup setup;

@@ -363,7 +363,7 @@ TEST(Synth, JobFileNamesTheWrittenColumns) {
     }
   }
   EXPECT_EQ(job["districts"]["count"].value<std::int64_t>(), 3);
-  EXPECT_EQ(job["rules"]["population_deviation"].value<double>(), 0.05);
+  EXPECT_EQ(job["rules"]["population_tolerance"].value<double>(), 0.05);
   EXPECT_EQ(*job["map"]["units"].value<std::string>(), "units.csv");
   EXPECT_EQ(*job["map"]["adjacency"].value<std::string>(), "adjacency.csv");
   fs::remove_all(dir);

@@ -33,7 +33,7 @@ struct Fixture {
   GraphHandle graph = share_graph(test::grid(6, 6));
   RuleSet rules;
   Fixture() {
-    rules.population_deviation = 0.2;
+    rules.population_tolerance = 0.2;
     rules.cut_edges_weight = 0.5;
   }
   LadderSetup setup(KernelKind kind, std::vector<double> betas, std::uint64_t swap_every = 3) {

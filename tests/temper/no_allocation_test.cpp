@@ -15,7 +15,7 @@ struct Fixture {
   GraphHandle graph = share_graph(test::grid(6, 6));
   RuleSet rules;
   Fixture() {
-    rules.population_deviation = 0.2;
+    rules.population_tolerance = 0.2;
     rules.cut_edges_weight = 0.5;
   }
   Ladder ladder(KernelKind kind, double gamma) {

@@ -25,10 +25,10 @@ test::LadderLawCase make_case(const SlowCase& s, std::uint64_t seed) {
   c.kernel.kind = s.kind;
   if (s.kind == KernelKind::flip) {
     c.districts = 2;
-    c.rules.population_deviation = 0.125;
+    c.rules.population_tolerance = 0.125;
   } else {
     c.districts = 4;
-    c.rules.population_deviation = 0.0;
+    c.rules.population_tolerance = 0.0;
     c.kernel.gamma = 1.0;
     c.kernel.balanced_cut_bound = 1;  // exact: one balanced edge at most under exact equality
   }

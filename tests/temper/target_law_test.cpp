@@ -19,7 +19,7 @@ test::LadderLawCase flip_case(std::vector<double> betas) {
   test::LadderLawCase c;
   c.graph = std::make_shared<const UnitGraph>(test::grid(4, 4));
   c.districts = 2;
-  c.rules.population_deviation = 0.125;
+  c.rules.population_tolerance = 0.125;
   c.rules.cut_edges_weight = 1.0;
   c.kernel.kind = KernelKind::flip;
   c.betas = std::move(betas);
@@ -32,7 +32,7 @@ test::LadderLawCase merge_split_case(std::vector<double> betas) {
   test::LadderLawCase c;
   c.graph = std::make_shared<const UnitGraph>(test::grid(4, 4));
   c.districts = 4;
-  c.rules.population_deviation = 0.0;
+  c.rules.population_tolerance = 0.0;
   c.rules.cut_edges_weight = 1.0;
   c.kernel.kind = KernelKind::merge_split;
   c.kernel.gamma = 1.0;

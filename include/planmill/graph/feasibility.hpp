@@ -9,10 +9,10 @@
 namespace planmill {
 
 // Throws InputError keyed on the job key to change ('districts.count',
-// 'rules.population_deviation', or 'map.population' when the map has no people), saying what to
+// 'rules.population_tolerance', or 'map.population' when the map has no people), saying what to
 // do. Each district must hold a whole population within [(1-eps) ideal, (1+eps) ideal],
 // ideal = total / districts.
-void check_feasible(const UnitGraph& graph, std::size_t districts, double population_deviation,
+void check_feasible(const UnitGraph& graph, std::size_t districts, double population_tolerance,
                     const std::string& job_path);
 
 }  // namespace planmill

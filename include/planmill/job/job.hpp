@@ -18,7 +18,7 @@ struct GroupShareSpec {
 };
 
 struct RulesSpec {
-  double population_deviation = 0.05;
+  double population_tolerance = 0.05;
   std::int64_t county_splits_max = -1;  // -1 = no limit
   double cut_edges_weight = 0.0;
   double county_splits_weight = 0.0;

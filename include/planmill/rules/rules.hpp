@@ -27,7 +27,7 @@ struct GroupShareTerm {
 };
 
 struct RuleSet {
-  double population_deviation = 0.05;            // hard: pop in [(1-eps) ideal, (1+eps) ideal]
+  double population_tolerance = 0.05;            // hard: pop in [(1-eps) ideal, (1+eps) ideal]
   std::optional<std::size_t> county_splits_max;  // hard: counties meeting >= 2 districts
   double cut_edges_weight = 0.0;                  // soft
   double county_splits_weight = 0.0;              // soft
