@@ -17,7 +17,9 @@ inline constexpr hsize_t kObservableChunkRows = 256;
 inline constexpr const char* kCounterNames[] = {"steps", "accepted", "rejected", "no_cut",
                                                 "invalid"};
 
-inline std::string chain_group_name(std::uint64_t index) { return "chain_" + std::to_string(index); }
+inline std::string chain_group_name(std::uint64_t index) {
+  return "chain_" + std::to_string(index);
+}
 
 H5Type vlen_string_type(const std::string& path);
 
