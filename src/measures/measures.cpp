@@ -19,6 +19,13 @@ bool ends_in_nan(std::span<const double> sorted) noexcept {
   return !sorted.empty() && std::isnan(sorted.back());
 }
 
+// The numbers before the NaNs sorted last (NaN is in no band and above no threshold).
+std::span<const double> without_nan(std::span<const double> sorted) noexcept {
+  std::size_t n = sorted.size();
+  while (n > 0 && std::isnan(sorted[n - 1])) --n;
+  return sorted.first(n);
+}
+
 double mean_of(std::span<const double> values) noexcept {
   double sum = 0.0;
   for (const double v : values) sum += v;
@@ -116,15 +123,14 @@ double declination(std::span<const double> sorted) noexcept {
 }
 
 std::size_t count_within(std::span<const double> sorted, double low, double high) noexcept {
+  sorted = without_nan(sorted);
   const std::size_t begin = first_at_least(sorted, low), end = first_above(sorted, high);
   return end > begin ? end - begin : 0;
 }
 
 std::size_t count_above(std::span<const double> sorted, double threshold) noexcept {
-  // NaN sorts last but is above nothing.
-  std::size_t n = sorted.size() - first_above(sorted, threshold);
-  while (n > 0 && std::isnan(sorted[sorted.size() - n])) --n;
-  return n;
+  sorted = without_nan(sorted);
+  return sorted.size() - first_above(sorted, threshold);
 }
 
 double polsby_popper(double area, double perimeter) noexcept {

@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <numbers>
 #include <stdexcept>
@@ -130,6 +131,7 @@ TEST(ShareCounts, MajorityMeansMoreThanHalf) {
   EXPECT_EQ(count_within(sorted, 0.45, 0.55), 4U);  // both ends in the band
   EXPECT_EQ(count_within(sorted, 0.46, 0.49), 0U);
   EXPECT_EQ(count_above(std::vector<double>{0.6, std::nan("")}, 0.5), 1U);
+  EXPECT_EQ(count_within(std::vector<double>{0.3, 0.5, std::nan(""), std::nan("")}, 0.4, 0.6), 1U);
 }
 
 // ---- Polsby-Popper ----
@@ -196,9 +198,9 @@ TEST(MeasureEvaluator, PolsbyPopperOfSquareAndStripeDistricts) {
   EXPECT_NEAR(scalar(m, "compactness.polsby_popper_min"), 16 * pi / 100, 1e-15);
   EXPECT_EQ(scalar(m, "compactness.cut_edges"), 12.0);
   // Mixed: stripes 0 | 1 | 2-3 of width 1, 1, 2: perimeters 10, 10, 12, areas 4, 4, 8.
-  Plan mixed(g, 3, test::stripe_assignment(4, 4, 4));
-  for (UnitIndex u = 0; u < 16; ++u)
-    if (mixed.district_of(u) == 3) mixed.move(u, 2);
+  std::vector<DistrictIndex> labels = test::stripe_assignment(4, 4, 4);
+  for (DistrictIndex& d : labels) d = std::min<DistrictIndex>(d, 2);
+  const Plan mixed(g, 3, labels);
   MeasureEvaluator three(g, 3, MeasureSpec{});
   three.evaluate(mixed);
   EXPECT_NEAR(scalar(three, "compactness.polsby_popper_min"), 16 * pi / 100, 1e-15);
@@ -280,7 +282,8 @@ TEST(MeasureEvaluator, ADistrictWithoutVotesMakesTheShareMeasuresNaN) {
   for (const char* name : {"mean_median", "partisan_bias", "declination", "competitive_districts"})
     EXPECT_TRUE(std::isnan(scalar(m, std::string("election.e.") + name))) << name;
   EXPECT_TRUE(std::isnan(m.sorted_vector(0)[2]));
-  EXPECT_EQ(m.sorted_vector(0)[0], 0.25);
+  EXPECT_EQ(m.sorted_vector(0)[0], 2.0 / 6.0);
+  EXPECT_EQ(m.sorted_vector(0)[1], 0.75);
 }
 
 // 4 x 4 grid, counties the four 2 x 2 blocks; municipalities: m0 = the top row, m1 = unit 15,
