@@ -72,7 +72,7 @@ TEST(PartisanMeasures, HandWorkedFiveDistricts) {
   std::vector<double> shares(5);
   const double v = vote_shares(a, b, shares);
   EXPECT_NEAR(v, 0.51, 1e-15);
-  sort_shares(shares);
+  ShareSorter(shares.size()).sort(shares);
   EXPECT_NEAR(mean_median(shares), -0.06, 1e-15);
   EXPECT_NEAR(partisan_bias(shares, v), -0.1, 1e-15);
 }
@@ -86,7 +86,7 @@ TEST(PartisanMeasures, HandWorkedUnequalTurnoutAndTies) {
   std::vector<double> shares(4);
   const double v = vote_shares(a, b, shares);
   EXPECT_NEAR(v, 145.0 / 340.0, 1e-15);
-  sort_shares(shares);
+  ShareSorter(shares.size()).sort(shares);
   EXPECT_EQ(shares, (std::vector<double>{0.2, 0.4, 0.55, 0.75}));
   EXPECT_NEAR(mean_median(shares), 0.0, 1e-15);
   EXPECT_NEAR(partisan_bias(shares, v), 0.0, 1e-15);
@@ -119,6 +119,31 @@ TEST(Declination, HandWorkedAgainstWarringtonsFormula) {
   // Undefined when one party wins every district.
   EXPECT_TRUE(std::isnan(declination(std::vector<double>{0.55, 0.6, 0.7})));
   EXPECT_TRUE(std::isnan(declination(std::vector<double>{0.2, 0.4, 0.5})));
+}
+
+// ---- Sorting (std::sort as the reference) ----
+
+// Shares in [0, 1] with ties, NaN, and values outside [0, 1] (a count over a smaller column).
+TEST(ShareSorter, AgreesWithStdSortAndPutsNaNLast) {
+  Rng rng = make_stream(13, 2);
+  ShareSorter sorter(300);
+  for (std::size_t n = 0; n <= 300; n += 1 + n / 7) {
+    std::vector<double> shares(n);
+    for (double& x : shares) {
+      const std::uint32_t r = rng() % 12;
+      x = r == 0 ? std::nan("") : r == 1 ? 1.0 + rng() % 7 : r == 2 ? -0.25 : static_cast<double>(rng() % 50) / 49.0;
+    }
+    std::vector<double> want;
+    for (const double x : shares)
+      if (!std::isnan(x)) want.push_back(x);
+    std::sort(want.begin(), want.end());
+    const std::size_t numbers = want.size();
+    sorter.sort(shares);
+    for (std::size_t i = 0; i < n; ++i) {
+      if (i < numbers) EXPECT_EQ(shares[i], want[i]) << n << " " << i;
+      else EXPECT_TRUE(std::isnan(shares[i])) << n << " " << i;
+    }
+  }
 }
 
 // ---- Counts in bands and above thresholds ----

@@ -9,6 +9,7 @@
 // The pure functions take per-district numbers; MeasureEvaluator applies them to a Plan with
 // buffers made once, so evaluate() allocates nothing (it runs on every recorded plan).
 #include <cstddef>
+#include <cstdint>
 #include <optional>
 #include <span>
 #include <string>
@@ -20,7 +21,7 @@
 
 namespace planmill {
 
-// ---- Pure functions. "sorted" spans are ascending with any NaN last (sort_shares); a sorted
+// ---- Pure functions. "sorted" spans are ascending with any NaN last (ShareSorter); a sorted
 // span ending in NaN (a district without votes or without denominator) gives NaN. ----
 
 struct Seats {
@@ -39,8 +40,17 @@ struct Seats {
 double vote_shares(std::span<const double> votes_a, std::span<const double> votes_b,
                    std::span<double> shares) noexcept;
 
-// Ascending, NaN last.
-void sort_shares(std::span<double> shares) noexcept;
+// Sorts shares ascending, NaN last, with buffers made once for up to `capacity` values (shares
+// are expected in [0, 1]; others are sorted too, only more slowly).
+class ShareSorter {
+ public:
+  explicit ShareSorter(std::size_t capacity = 0);
+  void sort(std::span<double> shares) noexcept;  // shares.size() <= capacity; no allocation
+
+ private:
+  std::vector<double> scratch_;
+  std::vector<std::uint32_t> bucket_;
+};
 
 // median - mean of A's district shares (unweighted mean).
 [[nodiscard]] double mean_median(std::span<const double> sorted_shares) noexcept;
@@ -144,7 +154,8 @@ class MeasureEvaluator {
   std::vector<std::string> scalar_names_, vector_names_;
   std::vector<double> scalars_;
   std::vector<double> vectors_;         // vector v at [v * k, (v + 1) * k)
-  std::vector<double> votes_a_, votes_b_;  // per district, scratch
+  std::vector<double> votes_a_, votes_b_;  // per district
+  ShareSorter sorter_;
   SplitTally own_counties_, own_municipalities_;
 };
 
