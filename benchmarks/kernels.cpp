@@ -3,6 +3,10 @@
 // One proposal = one Chain::step(), whatever its outcome (accepted, rejected, no balanced cut,
 // invalid). Counters report the outcome fractions. BM_TreeCount / BM_TreeCountEigen time the
 // spanning-tree count that merge-split needs for γ != 1, ours and Eigen's, on regions of that state.
+// BM_Measures times MeasureEvaluator::evaluate on recombination plans of that state (default
+// measures: 2 elections, 1 group, compactness, county and municipality splits), /0 with the
+// chain's split tallies, /1 recounting the splits; BM_RecombinationWithMeasures is a recombination
+// step followed by evaluate, as a run recording every step would do.
 //   build/benchmarks/bench_kernels --benchmark_min_time=3
 #include <benchmark/benchmark.h>
 #include <unistd.h>
@@ -18,6 +22,7 @@
 #include "planmill/chain/chain.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
+#include "planmill/measures/measures.hpp"
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/synth/synth.hpp"
 #include "planmill/tree/region.hpp"
@@ -72,6 +77,51 @@ void run_kernel(benchmark::State& bench, KernelKind kind, double gamma, double c
 }
 
 void BM_Recombination(benchmark::State& s) { run_kernel(s, KernelKind::recombination, 0.0, 0.0); }
+
+ChainSetup recombination_setup(const State& s) {
+  ChainSetup setup;
+  setup.graph = s.graph;
+  setup.rules.population_deviation = 0.05;
+  setup.kernel.kind = KernelKind::recombination;
+  return setup;
+}
+
+SplitSources tracked_splits(const ChainState& state) {
+  return {&state.rules.county_tally(), &state.rules.municipality_tally()};
+}
+
+void BM_Measures(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  Chain chain(recombination_setup(s), s.start);
+  for (int i = 0; i < 2000; ++i) chain.step();
+  std::vector<ChainState> states;  // 64 plans, 50 steps apart
+  for (int p = 0; p < 64; ++p) {
+    for (int i = 0; i < 50; ++i) chain.step();
+    states.push_back(chain.state());
+  }
+  MeasureEvaluator measures(s.graph, 100, default_measure_spec(*s.graph));
+  const bool tracked = bench.range(0) == 0;
+  std::size_t p = 0;
+  for (auto _ : bench) {
+    measures.evaluate(states[p].plan, tracked ? tracked_splits(states[p]) : SplitSources{});
+    benchmark::DoNotOptimize(measures.scalars().data());
+    if (++p == states.size()) p = 0;
+  }
+  bench.counters["scalars"] = static_cast<double>(measures.scalar_names().size());
+  bench.counters["sorted_vectors"] = static_cast<double>(measures.vector_names().size());
+}
+
+void BM_RecombinationWithMeasures(benchmark::State& bench) {
+  const State& s = benchmark_state();
+  Chain chain(recombination_setup(s), s.start);
+  for (int i = 0; i < 2000; ++i) chain.step();
+  MeasureEvaluator measures(s.graph, 100, default_measure_spec(*s.graph));
+  for (auto _ : bench) {
+    benchmark::DoNotOptimize(chain.step());
+    measures.evaluate(chain.state().plan, tracked_splits(chain.state()));
+    benchmark::DoNotOptimize(measures.scalars().data());
+  }
+}
 void BM_MergeSplitTreeLaw(benchmark::State& s) { run_kernel(s, KernelKind::merge_split, 1.0, 0.0); }
 void BM_MergeSplitUniform(benchmark::State& s) { run_kernel(s, KernelKind::merge_split, 0.0, 0.0); }
 void BM_MergeSplitHalfGamma(benchmark::State& s) {
@@ -173,6 +223,8 @@ void BM_TreeCountEigen(benchmark::State& bench) {
 }
 
 BENCHMARK(BM_Recombination)->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_RecombinationWithMeasures)->Unit(benchmark::kMicrosecond);
+BENCHMARK(BM_Measures)->Arg(0)->Arg(1)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_MergeSplitTreeLaw)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_MergeSplitUniform)->Unit(benchmark::kMicrosecond);
 BENCHMARK(BM_MergeSplitHalfGamma)->Unit(benchmark::kMicrosecond);

@@ -64,33 +64,19 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
       throw std::invalid_argument("group-share term names count column " +
                                   std::to_string(t.column) +
                                   ", the map has " + std::to_string(g.count_column_count()));
-  track_counties_ = rules_.county_splits_max.has_value() || rules_.county_splits_weight != 0.0;
-  if (track_counties_ && !g.has_counties())
+  const bool county_rules = rules_.county_splits_max.has_value() || rules_.county_splits_weight != 0.0;
+  if (county_rules && !g.has_counties())
     throw std::invalid_argument("county rules need county codes, the map has none");
-  // Split counts are cheap and an observable, so track them whenever the map has counties.
-  track_counties_ = g.has_counties();
-  if (track_counties_) {
-    county_of_ = g.counties().code.data();
-    county_count_ = g.counties().names.size();
-    for (std::uint32_t c : g.counties().code)
-      county_count_ = std::max<std::size_t>(county_count_, c + 1);
-  }
+  // Split counts are cheap, an observable and a measure, so keep them whenever the map has codes.
+  if (g.has_counties()) counties_ = SplitTally(plan, g.counties());
+  if (g.has_municipalities()) municipalities_ = SplitTally(plan, g.municipalities());
   bounds_ = population_bounds(g.total_population(), k_, rules_.population_tolerance);
   reset(plan);
 }
 
 void RuleTracker::reset(const Plan& plan) {
-  if (track_counties_) {
-    county_district_units_.assign(county_count_ * k_, 0);
-    county_district_count_.assign(county_count_, 0);
-    splits_ = 0;
-    for (UnitIndex u = 0; u < plan.unit_count(); ++u) {
-      const std::size_t c = county_of_[u];
-      if (county_district_units_[c * k_ + plan.district_of(u)]++ == 0)
-        ++county_district_count_[c];
-    }
-    for (std::uint32_t n : county_district_count_) splits_ += n >= 2 ? 1 : 0;
-  }
+  counties_.reset(plan);
+  municipalities_.reset(plan);
   group_met_.assign(rules_.group_share.size() * k_, 0);
   group_met_count_.assign(rules_.group_share.size(), 0);
   for (DistrictIndex d = 0; d < k_; ++d) update_group_terms(plan, d);
@@ -117,12 +103,8 @@ void RuleTracker::move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept {
   const DistrictIndex from = plan.district_of(u);
   if (from == to) return;
   plan.move(u, to);
-  if (track_counties_) {
-    const std::size_t c = county_of_[u];
-    std::uint32_t& districts = county_district_count_[c];
-    if (--county_district_units_[c * k_ + from] == 0 && --districts == 1) --splits_;
-    if (county_district_units_[c * k_ + to]++ == 0 && ++districts == 2) ++splits_;
-  }
+  counties_.move(u, from, to);
+  municipalities_.move(u, from, to);
   update_group_terms(plan, from);
   update_group_terms(plan, to);
 }
@@ -135,7 +117,7 @@ void RuleTracker::assign(Plan& plan, std::span<const UnitIndex> units,
 double RuleTracker::energy(const Plan& plan) const noexcept {
   // Terms are integer counts times weights, so the sum is the same however we got here.
   double j = rules_.cut_edges_weight * static_cast<double>(plan.cut_edge_count()) +
-             rules_.county_splits_weight * static_cast<double>(splits_);
+             rules_.county_splits_weight * static_cast<double>(counties_.split());
   for (std::size_t t = 0; t < rules_.group_share.size(); ++t)
     j -= rules_.group_share[t].weight * static_cast<double>(group_met_count_[t]);
   return j;
@@ -144,7 +126,7 @@ double RuleTracker::energy(const Plan& plan) const noexcept {
 bool RuleTracker::hard_rules_ok(const Plan& plan) const noexcept {
   for (DistrictIndex d = 0; d < k_; ++d)
     if (!population_ok(plan, d)) return false;
-  return !rules_.county_splits_max || splits_ <= *rules_.county_splits_max;
+  return !rules_.county_splits_max || counties_.split() <= *rules_.county_splits_max;
 }
 
 std::string RuleTracker::describe_violations(const Plan& plan) const {
@@ -168,8 +150,8 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
       add(head + with_commas(p - bounds_.max) + " above the upper bound " +
           with_commas(bounds_.max));
   }
-  if (rules_.county_splits_max && splits_ > *rules_.county_splits_max)
-    add(std::to_string(splits_) + " counties are split, the limit is " +
+  if (rules_.county_splits_max && counties_.split() > *rules_.county_splits_max)
+    add(std::to_string(counties_.split()) + " counties are split, the limit is " +
         std::to_string(*rules_.county_splits_max));
   return text;
 }

@@ -28,7 +28,23 @@ struct GraphExtras {
   std::vector<std::pair<std::string, std::vector<double>>> counts;  // count columns, in order
   std::vector<std::size_t> groups;    // indices of count columns that are groups
   std::vector<double> area;
+  // Municipality codes (UnitCodes::kNone: in none; names "m0", "m1", ...), outer boundary lengths,
+  // and one shared boundary length per edge in the order the edges are given.
+  std::vector<std::uint32_t> municipality;
+  std::vector<double> outer_boundary;
+  std::vector<double> edge_length;
 };
+
+// Names "<prefix>0", "<prefix>1", ... for dense codes (kNone skipped).
+inline UnitCodes named_codes(const std::vector<std::uint32_t>& code, const std::string& prefix) {
+  UnitCodes codes;
+  codes.code = code;
+  std::uint32_t top = 0;
+  for (std::uint32_t c : code)
+    if (c != UnitCodes::kNone) top = std::max(top, c + 1);
+  for (std::uint32_t c = 0; c < top; ++c) codes.names.push_back(prefix + std::to_string(c));
+  return codes;
+}
 
 inline UnitGraph build_graph(std::uint32_t n, const EdgeList& edges, const GraphExtras& extras) {
   UnitGraphBuilder builder;
@@ -43,18 +59,22 @@ inline UnitGraph build_graph(std::uint32_t n, const EdgeList& edges, const Graph
   if (!extras.groups.empty()) builder.set_groups(extras.groups);
   if (!extras.county.empty()) {
     if (extras.county.size() != n) throw std::logic_error("county codes have the wrong size");
-    UnitCodes codes;
-    codes.code = extras.county;
-    std::uint32_t top = 0;
-    for (std::uint32_t c : codes.code) top = std::max(top, c + 1);
-    for (std::uint32_t c = 0; c < top; ++c) codes.names.push_back("c" + std::to_string(c));
-    builder.set_counties(std::move(codes));
+    builder.set_counties(named_codes(extras.county, "c"));
+  }
+  if (!extras.municipality.empty()) {
+    if (extras.municipality.size() != n) throw std::logic_error("municipality codes have the wrong size");
+    builder.set_municipalities(named_codes(extras.municipality, "m"));
   }
   if (!extras.area.empty()) builder.set_areas(extras.area);
+  if (!extras.outer_boundary.empty()) builder.set_outer_boundary(extras.outer_boundary);
+  if (!extras.edge_length.empty() && extras.edge_length.size() != edges.size())
+    throw std::logic_error("edge lengths have the wrong size");
   for (const auto& [a, b] : edges) {
     if (a >= n || b >= n) throw std::logic_error("edge end out of range");
-    (void)builder.add_edge(a, b);
   }
+  for (std::size_t i = 0; i < edges.size(); ++i)
+    (void)builder.add_edge(edges[i].first, edges[i].second,
+                           extras.edge_length.empty() ? -1.0 : extras.edge_length[i]);
   return std::move(builder).build();
 }
 

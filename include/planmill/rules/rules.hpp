@@ -15,6 +15,7 @@
 #include "planmill/base/ids.hpp"
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/plan/plan.hpp"
+#include "planmill/plan/split_tally.hpp"
 
 namespace planmill {
 
@@ -66,7 +67,11 @@ class RuleTracker {
     return plan.cut_edge_count();
   }
   // Counties meeting two or more districts.
-  [[nodiscard]] std::size_t county_splits() const noexcept { return splits_; }
+  [[nodiscard]] std::size_t county_splits() const noexcept { return counties_.split(); }
+  // Counties and municipalities by district, kept whenever the map has the codes (for measures);
+  // an empty tally (tracking() false) when it has not.
+  [[nodiscard]] const SplitTally& county_tally() const noexcept { return counties_; }
+  [[nodiscard]] const SplitTally& municipality_tally() const noexcept { return municipalities_; }
   [[nodiscard]] std::size_t group_term_count() const noexcept { return rules_.group_share.size(); }
   // Districts meeting group term t's threshold.
   [[nodiscard]] std::size_t group_districts(std::size_t term) const noexcept {
@@ -97,13 +102,7 @@ class RuleTracker {
   RuleSet rules_;
   std::size_t k_;
   PopulationBounds bounds_;
-  // Counties: units of county c in district d at [c * k + d], districts present per county.
-  bool track_counties_ = false;
-  const std::uint32_t* county_of_ = nullptr;
-  std::size_t county_count_ = 0;
-  std::vector<std::uint32_t> county_district_units_;
-  std::vector<std::uint32_t> county_district_count_;
-  std::size_t splits_ = 0;
+  SplitTally counties_, municipalities_;
   // Group terms: term t met in district d at [t * k + d]; districts meeting each term.
   std::vector<std::uint8_t> group_met_;
   std::vector<std::size_t> group_met_count_;
