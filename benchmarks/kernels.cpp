@@ -81,7 +81,7 @@ void BM_Recombination(benchmark::State& s) { run_kernel(s, KernelKind::recombina
 ChainSetup recombination_setup(const State& s) {
   ChainSetup setup;
   setup.graph = s.graph;
-  setup.rules.population_deviation = 0.05;
+  setup.rules.population_tolerance = 0.05;
   setup.kernel.kind = KernelKind::recombination;
   return setup;
 }
