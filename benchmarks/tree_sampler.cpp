@@ -241,7 +241,7 @@ void BM_RegionBuildFromPlan(benchmark::State& state) {
   for (auto _ : state) {
     const auto& [a, b] = s.pairs[i++ % s.pairs.size()];
     region.build(plan, a, b);
-    benchmark::DoNotOptimize(region.adjacency().data());
+    benchmark::DoNotOptimize(region.adjacency().targets().data());
   }
   state.SetItemsProcessed(state.iterations());
 }
@@ -257,7 +257,7 @@ void BM_RegionBuildFromSeeds(benchmark::State& state) {
   for (auto _ : state) {
     const auto& [a, b] = seeds[i++ % seeds.size()];
     region.build_from_seeds(plan, a, b);
-    benchmark::DoNotOptimize(region.adjacency().data());
+    benchmark::DoNotOptimize(region.adjacency().targets().data());
   }
   state.SetItemsProcessed(state.iterations());
 }

@@ -42,9 +42,7 @@ void BoundarySet::update_around(const Plan& plan, UnitIndex u) {
 }
 
 FlipKernel::FlipKernel(const KernelSettings& settings, const UnitGraph& graph) : settings_(settings) {
-  std::size_t max_degree = 0;
-  for (UnitIndex u = 0; u < graph.unit_count(); ++u) max_degree = std::max(max_degree, graph.degree(u));
-  neighbours_.reserve(max_degree);
+  neighbours_.reserve(graph.adjacency().max_degree());
 }
 
 std::size_t FlipKernel::collect_other_districts(const Plan& plan, UnitIndex u, DistrictIndex own) {

@@ -27,22 +27,21 @@ namespace {
 }  // namespace
 
 using codec::lower_part;
-using codec::max_degree;
 
 ChainEncoder::ChainEncoder(std::size_t unit_count, std::size_t district_count,
                            const UnitAdjacency* adjacency)
     : n_(unit_count),
       k_(district_count),
       width_(label_width(district_count)),
-      adjacency_(adjacency && !adjacency->empty() ? adjacency : nullptr),
-      lower_(adjacency_ ? lower_part(*adjacency_) : UnitAdjacency{}),
+      graph_records_(adjacency && !adjacency->empty()),
+      lower_(graph_records_ ? lower_part(adjacency->view()) : UnitAdjacency{}),
       previous_(unit_count),
       label_size_(district_count),
       guess_(district_count),
       marked_((unit_count + 63) / 64) {
   changed_.reserve(unit_count);
-  if (adjacency_) {
-    const std::size_t degree = max_degree(lower_);
+  if (graph_records_) {
+    const std::size_t degree = lower_.view().max_degree();
     candidate_.resize(degree);
     candidate_count_.resize(degree);
   }
@@ -51,7 +50,7 @@ ChainEncoder::ChainEncoder(std::size_t unit_count, std::size_t district_count,
 void ChainEncoder::encode_graph(std::span<const DistrictIndex> plan,
                                 std::vector<std::uint8_t>& out) {
   codec::RangeEncoder io(out);
-  codec::GraphModel model{n_,    k_,        lower_,    probabilities_,
+  codec::GraphModel model{n_,    k_,        lower_.view(), probabilities_,
                           tree_, position_, candidate_, candidate_count_};
   (void)model.run<true>(io, plan);
   io.finish();
@@ -70,7 +69,7 @@ RecordKind ChainEncoder::encode(std::span<const DistrictIndex> plan, bool self_c
                                 std::vector<std::uint8_t>& out) {
   if (self_contained || !have_previous_) {
     take_whole(plan);
-    if (adjacency_) {
+    if (graph_records_) {
       encode_graph(plan, out);
       return RecordKind::graph;
     }
@@ -197,7 +196,7 @@ RecordKind ChainEncoder::encode_delta(std::span<const DistrictIndex> next,
   // A graph record costs a full pass over the plan's adjacency, so it is tried only when the
   // deltas are big. Its bytes are already entropy-coded, while deflate about halves run and raw
   // label bytes; pair bits hardly compress. Compare on that footing.
-  if (adjacency_ && std::min(runs_size, pair_size) > n / 8) {
+  if (graph_records_ && std::min(runs_size, pair_size) > n / 8) {
     trial_.clear();
     encode_graph(next, trial_);
     const std::size_t graph_size = trial_.size();

@@ -17,6 +17,7 @@
 #include <vector>
 
 #include "planmill/base/ids.hpp"
+#include "planmill/graph/adjacency.hpp"
 #include "planmill/store/plan_codec.hpp"
 #include "store/fenwick.hpp"
 #include "store/range_coder.hpp"
@@ -42,7 +43,7 @@ inline constexpr std::size_t kDirectRankLabels = 512;
 // the decoded one. For the encoder `plan` holds the labels; the decoder fills it unit by unit.
 struct GraphModel {
   std::size_t n, k;
-  const UnitAdjacency& adjacency;  // lower part only: neighbours v < u (lower_part())
+  AdjacencyView adjacency;  // lower part only: neighbours v < u (lower_part())
   std::vector<std::uint16_t>& probabilities;
   std::vector<std::uint32_t>& tree;
   std::vector<std::uint32_t>& position;
@@ -64,8 +65,8 @@ struct GraphModel {
       if (use_tree) fenwick.add(n + d, 1);
     }
     // Raw pointers: the coder's byte stores may alias anything, so keep the bases in registers.
-    const std::uint64_t* const offsets = adjacency.offsets.data();
-    const std::uint32_t* const neighbors = adjacency.neighbors.data();
+    const std::uint64_t* const offsets = adjacency.offsets().data();
+    const std::uint32_t* const neighbors = adjacency.targets().data();
     std::uint16_t* const probs = probabilities.data();
     DistrictIndex* const cand = candidate.data();
     std::uint32_t* const cnt = candidate_count.data();

@@ -16,14 +16,12 @@
 namespace planmill::codec {
 
 // The neighbours v < u of every unit u, the ones already coded when u is.
-[[nodiscard]] UnitAdjacency lower_part(const UnitAdjacency& adjacency);
-// The largest neighbour count of a unit.
-[[nodiscard]] std::size_t max_degree(const UnitAdjacency& adjacency);
+[[nodiscard]] UnitAdjacency lower_part(AdjacencyView adjacency);
 
 // Decodes a graph record into `plan` (one label per unit); `adjacency` is the full adjacency
-// (checked with valid_for). False when the bytes are not a graph record of k labels.
+// (checked with valid_for; an empty view fails). False when the bytes are not a graph record of
+// k labels.
 [[nodiscard]] bool decode_graph_record(std::span<const std::uint8_t> bytes, std::size_t k,
-                                       const UnitAdjacency* adjacency,
-                                       std::span<DistrictIndex> plan);
+                                       AdjacencyView adjacency, std::span<DistrictIndex> plan);
 
 }  // namespace planmill::codec

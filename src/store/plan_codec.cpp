@@ -1,10 +1,8 @@
-// The plan codec's free functions: adjacency, full records and the decoder of every record kind;
+// The plan codec's free functions: the adjacency of a map, full records and the decoder of every record kind;
 // see plan_codec.hpp and docs/format.md. The pieces: codec_bytes.hpp (labels, varints, reader),
 // delta_record.* (pair and runs), graph_record.* with range_coder.hpp and fenwick.hpp (graph),
 // chain_encoder.cpp (ChainEncoder).
 #include "planmill/store/plan_codec.hpp"
-
-#include <algorithm>
 
 #include "planmill/graph/unit_graph.hpp"
 #include "store/codec_bytes.hpp"
@@ -13,24 +11,10 @@
 
 namespace planmill {
 
-bool UnitAdjacency::valid_for(std::size_t units) const noexcept {
-  if (offsets.size() != units + 1 || offsets.front() != 0 || offsets.back() != neighbors.size())
-    return false;
-  for (std::size_t u = 0; u < units; ++u)
-    if (offsets[u + 1] < offsets[u]) return false;
-  return std::all_of(neighbors.begin(), neighbors.end(),
-                     [&](std::uint32_t v) { return v < units; });
-}
-
 UnitAdjacency unit_adjacency(const UnitGraph& graph) {
-  UnitAdjacency a;
-  a.offsets.reserve(graph.unit_count() + 1);
-  a.offsets.push_back(0);
-  for (UnitIndex u = 0; u < graph.unit_count(); ++u) {
-    for (UnitIndex v : graph.neighbors(u)) a.neighbors.push_back(static_cast<std::uint32_t>(v));
-    a.offsets.push_back(a.neighbors.size());
-  }
-  return a;
+  const AdjacencyView view = graph.adjacency();
+  return {{view.offsets().begin(), view.offsets().end()},
+          {view.targets().begin(), view.targets().end()}};
 }
 
 void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
@@ -65,7 +49,8 @@ bool decode_record(RecordKind kind, std::span<const std::uint8_t> bytes, std::si
     case RecordKind::runs:
       return codec::decode_runs_record(bytes, width, district_count, plan);
     case RecordKind::graph:
-      return codec::decode_graph_record(bytes, district_count, adjacency, plan);
+      return codec::decode_graph_record(bytes, district_count,
+                                        adjacency ? adjacency->view() : AdjacencyView{}, plan);
   }
   return false;
 }

@@ -75,7 +75,7 @@ void Region::fill_adjacency(const UnitGraph& graph) {
       const std::uint32_t local = local_[w];
       if (local != kNotInRegion) adjacency_.push_back(local);
     }
-    offsets_.push_back(static_cast<std::uint32_t>(adjacency_.size()));
+    offsets_.push_back(adjacency_.size());
     const std::int64_t pop = graph.population(u);
     population_.push_back(pop);
     total_population_ += pop;
@@ -84,7 +84,7 @@ void Region::fill_adjacency(const UnitGraph& graph) {
 
 std::size_t Region::capacity_bytes() const noexcept {
   return local_.capacity() * sizeof(std::uint32_t) + global_.capacity() * sizeof(UnitIndex) +
-         offsets_.capacity() * sizeof(std::uint32_t) +
+         offsets_.capacity() * sizeof(AdjacencyView::Offset) +
          adjacency_.capacity() * sizeof(std::uint32_t) +
          population_.capacity() * sizeof(std::int64_t);
 }

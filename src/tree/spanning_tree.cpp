@@ -9,15 +9,15 @@ namespace planmill {
 
 namespace {
 
-bool connected(const Region& region, std::vector<std::uint8_t>& seen,
+bool connected(AdjacencyView graph, std::vector<std::uint8_t>& seen,
                std::vector<std::uint32_t>& queue) {
-  const std::uint32_t n = region.size();
+  const auto n = static_cast<std::uint32_t>(graph.vertex_count());
   seen.assign(n, 0);
   queue.clear();
   queue.push_back(0);
   seen[0] = 1;
   for (std::size_t head = 0; head < queue.size(); ++head) {
-    for (const std::uint32_t w : region.neighbors(queue[head])) {
+    for (const std::uint32_t w : graph.neighbors(queue[head])) {
       if (!seen[w]) {
         seen[w] = 1;
         queue.push_back(w);
@@ -35,10 +35,17 @@ void SpanningTreeSampler::sample(const Region& region, Rng& rng) {
 }
 
 void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t root) {
-  const std::uint32_t n = region.size();
+  sample(region.adjacency(), region.populations(), rng, root);
+}
+
+void SpanningTreeSampler::sample(AdjacencyView graph, std::span<const std::int64_t> population,
+                                 Rng& rng, std::uint32_t root) {
+  const auto n = static_cast<std::uint32_t>(graph.vertex_count());
+  if (population.size() != n)
+    throw std::invalid_argument("SpanningTreeSampler: not one population per vertex");
   if (root >= n) throw std::invalid_argument("SpanningTreeSampler: root outside the region");
   // A walk on a disconnected region would never end; the check costs one BFS.
-  if (!connected(region, in_tree_, queue_)) {
+  if (!connected(graph, in_tree_, queue_)) {
     throw std::invalid_argument("SpanningTreeSampler: region is not connected");
   }
   in_tree_.assign(n, 0);
@@ -46,8 +53,6 @@ void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t r
   parent_.resize(n);
   order_.clear();
 
-  const std::span<const std::uint32_t> offsets = region.offsets();
-  const std::span<const std::uint32_t> adjacency = region.adjacency();
   std::uint64_t steps = 0;
   root_ = root;
   in_tree_[root] = 1;
@@ -56,8 +61,9 @@ void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t r
   for (std::uint32_t start = 0; start < n; ++start) {
     std::uint32_t u = start;
     while (!in_tree_[u]) {
-      const std::uint32_t begin = offsets[u];
-      const std::uint32_t step = adjacency[begin + uniform_below(rng, offsets[u + 1] - begin)];
+      const std::span<const std::uint32_t> neighbors = graph.neighbors(u);
+      const std::uint32_t step =
+          neighbors[uniform_below(rng, static_cast<std::uint32_t>(neighbors.size()))];
       next_[u] = step;
       u = step;
       ++steps;
@@ -73,13 +79,12 @@ void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t r
   }
   walk_steps_ = steps;
 
-  const std::span<const std::int64_t> pop = region.populations();
-  subtree_.assign(pop.begin(), pop.end());
+  subtree_.assign(population.begin(), population.end());
   for (std::uint32_t k = n - 1; k > 0; --k) {
     const std::uint32_t v = order_[k];
     subtree_[parent_[v]] += subtree_[v];
   }
-  total_ = region.total_population();
+  total_ = subtree_[root];
 }
 
 std::span<const std::uint32_t> SpanningTreeSampler::balanced_cuts(std::int64_t lo,

@@ -34,32 +34,19 @@ void grow_with_headroom(std::vector<T>& v, std::size_t size) {
 
 }  // namespace
 
-double TreeCounter::log_count(const Region& region) {
-  return log_count(region.size(), region.offsets().data(), region.adjacency().data());
-}
-
-double TreeCounter::log_count(const UnitGraph& graph) {
-  const auto n = static_cast<std::uint32_t>(graph.unit_count());
-  offsets_.assign(1, 0);
-  adjacency_.clear();
-  for (UnitIndex u = 0; u < n; ++u) {
-    for (const UnitIndex w : graph.neighbors(u)) adjacency_.push_back(w);
-    offsets_.push_back(static_cast<std::uint32_t>(adjacency_.size()));
-  }
-  return log_count(n, offsets_.data(), adjacency_.data());
-}
-
 std::size_t TreeCounter::capacity_bytes() const noexcept {
   return bytes(order_) + bytes(position_) + bytes(queue_) + bytes(level_) + bytes(upper_start_) +
          bytes(upper_row_) + bytes(parent_) + bytes(ancestor_) + bytes(mark_) + bytes(stack_) +
          bytes(row_start_) + bytes(row_pattern_) + bytes(column_start_) + bytes(column_next_) +
-         bytes(l_row_) + bytes(l_value_) + bytes(work_) + bytes(offsets_) + bytes(adjacency_);
+         bytes(l_row_) + bytes(l_value_) + bytes(work_);
 }
 
-std::uint32_t TreeCounter::breadth_first(std::uint32_t root, const std::uint32_t* offsets,
-                                         const std::uint32_t* adjacency,
+std::uint32_t TreeCounter::breadth_first(std::uint32_t root, AdjacencyView graph,
                                          std::uint32_t& last_level_begin, std::uint32_t& depth) {
   // Cuthill-McKee visiting rule: the new neighbours of each vertex in increasing degree.
+  // Raw pointers into the view: about 10% faster here than neighbors() (BM_TreeCount/2).
+  const AdjacencyView::Offset* const offsets = graph.offsets().data();
+  const std::uint32_t* const targets = graph.targets().data();
   const auto degree = [offsets](std::uint32_t v) { return offsets[v + 1] - offsets[v]; };
   std::fill(level_.begin(), level_.end(), kNone);
   std::uint32_t tail = 0;
@@ -74,8 +61,8 @@ std::uint32_t TreeCounter::breadth_first(std::uint32_t root, const std::uint32_t
       last_level_begin = head;
     }
     const std::uint32_t first_new = tail;
-    for (std::uint32_t k = offsets[u]; k < offsets[u + 1]; ++k) {
-      const std::uint32_t w = adjacency[k];
+    for (AdjacencyView::Offset k = offsets[u]; k < offsets[u + 1]; ++k) {
+      const std::uint32_t w = targets[k];
       if (level_[w] != kNone) continue;
       level_[w] = level_[u] + 1;
       // Insertion sort by degree: few new neighbours per vertex on planar-like graphs.
@@ -90,16 +77,16 @@ std::uint32_t TreeCounter::breadth_first(std::uint32_t root, const std::uint32_t
   return tail;
 }
 
-bool TreeCounter::order_vertices(std::uint32_t n, const std::uint32_t* offsets,
-                                 const std::uint32_t* adjacency) {
-  const auto degree = [offsets](std::uint32_t v) { return offsets[v + 1] - offsets[v]; };
+bool TreeCounter::order_vertices(AdjacencyView graph) {
+  const auto n = static_cast<std::uint32_t>(graph.vertex_count());
+  const auto degree = [graph](std::uint32_t v) { return graph.degree(v); };
   if (queue_.size() < n) queue_.resize(n);
   level_.resize(n);
   std::uint32_t root = 0;
   for (std::uint32_t v = 1; v < n; ++v)
     if (degree(v) < degree(root)) root = v;
   std::uint32_t last_level_begin = 0, depth = 0;
-  if (breadth_first(root, offsets, adjacency, last_level_begin, depth) != n) return false;
+  if (breadth_first(root, graph, last_level_begin, depth) != n) return false;
   order_.resize(n);
   const auto keep_reversed_queue = [this, n] {
     for (std::uint32_t k = 0; k < n; ++k) order_[k] = queue_[n - 1 - k];
@@ -112,7 +99,7 @@ bool TreeCounter::order_vertices(std::uint32_t n, const std::uint32_t* offsets,
     for (std::uint32_t i = last_level_begin + 1; i < n; ++i)
       if (degree(queue_[i]) < degree(candidate)) candidate = queue_[i];
     std::uint32_t candidate_begin = 0, candidate_depth = 0;
-    (void)breadth_first(candidate, offsets, adjacency, candidate_begin, candidate_depth);
+    (void)breadth_first(candidate, graph, candidate_begin, candidate_depth);
     if (candidate_depth <= depth) break;
     depth = candidate_depth;
     last_level_begin = candidate_begin;
@@ -121,14 +108,14 @@ bool TreeCounter::order_vertices(std::uint32_t n, const std::uint32_t* offsets,
   return true;
 }
 
-double TreeCounter::log_count(std::uint32_t n, const std::uint32_t* offsets,
-                              const std::uint32_t* adjacency) {
+double TreeCounter::log_count(AdjacencyView graph) {
+  const auto n = static_cast<std::uint32_t>(graph.vertex_count());
   factor_entries_ = 0;
   if (n == 0) return kMinusInfinity;
   if (n == 1) return 0.0;
   // Connectivity first (the ordering's breadth-first search): a singular Laplacian minor may
   // still factor with a tiny pivot.
-  if (!order_vertices(n, offsets, adjacency)) return kMinusInfinity;
+  if (!order_vertices(graph)) return kMinusInfinity;
 
   // Reduced Laplacian: drop the vertex ordered last (the Cuthill-McKee root), keep the rest in
   // their order. Column j of the strict upper triangle holds the earlier neighbours of order_[j].
@@ -136,13 +123,12 @@ double TreeCounter::log_count(std::uint32_t n, const std::uint32_t* offsets,
   position_.resize(n);
   for (std::uint32_t k = 0; k < n; ++k) position_[order_[k]] = k;
   upper_start_.resize(m + 1);
-  upper_row_.resize(offsets[n]);
+  upper_row_.resize(graph.entry_count());
   std::uint32_t entries = 0;
   for (std::uint32_t j = 0; j < m; ++j) {
     upper_start_[j] = entries;
-    const std::uint32_t v = order_[j];
-    for (std::uint32_t k = offsets[v]; k < offsets[v + 1]; ++k) {
-      const std::uint32_t i = position_[adjacency[k]];
+    for (const std::uint32_t w : graph.neighbors(order_[j])) {
+      const std::uint32_t i = position_[w];
       if (i < j) upper_row_[entries++] = i;
     }
   }
@@ -202,7 +188,7 @@ double TreeCounter::log_count(std::uint32_t n, const std::uint32_t* offsets,
   double log_det = 0.0;
   for (std::uint32_t k = 0; k < m; ++k) {
     const std::uint32_t v = order_[k];
-    double d = static_cast<double>(offsets[v + 1] - offsets[v]);
+    double d = static_cast<double>(graph.degree(v));
     for (std::uint32_t p = upper_start_[k]; p < upper_start_[k + 1]; ++p)
       work_[upper_row_[p]] -= 1.0;
     for (std::uint32_t t = row_start_[k]; t < row_start_[k + 1]; ++t) {

@@ -1,7 +1,7 @@
 #pragma once
 // UnitGraph: the map as planmill sees it. Units with their attributes, and an undirected simple
-// graph of adjacency stored as CSR. Immutable once built; built only by UnitGraphBuilder, which
-// validates, merges duplicate edges and sorts neighbourhoods.
+// graph of adjacency stored as CSR and walked through AdjacencyView. Immutable once built; built
+// only by UnitGraphBuilder, which validates, merges duplicate edges and sorts neighbourhoods.
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -12,6 +12,7 @@
 #include <vector>
 
 #include "planmill/base/ids.hpp"
+#include "planmill/graph/adjacency.hpp"
 
 namespace planmill {
 
@@ -41,14 +42,18 @@ class UnitGraph {
   [[nodiscard]] std::size_t unit_count() const noexcept { return ids_.size(); }
   [[nodiscard]] std::size_t edge_count() const noexcept { return edge_ends_.size() / 2; }
 
+  // The adjacency, with the undirected edge behind each neighbour entry (edge ids).
+  [[nodiscard]] AdjacencyView adjacency() const noexcept {
+    return {offsets_, adjacency_, incident_};
+  }
+  // Shorthands for adjacency().neighbors(u), .incident_edges(u) and .degree(u).
   [[nodiscard]] std::span<const UnitIndex> neighbors(UnitIndex u) const noexcept {
-    return {adjacency_.data() + offsets_[u], adjacency_.data() + offsets_[u + 1]};
+    return adjacency().neighbors(u);
   }
-  // The undirected edge behind each entry of neighbors(u), in the same order.
   [[nodiscard]] std::span<const EdgeIndex> incident_edges(UnitIndex u) const noexcept {
-    return {incident_.data() + offsets_[u], incident_.data() + offsets_[u + 1]};
+    return adjacency().incident_edges(u);
   }
-  [[nodiscard]] std::size_t degree(UnitIndex u) const noexcept { return offsets_[u + 1] - offsets_[u]; }
+  [[nodiscard]] std::size_t degree(UnitIndex u) const noexcept { return adjacency().degree(u); }
   // Ends of edge e, first < second.
   [[nodiscard]] UnitIndex edge_first(EdgeIndex e) const noexcept { return edge_ends_[2 * e]; }
   [[nodiscard]] UnitIndex edge_second(EdgeIndex e) const noexcept { return edge_ends_[2 * e + 1]; }
@@ -104,7 +109,7 @@ class UnitGraph {
   std::vector<Election> elections_;
   UnitCodes counties_, municipalities_;
   std::vector<double> area_, perimeter_, outer_boundary_;
-  std::vector<std::size_t> offsets_{0};
+  std::vector<AdjacencyView::Offset> offsets_{0};
   std::vector<UnitIndex> adjacency_;
   std::vector<EdgeIndex> incident_;
   std::vector<UnitIndex> edge_ends_;

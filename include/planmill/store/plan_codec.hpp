@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "planmill/base/ids.hpp"
+#include "planmill/graph/adjacency.hpp"
 
 namespace planmill {
 
@@ -36,15 +37,17 @@ inline constexpr std::uint64_t kRecordKindCount = 5;
   return district_count <= 255 ? 1 : 2;
 }
 
-// Unit adjacency in CSR form: the neighbours of u are neighbors[offsets[u] .. offsets[u+1]).
+// The unit adjacency a plan file stores (docs/format.md, /unit_adjacency), walked through view():
+// the neighbours of u are neighbors[offsets[u] .. offsets[u+1]).
 // Empty offsets = no adjacency known (graph records are then never written).
 struct UnitAdjacency {
-  std::vector<std::uint64_t> offsets;
-  std::vector<std::uint32_t> neighbors;
+  std::vector<AdjacencyView::Offset> offsets;
+  std::vector<AdjacencyView::Vertex> neighbors;
+  [[nodiscard]] AdjacencyView view() const noexcept { return {offsets, neighbors}; }
   [[nodiscard]] bool empty() const noexcept { return offsets.empty(); }
-  // offsets has units + 1 entries, starts at 0, never decreases, ends at neighbors.size(), and
-  // every neighbour is a unit index.
-  [[nodiscard]] bool valid_for(std::size_t units) const noexcept;
+  [[nodiscard]] bool valid_for(std::size_t units) const noexcept {
+    return view().valid_for(units);
+  }
 };
 [[nodiscard]] UnitAdjacency unit_adjacency(const UnitGraph& graph);
 
@@ -62,7 +65,7 @@ void encode_full(std::span<const DistrictIndex> plan, std::size_t width,
 
 class ChainEncoder {
  public:
-  // `adjacency` (may be null or empty) must outlive the encoder.
+  // `adjacency` may be null or empty (no graph records); the encoder keeps the part it needs.
   ChainEncoder(std::size_t unit_count, std::size_t district_count, const UnitAdjacency* adjacency);
 
   // Appends the encoding of `plan` to `out` and returns its kind: a self-contained kind when
@@ -89,7 +92,7 @@ class ChainEncoder {
   void take_whole(std::span<const DistrictIndex> plan);
 
   std::size_t n_, k_, width_;
-  const UnitAdjacency* adjacency_;
+  bool graph_records_;   // an adjacency was given
   UnitAdjacency lower_;  // neighbours v < u of each unit u
   bool have_previous_ = false;
   std::vector<DistrictIndex> previous_;

@@ -1,6 +1,6 @@
 #pragma once
 // Region: the subgraph induced by a set of units (one or two districts, or any unit list), stored
-// as a local CSR adjacency over local indices 0..size()-1.
+// as a local CSR adjacency over local indices 0..size()-1, walked through AdjacencyView.
 // A Region is built again and again in a chain's hot loop: once its buffers have grown to the
 // largest region seen, build() allocates nothing.
 #include <cstdint>
@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "planmill/base/ids.hpp"
+#include "planmill/graph/adjacency.hpp"
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/plan/plan.hpp"
 
@@ -40,14 +41,15 @@ class Region {
   // Local index of a global unit, or kNotInRegion.
   [[nodiscard]] std::uint32_t local_of(UnitIndex unit) const noexcept { return local_[unit]; }
 
+  // The adjacency over local indices (no edge ids).
+  [[nodiscard]] AdjacencyView adjacency() const noexcept { return {offsets_, adjacency_}; }
+  // Shorthands for adjacency().neighbors(local) and .degree(local).
   [[nodiscard]] std::span<const std::uint32_t> neighbors(std::uint32_t local) const noexcept {
-    return {adjacency_.data() + offsets_[local], adjacency_.data() + offsets_[local + 1]};
+    return adjacency().neighbors(local);
   }
   [[nodiscard]] std::uint32_t degree(std::uint32_t local) const noexcept {
-    return offsets_[local + 1] - offsets_[local];
+    return adjacency().degree(local);
   }
-  [[nodiscard]] std::span<const std::uint32_t> offsets() const noexcept { return offsets_; }
-  [[nodiscard]] std::span<const std::uint32_t> adjacency() const noexcept { return adjacency_; }
 
   [[nodiscard]] std::int64_t population(std::uint32_t local) const noexcept {
     return population_[local];
@@ -65,7 +67,7 @@ class Region {
   const UnitGraph* graph_ = nullptr;
   std::vector<std::uint32_t> local_;  // per global unit; kNotInRegion outside the region
   std::vector<UnitIndex> global_;
-  std::vector<std::uint32_t> offsets_;
+  std::vector<AdjacencyView::Offset> offsets_;
   std::vector<std::uint32_t> adjacency_;
   std::vector<std::int64_t> population_;
   std::int64_t total_population_ = 0;

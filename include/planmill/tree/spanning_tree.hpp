@@ -15,6 +15,7 @@
 #include <vector>
 
 #include "planmill/base/random.hpp"
+#include "planmill/graph/adjacency.hpp"
 #include "planmill/tree/region.hpp"
 
 namespace planmill {
@@ -25,6 +26,9 @@ class SpanningTreeSampler {
 
   void sample(const Region& region, Rng& rng);  // root uniform over the region's vertices
   void sample(const Region& region, Rng& rng, std::uint32_t root);
+  // The same on any graph: its adjacency and a population per vertex.
+  void sample(AdjacencyView graph, std::span<const std::int64_t> population, Rng& rng,
+              std::uint32_t root);
 
   [[nodiscard]] std::uint32_t size() const noexcept {
     return static_cast<std::uint32_t>(parent_.size());

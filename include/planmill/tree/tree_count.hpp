@@ -11,6 +11,7 @@
 #include <cstdint>
 #include <vector>
 
+#include "planmill/graph/adjacency.hpp"
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/tree/region.hpp"
 
@@ -18,8 +19,9 @@ namespace planmill {
 
 class TreeCounter {
  public:
-  [[nodiscard]] double log_count(const Region& region);
-  [[nodiscard]] double log_count(const UnitGraph& graph);
+  [[nodiscard]] double log_count(AdjacencyView graph);
+  [[nodiscard]] double log_count(const Region& region) { return log_count(region.adjacency()); }
+  [[nodiscard]] double log_count(const UnitGraph& graph) { return log_count(graph.adjacency()); }
 
   // Entries of the last Cholesky factor L, diagonal included (for fill measurements).
   [[nodiscard]] std::size_t factor_entries() const noexcept { return factor_entries_; }
@@ -27,17 +29,13 @@ class TreeCounter {
   [[nodiscard]] std::size_t capacity_bytes() const noexcept;
 
  private:
-  // Local CSR adjacency over n vertices.
-  double log_count(std::uint32_t n, const std::uint32_t* offsets, const std::uint32_t* adjacency);
-  // Reverse Cuthill-McKee order of the n vertices into order_ (order_[k] = vertex eliminated
-  // k-th); false when the graph is disconnected.
-  bool order_vertices(std::uint32_t n, const std::uint32_t* offsets,
-                      const std::uint32_t* adjacency);
+  // Reverse Cuthill-McKee order of the graph's vertices into order_ (order_[k] = vertex
+  // eliminated k-th); false when the graph is disconnected.
+  bool order_vertices(AdjacencyView graph);
   // Breadth-first levels from root into queue_; returns the number of vertices reached and sets
   // last_level_begin to the start of the deepest level in queue_, depth to its level.
-  std::uint32_t breadth_first(std::uint32_t root, const std::uint32_t* offsets,
-                              const std::uint32_t* adjacency, std::uint32_t& last_level_begin,
-                              std::uint32_t& depth);
+  std::uint32_t breadth_first(std::uint32_t root, AdjacencyView graph,
+                              std::uint32_t& last_level_begin, std::uint32_t& depth);
 
   std::vector<std::uint32_t> order_, position_, queue_, level_;
   // Pattern of the strict upper triangle of the permuted reduced Laplacian, by columns (every
@@ -47,7 +45,6 @@ class TreeCounter {
   std::vector<std::uint32_t> parent_, ancestor_, mark_, stack_, row_start_, row_pattern_;
   std::vector<std::uint32_t> column_start_, column_next_, l_row_;
   std::vector<double> l_value_, work_;
-  std::vector<std::uint32_t> offsets_, adjacency_;  // for the UnitGraph overload
   std::size_t factor_entries_ = 0;
 };
 
