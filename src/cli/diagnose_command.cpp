@@ -28,6 +28,7 @@ struct DiagnoseOptions {
   std::string json;
   double rhat_max = 0.0, ess_min = 0.0;
   std::string min_records, drop_records;  // whole numbers, read by parse_whole_option
+  std::string old_burn_in;                // the former --burn-in, now only an error
   bool rhat_max_given = false, ess_min_given = false;
 };
 
@@ -134,6 +135,11 @@ int run_diagnose(const DiagnoseOptions& o) {
     throw InputError({{}, 0, {}}, "diagnose needs a run dir or --traces FILE.csv",
                      "e.g. planmill diagnose runs/demo");
   }
+  if (!o.old_burn_in.empty()) {
+    throw InputError({{}, 0, "--burn-in"}, "is now --drop-records",
+                     "give --drop-records " + o.old_burn_in +
+                         ": it counts records; burn-in means the job's steps before the first record");
+  }
   if (!o.traces.empty() && !o.run_dir.empty()) {
     throw InputError({o.run_dir, 0, {}}, "give either a run dir or --traces, not both");
   }
@@ -162,6 +168,7 @@ void add_diagnose_command(CLI::App& app, Action& action) {
   sub->add_option("--drop-records", options->drop_records,
                   "drop the first N records (rows) of every chain; counts records, not steps: a "
                   "run's records already start after its job's burn_in steps (default 0)");
+  sub->add_option("--burn-in", options->old_burn_in)->group("");  // hidden: says what replaced it
   sub->callback([&action, options, rhat, ess] {
     options->rhat_max_given = rhat->count() > 0;
     options->ess_min_given = ess->count() > 0;

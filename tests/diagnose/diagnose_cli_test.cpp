@@ -113,7 +113,7 @@ TEST_F(DiagnoseCli, ChainsWithDifferentMeansFailWithExitThree) {
   EXPECT_EQ(o.status, 3) << o.out << o.err;
   EXPECT_NE(o.out.find("verdict: fail"), std::string::npos) << o.out;
   // Worst first: the stuck observable is the first row of the table, and it fails.
-  const auto table_start = o.out.find('\n', o.out.find("judged  observable")) + 1;
+  const auto table_start = o.out.find('\n', o.out.find("\njudged ") + 1) + 1;
   EXPECT_EQ(o.out.compare(table_start, 23, "fail    districts_split"), 0) << o.out;
   EXPECT_NE(o.out.find("tempering"), std::string::npos) << o.out;
 }
@@ -128,6 +128,10 @@ TEST_F(DiagnoseCli, StricterThresholdsTurnPassIntoFail) {
   const Outcome all = run("--traces '" + traces + "' --drop-records 400");
   EXPECT_EQ(all.status, 2) << all.out << all.err;
   EXPECT_NE(all.err.find("--drop-records"), std::string::npos) << all.err;
+  // The former --burn-in counted records while the job's burn_in counts steps: it now says so.
+  const Outcome renamed = run("--traces '" + traces + "' --burn-in 300");
+  EXPECT_EQ(renamed.status, 2) << renamed.out << renamed.err;
+  EXPECT_NE(renamed.err.find("is now --drop-records"), std::string::npos) << renamed.err;
 }
 
 TEST_F(DiagnoseCli, UnequalChainLengthsNameFileAndLine) {

@@ -121,10 +121,10 @@ inline FixtureRun write_mixed_run(const std::filesystem::path& dir,
 
 // The table lines of `planmill diagnose` output: from its header to the verdict.
 inline std::string table_of(const std::string& out) {
-  const auto start = out.find("judged  observable");
+  const auto start = out.find("\njudged ");  // the header's first column
   const auto end = out.find("verdict:");
   if (start == std::string::npos || end == std::string::npos) return {};
-  return out.substr(start, end - start);
+  return out.substr(start + 1, end - start - 1);
 }
 
 }  // namespace planmill::test
