@@ -1,4 +1,4 @@
-// All diagnostics (diagnose_quantity) for 50 quantities x 16 chains x 100,000 draws on one core
+// All diagnostics (diagnose_observable) for 50 quantities x 16 chains x 100,000 draws on one core
 // (target < 10 s), then the R package posterior on the same data in the same run
 // (diagnostics_posterior.R; target: planmill >= 10x faster). Set PLANMILL_BENCH_POSTERIOR=0 to
 // skip R, PLANMILL_BENCH_DRAWS=N for a smaller run.
@@ -18,7 +18,7 @@
 #include <vector>
 
 #include "planmill/base/random.hpp"
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 
 namespace {
 
@@ -79,7 +79,7 @@ double run_all_diagnostics() {
   const double cpu_start = process_cpu_seconds();
   const auto start = std::chrono::steady_clock::now();
   for (std::size_t q = 0; q < kQuantities; ++q) {
-    auto d = planmill::diagnose::diagnose_quantity("q" + std::to_string(q),
+    auto d = planmill::diagnose::diagnose_observable("q" + std::to_string(q),
                                                    {data[q], draws, kChains});
     benchmark::DoNotOptimize(d);
   }

@@ -1,5 +1,5 @@
 # Times the R package posterior on the benchmark data of bench_diagnostics, computing the same
-# set as planmill's diagnose_quantity: rhat (bulk and folded), ess_bulk, ess_tail, mcse_mean,
+# set as planmill's diagnose_observable: rhat (bulk and folded), ess_bulk, ess_tail, mcse_mean,
 # mcse_quantile(0.05, 0.95), mean, sd.
 # Usage: Rscript diagnostics_posterior.R draws.bin quantities chains draws
 # draws.bin: little-endian doubles, quantity-major, each quantity column-major draws x chains.

@@ -20,7 +20,7 @@
 #include <vector>
 
 #include "planmill/chain/chain.hpp"
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/run/observables.hpp"
@@ -73,7 +73,7 @@ struct Observed {
 
 struct Result {
   std::string name;
-  diagnose::QuantityDiagnostics cut, seats;
+  diagnose::ObservableDiagnostics cut, seats;
   std::vector<double> chain_cut_means, chain_seat_means;
   double cpu_seconds = 0.0;
   std::vector<double> swap_acceptance;  // mean over ladders, per pair
@@ -98,8 +98,8 @@ struct Traces {
 };
 
 void finish(Result& r, Traces& t) {
-  r.cut = diagnose::diagnose_quantity("cut_edges", {t.cut, t.draws, t.chains});
-  r.seats = diagnose::diagnose_quantity("seats.gov.A", {t.seats, t.draws, t.chains});
+  r.cut = diagnose::diagnose_observable("cut_edges", {t.cut, t.draws, t.chains});
+  r.seats = diagnose::diagnose_observable("seats.gov.A", {t.seats, t.draws, t.chains});
   for (std::size_t c = 0; c < t.chains; ++c) {
     double a = 0, b = 0;
     for (std::size_t d = 0; d < t.draws; ++d)

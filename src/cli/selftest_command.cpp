@@ -7,6 +7,7 @@
 #include "cli/commands.hpp"
 #include "cli/whole_option.hpp"
 #include "planmill/io/atomic_file.hpp"
+#include "planmill/io/json_number.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/job/job_rules.hpp"
@@ -38,12 +39,11 @@ std::vector<SelftestCase> cases_from_job(const SelftestOptions& options) {
 }
 
 nlohmann::json to_json(const SelftestResult& r) {
-  auto number = [](double x) { return std::isfinite(x) ? nlohmann::json(x) : nlohmann::json(nullptr); };
   return {{"case", r.name},          {"kernel", r.kernel},
           {"valid_plans", r.valid_plans}, {"samples", r.samples},
           {"plans_visited", r.plans_visited}, {"all_valid", r.all_valid},
-          {"total_variation", number(r.total_variation)}, {"chi_square", number(r.chi_square)},
-          {"degrees_of_freedom", r.degrees_of_freedom}, {"p_value", number(r.p_value)},
+          {"total_variation", json_number(r.total_variation)}, {"chi_square", json_number(r.chi_square)},
+          {"degrees_of_freedom", r.degrees_of_freedom}, {"p_value", json_number(r.p_value)},
           {"acceptance", r.acceptance}, {"passed", r.passed}, {"note", r.note}};
 }
 

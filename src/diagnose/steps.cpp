@@ -77,7 +77,7 @@ void radix_sort(std::vector<std::uint64_t>& key, std::vector<std::uint32_t>& pay
 }
 
 // The normal score of a whole rank r depends only on r and S: a table per S, filled on first use
-// of each rank and kept per thread (S doubles), serves every quantity with the same draw count.
+// of each rank and kept per thread (S doubles), serves every observable with the same draw count.
 class ScoreTable {
  public:
   void reset(std::size_t s, double denominator) {

@@ -27,7 +27,7 @@ struct Matrix {
 [[nodiscard]] std::string_view unusable_reason(DrawMatrix x);
 
 // Every step that builds a matrix comes in two forms: returning a fresh one, or filling `out`
-// (reusing its storage, so a caller that keeps its matrices allocates nothing per quantity).
+// (reusing its storage, so a caller that keeps its matrices allocates nothing per observable).
 
 // Step 1, split: chain m becomes chains 2m (first half) and 2m+1 (second half); for an odd number
 // of draws the middle draw is dropped, as posterior does.

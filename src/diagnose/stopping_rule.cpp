@@ -2,13 +2,13 @@
 
 #include <vector>
 
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 
 namespace planmill::diagnose {
 namespace {
 
 std::string count_text(const Verdict& v) {
-  return std::to_string(v.failures.size()) + " of " + std::to_string(v.table.size()) + " quantities";
+  return std::to_string(v.failures.size()) + " of " + std::to_string(v.table.size()) + " observables";
 }
 
 }  // namespace
@@ -37,25 +37,25 @@ std::string StopCheck::summary() const {
   return "passes on the whole record (" + std::to_string(records) + " records per chain) and on " + half;
 }
 
-StopCheck check_stop(std::span<const NamedDraws> quantities, const VerdictRule& rule) {
+StopCheck check_stop(std::span<const NamedDraws> observables, const VerdictRule& rule) {
   StopCheck s;
   s.min_records = rule.min_records;
-  const std::size_t draws = quantities.empty() ? 0 : quantities.front().draws.draws;
-  const std::size_t chains = quantities.empty() ? 0 : quantities.front().draws.chains;
+  const std::size_t draws = observables.empty() ? 0 : observables.front().draws.draws;
+  const std::size_t chains = observables.empty() ? 0 : observables.front().draws.chains;
   s.records = draws;
   s.later_first = draws / 2;
   const std::size_t half = draws - s.later_first;
-  std::vector<QuantityDiagnostics> whole, later;
-  whole.reserve(quantities.size());
-  later.reserve(quantities.size());
+  std::vector<ObservableDiagnostics> whole, later;
+  whole.reserve(observables.size());
+  later.reserve(observables.size());
   std::vector<double> buffer(half * chains);
-  for (const NamedDraws& q : quantities) {
-    whole.push_back(diagnose_quantity(std::string(q.name), q.draws));
+  for (const NamedDraws& q : observables) {
+    whole.push_back(diagnose_observable(std::string(q.name), q.draws));
     for (std::size_t c = 0; c < chains; ++c) {
       const auto chain = q.draws.chain(c).subspan(s.later_first);
       std::copy(chain.begin(), chain.end(), buffer.begin() + static_cast<std::ptrdiff_t>(c * half));
     }
-    later.push_back(diagnose_quantity(std::string(q.name), {buffer, half, chains}));
+    later.push_back(diagnose_observable(std::string(q.name), {buffer, half, chains}));
   }
   s.whole = judge(std::move(whole), rule);
   s.later = judge(std::move(later), rule);

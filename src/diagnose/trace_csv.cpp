@@ -34,7 +34,7 @@ bool parse_number(std::string_view cell, double& out) {
 }
 
 struct ChainRows {
-  std::vector<std::vector<double>> columns;  // per quantity
+  std::size_t draws = 0;
   double last_draw = 0.0;
   std::size_t last_line = 0;
 };
@@ -43,7 +43,7 @@ struct ChainRows {
 struct Columns {
   std::size_t chain = 0, order = 0;
   std::string order_name;              // "draw", or "record" in planmill export's table
-  std::vector<std::size_t> quantities;  // in header order
+  std::vector<std::size_t> observables;  // in header order
 };
 
 Columns find_columns(const CsvTable& table, const std::string& path) {
@@ -54,7 +54,7 @@ Columns find_columns(const CsvTable& table, const std::string& path) {
   const bool has_order = header.size() > first + 1;
   if (!has_order || header[first] != "chain" ||
       (header[first + 1] != "draw" && header[first + 1] != "record")) {
-    throw InputError({path, 1, {}}, "header must be 'chain,draw,<quantity>,...' (it is " + table.header_list() + ")",
+    throw InputError({path, 1, {}}, "header must be 'chain,draw,<observable>,...' (it is " + table.header_list() + ")",
                      "planmill export's 'chain,record,step,...' and R's write.csv output are read too; "
                      "see docs/diagnostics.md");
   }
@@ -62,36 +62,36 @@ Columns find_columns(const CsvTable& table, const std::string& path) {
   c.order = first + 1;
   c.order_name = header[c.order];
   first += 2;
-  // planmill export writes the chain step beside the record number: an index, not a quantity.
+  // planmill export writes the chain step beside the record number: an index, not an observable.
   if (c.order_name == "record" && first < header.size() && header[first] == "step") ++first;
   for (std::size_t i = first; i < header.size(); ++i) {
     if (trim(header[i]).empty()) {
       throw InputError({path, 1, {}}, "column " + std::to_string(i + 1) + " has no name",
-                       "name every quantity in the header");
+                       "name every observable in the header");
     }
-    for (const std::size_t j : c.quantities) {
-      if (header[j] == header[i]) throw InputError({path, 1, header[i]}, "quantity named twice in header");
+    for (const std::size_t j : c.observables) {
+      if (header[j] == header[i]) throw InputError({path, 1, header[i]}, "observable named twice in header");
     }
-    c.quantities.push_back(i);
+    c.observables.push_back(i);
   }
-  if (c.quantities.empty()) {
-    throw InputError({path, 1, {}}, "the header names no quantity", "add one column per quantity");
+  if (c.observables.empty()) {
+    throw InputError({path, 1, {}}, "the header names no observable", "add one column per observable");
   }
   return c;
 }
 
 }  // namespace
 
-Traces read_traces(const std::string& path, std::size_t burn_in) {
+RecordedDraws read_traces(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError({path, 0, {}}, "cannot open the trace file", "check the path");
   std::ostringstream text;
   text << in.rdbuf();
   const CsvTable table = parse_csv_text(text.view(), path);
   const Columns columns = find_columns(table, path);
-  const std::size_t nq = columns.quantities.size();
-  Traces traces;
-  for (const std::size_t i : columns.quantities) traces.quantity_names.push_back(table.header[i]);
+  const std::size_t nq = columns.observables.size();
+  RecordedDraws traces;
+  for (const std::size_t i : columns.observables) traces.observables.push_back(table.header[i]);
 
   std::vector<ChainRows> chains;
   std::unordered_map<std::string, std::size_t> chain_index;
@@ -100,10 +100,11 @@ Traces read_traces(const std::string& path, std::size_t burn_in) {
     if (label.empty()) throw InputError({path, row.line, "chain"}, "empty chain label");
     auto [it, fresh] = chain_index.try_emplace(std::string(label), chains.size());
     if (fresh) {
-      chains.push_back({std::vector<std::vector<double>>(nq), 0.0, 0});
-      traces.chain_labels.emplace_back(label);
+      chains.push_back({});
+      traces.chains.push_back({std::string(label), {}});
     }
     ChainRows& chain = chains[it->second];
+    std::vector<double>& rows = traces.chains[it->second].rows;
     double draw = 0.0;
     const std::string& order_cell = row.fields[columns.order];
     if (!parse_number(order_cell, draw) || std::isnan(draw)) {
@@ -117,45 +118,32 @@ Traces read_traces(const std::string& path, std::size_t burn_in) {
     chain.last_draw = draw;
     chain.last_line = row.line;
     for (std::size_t q = 0; q < nq; ++q) {
-      const std::string& cell = row.fields[columns.quantities[q]];
+      const std::string& cell = row.fields[columns.observables[q]];
       double v = 0.0;
       if (!parse_number(cell, v)) {
-        throw InputError({path, row.line, traces.quantity_names[q]}, "'" + cell + "' is not a number");
+        throw InputError({path, row.line, traces.observables[q]}, "'" + cell + "' is not a number");
       }
-      chain.columns[q].push_back(v);
+      rows.push_back(v);
     }
+    ++chain.draws;
   }
   if (chains.empty()) throw InputError({path, 1, {}}, "no draws after the header");
-  const std::size_t draws = chains[0].columns[0].size();
+  const std::size_t draws = chains[0].draws;
   for (std::size_t c = 1; c < chains.size(); ++c) {
-    if (chains[c].columns[0].size() != draws) {
+    if (chains[c].draws != draws) {
       throw InputError({path, chains[c].last_line, "chain"},
-                       "chain '" + traces.chain_labels[c] + "' has " +
-                           std::to_string(chains[c].columns[0].size()) + " draws but chain '" +
-                           traces.chain_labels[0] + "' has " + std::to_string(draws),
+                       "chain '" + traces.chains[c].chain + "' has " + std::to_string(chains[c].draws) +
+                           " draws but chain '" + traces.chains[0].chain + "' has " +
+                           std::to_string(draws),
                        "every chain needs the same number of draws");
-    }
-  }
-  if (burn_in >= draws) {
-    throw InputError({path, 0, {}},
-                     "burn-in " + std::to_string(burn_in) + " leaves no draws (chains have " +
-                         std::to_string(draws) + ")");
-  }
-  traces.draws = draws - burn_in;
-  traces.values.assign(nq, std::vector<double>(traces.draws * chains.size()));
-  for (std::size_t q = 0; q < nq; ++q) {
-    for (std::size_t c = 0; c < chains.size(); ++c) {
-      std::copy(chains[c].columns[q].begin() + static_cast<std::ptrdiff_t>(burn_in),
-                chains[c].columns[q].end(),
-                traces.values[q].begin() + static_cast<std::ptrdiff_t>(c * traces.draws));
     }
   }
   return traces;
 }
 
-std::string single_chain_warning(const Traces& traces) {
-  if (traces.chain_labels.size() != 1) return {};
-  return "the traces hold one chain ('" + traces.chain_labels[0] +
+std::string single_chain_warning(const RecordedDraws& traces) {
+  if (traces.chains.size() != 1) return {};
+  return "the traces hold one chain ('" + traces.chains[0].chain +
          "'): R-hat then compares only its two halves and cannot show that chains from different "
          "starts agree; give at least two chains (Vehtari et al. 2021 advise four)";
 }

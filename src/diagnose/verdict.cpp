@@ -18,25 +18,32 @@ std::string number(double v, const char* format) {
 }  // namespace
 
 // Exact equality of the draws themselves (never sd == 0, which tiny varying values underflow to).
-bool is_constant(const QuantityDiagnostics& q) { return q.all_equal; }
+bool is_constant(const ObservableDiagnostics& q) { return q.all_equal; }
 
-bool lacks_tail_only(const QuantityDiagnostics& q) {
+bool lacks_tail_only(const ObservableDiagnostics& q) {
   return !is_constant(q) && !q.constant_within_chains && std::isnan(q.ess_tail) && !std::isnan(q.rhat) && !std::isnan(q.ess_bulk);
 }
 
-double severity(const QuantityDiagnostics& q, const VerdictRule& rule) {
+double severity(const ObservableDiagnostics& q, const VerdictRule& rule) {
   if (is_constant(q)) return 0.0;
   const double tail = lacks_tail_only(q) ? q.ess_bulk : q.ess_tail;
   if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || std::isnan(tail)) {
     return std::numeric_limits<double>::infinity();
   }
-  // Each ratio is 1 exactly at its threshold; a quantity is as bad as its worst ratio.
+  // Each ratio is 1 exactly at its threshold; an observable is as bad as its worst ratio.
   const double by_rhat = (q.rhat - 1.0) / (rule.rhat_max - 1.0);
   const double by_ess = rule.ess_min / std::max(std::min(q.ess_bulk, tail), 1e-300);
   return std::max(by_rhat, by_ess);
 }
 
-Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
+std::string_view judged_as(const Verdict& verdict, const ObservableDiagnostics& q) {
+  if (is_constant(q)) return "not judged";
+  const bool failed = std::any_of(verdict.failures.begin(), verdict.failures.end(),
+                                  [&](const Failure& f) { return f.name == q.name; });
+  return failed ? "fail" : "pass";
+}
+
+Verdict judge(std::vector<ObservableDiagnostics> table, const VerdictRule& rule) {
   std::stable_sort(table.begin(), table.end(), [&](const auto& a, const auto& b) {
     return severity(a, rule) > severity(b, rule);
   });
@@ -50,7 +57,7 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
     ++judged;
     const bool no_tail = lacks_tail_only(q);
     if (no_tail) {
-      verdict.remarks.push_back({q.name, "judged on R-hat and bulk ESS only: a discrete quantity "
+      verdict.remarks.push_back({q.name, "judged on R-hat and bulk ESS only: a discrete observable "
                                          "whose 5% or 95% quantile is an extreme value has no "
                                          "tail ESS"});
     }
@@ -72,10 +79,10 @@ Verdict judge(std::vector<QuantityDiagnostics> table, const VerdictRule& rule) {
 
     if (q.constant_within_chains) {
       f.suggestion = "each chain is stuck at its own value: run more steps; if chains stay put, "
-                     "use tempering or a kernel that changes this quantity, or start more chains "
+                     "use tempering or a kernel that changes this observable, or start more chains "
                      "from dispersed plans";
     } else if (std::isnan(q.rhat) || std::isnan(q.ess_bulk) || (!no_tail && std::isnan(q.ess_tail))) {
-      f.suggestion = "check the traces of this quantity (constant, non-finite or too short); "
+      f.suggestion = "check the traces of this observable (constant, non-finite or too short); "
                      "leave out observables that cannot vary";
     } else if (rhat_bad) {
       f.suggestion = "chains disagree: run more steps; if chains stay in different regions, "

@@ -365,10 +365,12 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
   }
   if (const toml::table* v = top.table("verdict")) {
     Section s(*v, "verdict", job.path);
-    job.verdict.rhat_max = s.number("rhat_max", 1.01, 1.0, 10.0);
-    job.verdict.ess_min = s.number("ess_min", 400.0, 1.0, 1e12);
+    const diagnose::VerdictRule defaults;
+    job.verdict.rhat_max = s.number("rhat_max", defaults.rhat_max, 1.0, 10.0);
+    job.verdict.ess_min = s.number("ess_min", defaults.ess_min, 1.0, 1e12);
     // At least 8: the later half of the record then holds 4 draws, the fewest the diagnostics take.
-    job.verdict.min_records = static_cast<std::uint64_t>(s.integer("min_records", 200, 8, 1'000'000'000'000));
+    job.verdict.min_records = static_cast<std::size_t>(
+        s.integer("min_records", static_cast<std::int64_t>(defaults.min_records), 8, 1'000'000'000'000));
     s.reject_unknown();
   }
   read_tempering(top, job);

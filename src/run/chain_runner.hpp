@@ -18,7 +18,7 @@
 #include <vector>
 
 #include "planmill/chain/chain.hpp"
-#include "planmill/diagnose/stopping_rule.hpp"
+#include "planmill/diagnose/convergence.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/rules/rules.hpp"
 #include "planmill/run/placement.hpp"
@@ -133,7 +133,7 @@ class ChainRunner {
 
   // until_converged.cpp
   std::optional<RunEnd> judge_block();
-  diagnose::StopCheck diagnose_committed() const;
+  diagnose::ConvergenceReport diagnose_committed() const;
 
   // progress.cpp
   void report_progress(const std::uint64_t* all, std::uint64_t steps_before,

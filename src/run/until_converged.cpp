@@ -1,12 +1,14 @@
 // --until-converged: after each block, rank 0 reads the committed records and the stopping rule
-// (diagnose/stopping_rule.hpp) decides whether the run stops or every chain goes on a block.
+// (diagnose/convergence.hpp, as `planmill diagnose`) decides whether the run stops or every chain goes on a block.
 #include "run/chain_runner.hpp"
 
 #include <spdlog/spdlog.h>
 
 #include <algorithm>
 
+#include "planmill/diagnose/convergence.hpp"
 #include "planmill/diagnose/verdict.hpp"
+#include "planmill/store/hdf5_handle.hpp"
 #include "planmill/run/run_reader.hpp"
 
 namespace planmill::runner {
@@ -19,18 +21,20 @@ std::optional<RunEnd> ChainRunner::judge_block() {
   on_root_then_agree(w_, [&] {
     // The stopping rule (diagnose/stopping_rule.hpp): long enough, and a passing verdict on the
     // whole record and on its later half alone, so a lucky early pass does not end the run.
-    const diagnose::StopCheck stop = diagnose_committed();
-    const diagnose::Verdict& verdict = stop.whole.pass && stop.long_enough() ? stop.later : stop.whole;
+    const diagnose::ConvergenceReport report = diagnose_committed();
+    const diagnose::StopCheck& stop = report.stop;
+    const diagnose::Verdict& verdict = stop.deciding();
     const std::uint64_t block = std::max<std::uint64_t>(
         loaded_->job.sampler.steps - loaded_->job.sampler.burn_in, state_.record_every);
-    if (stop.pass()) {
+    if (report.pass()) {
       decision[0] = 1;
     } else if (state_.target_steps >= options_.max_steps) {
       decision[0] = 2;
     } else {
       decision[1] = std::min(options_.max_steps, state_.target_steps + block);
     }
-    if (!stop.pass()) summary = "\n  stopping rule: " + stop.summary();
+    if (!report.pass()) summary = "\n  stopping rule: " + stop.summary();
+    for (const auto& l : report.left_out) summary += "\n  left out: chain " + l.chain + ": " + l.why;
     for (const auto& f : verdict.failures) {
       summary += "\n  " + f.name + ": " + f.problem;
     }
@@ -56,28 +60,20 @@ std::optional<RunEnd> ChainRunner::judge_block() {
   return converged ? RunEnd::converged : RunEnd::budget_spent;
 }
 
-diagnose::StopCheck ChainRunner::diagnose_committed() const {
+// The committed records, through the one path from records to a verdict (as `planmill
+// diagnose`): a chain whose observables cannot be read is left out and the verdict fails.
+diagnose::ConvergenceReport ChainRunner::diagnose_committed() const {
   RunReader reader(layout_.root.string());
-  const auto chains = reader.chains();
-  std::size_t draws = SIZE_MAX;
-  std::vector<std::vector<double>> rows;
-  for (const auto c : chains) {
-    rows.push_back(reader.read_observables(c));
-    draws = std::min(draws, reader.record_count(c));
-  }
-  const std::size_t width = names_.size();
-  const std::size_t cells = draws * chains.size();
-  std::vector<double> values(cells * width);
-  std::vector<diagnose::NamedDraws> quantities;
-  for (std::size_t j = 0; j < width; ++j) {
-    double* matrix = values.data() + j * cells;
-    for (std::size_t c = 0; c < chains.size(); ++c) {
-      for (std::size_t d = 0; d < draws; ++d) matrix[c * draws + d] = rows[c][d * width + j];
+  diagnose::RecordedDraws draws;
+  draws.observables = names_;
+  for (const auto c : reader.chains()) {
+    try {
+      draws.chains.push_back({std::to_string(c), reader.read_observables(c)});
+    } catch (const StoreError& e) {
+      draws.left_out.push_back({std::to_string(c), std::string("observables cannot be read: ") + e.what()});
     }
-    quantities.push_back({names_[j], {{matrix, cells}, draws, chains.size()}});
   }
-  const auto& v = loaded_->job.verdict;
-  return diagnose::check_stop(quantities, {v.rhat_max, v.ess_min, static_cast<std::size_t>(v.min_records)});
+  return diagnose::assess_convergence(draws, loaded_->job.verdict);
 }
 
 }  // namespace planmill::runner

@@ -3,14 +3,9 @@
 #include <cmath>
 #include <cstdio>
 
+#include "planmill/io/json_number.hpp"
+
 namespace planmill {
-namespace {
-
-nlohmann::json number_or_null(double x) {
-  return std::isfinite(x) ? nlohmann::json(x) : nlohmann::json();
-}
-
-}  // namespace
 
 nlohmann::json ladder_summary(const Ladder& ladder) {
   const LadderStatistics& s = ladder.statistics();
@@ -26,18 +21,18 @@ nlohmann::json ladder_summary(const Ladder& ladder) {
     out["pairs"].push_back({{"rungs", {r, r + 1}},
                             {"attempts", s.swap_attempts[r]},
                             {"accepted", s.swap_accepts[r]},
-                            {"acceptance", number_or_null(s.swap_acceptance(r))}});
+                            {"acceptance", json_number(s.swap_acceptance(r))}});
   out["time_on_rung"] = nlohmann::json::array();
   for (std::size_t i = 0; i < rungs; ++i) {
     nlohmann::json row = nlohmann::json::array();
-    for (std::size_t r = 0; r < rungs; ++r) row.push_back(number_or_null(s.time_fraction(i, r)));
+    for (std::size_t r = 0; r < rungs; ++r) row.push_back(json_number(s.time_fraction(i, r)));
     out["time_on_rung"].push_back(std::move(row));
   }
   out["up_fraction"] = nlohmann::json::array();
   for (std::size_t r = 0; r < rungs; ++r)
-    out["up_fraction"].push_back(number_or_null(s.up_fraction(r)));
+    out["up_fraction"].push_back(json_number(s.up_fraction(r)));
   out["round_trips"] = s.round_trips;
-  out["mean_round_trip_steps"] = number_or_null(s.mean_round_trip());
+  out["mean_round_trip_steps"] = json_number(s.mean_round_trip());
   return out;
 }
 

@@ -11,7 +11,7 @@
 #include "planmill/diagnose/ess_tail.hpp"
 #include "planmill/diagnose/mcse_mean.hpp"
 #include "planmill/diagnose/mcse_quantile.hpp"
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 #include "planmill/diagnose/rhat.hpp"
 #include "planmill/diagnose/rhat_bulk.hpp"
 #include "planmill/diagnose/rhat_folded.hpp"
@@ -27,7 +27,7 @@ void expect_all_nan(DrawMatrix x, const std::string& why) {
     EXPECT_TRUE(std::isnan(e.value));
     EXPECT_FALSE(e.reason.empty());
   }
-  const auto q = diagnose_quantity("q", x);
+  const auto q = diagnose_observable("q", x);
   EXPECT_TRUE(std::isnan(q.rhat));
   EXPECT_TRUE(std::isnan(q.ess_bulk));
   EXPECT_FALSE(q.note.empty());

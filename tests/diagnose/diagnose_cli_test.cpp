@@ -12,7 +12,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 #include "synthetic_draws.hpp"
 
 namespace planmill::diagnose {
@@ -50,19 +50,19 @@ class DiagnoseCli : public ::testing::Test {
     return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(out), slurp(err)};
   }
 
-  // Long CSV of the given quantities (all with the same chains and draws), chains labelled.
-  fs::path write_traces(const std::vector<testing::Draws>& quantities) const {
+  // Long CSV of the given observables (all with the same chains and draws), chains labelled.
+  fs::path write_traces(const std::vector<testing::Draws>& observables) const {
     const auto path = dir_ / "traces.csv";
     std::ofstream csv(path);
     csv << "chain,draw";
-    for (const auto& q : quantities) csv << ',' << q.name;
+    for (const auto& q : observables) csv << ',' << q.name;
     csv << '\n';
-    const auto& first = quantities.front();
+    const auto& first = observables.front();
     char number[40];
     for (std::size_t c = 0; c < first.chains; ++c) {
       for (std::size_t t = 0; t < first.draws; ++t) {
         csv << "run-" << char('a' + c) << ',' << 10 * t;
-        for (const auto& q : quantities) {
+        for (const auto& q : observables) {
           std::snprintf(number, sizeof number, "%.17g", q.values[c * q.draws + t]);
           csv << ',' << number;
         }
@@ -90,15 +90,16 @@ TEST_F(DiagnoseCli, WellMixedTracesPassAndJsonMatchesLibrary) {
 
   const auto json = nlohmann::json::parse(slurp(json_path));
   EXPECT_EQ(json["verdict"], "pass");
-  ASSERT_EQ(json["quantities"].size(), 2U);
-  for (const auto& q : json["quantities"]) {
-    const auto& source = q["name"] == "cut_edges" ? a : b;
-    const auto expected = diagnose_quantity(source.name, source.matrix());
+  ASSERT_EQ(json["observables"].size(), 2U);
+  for (const auto& q : json["observables"]) {
+    const auto& source = q["observable"] == "cut_edges" ? a : b;
+    const auto expected = diagnose_observable(source.name, source.matrix());
     // The CSV carries 17 significant digits, so the numbers agree to rounding.
-    EXPECT_NEAR(q["rhat"].get<double>(), expected.rhat, 1e-12);
-    EXPECT_NEAR(q["ess_bulk"].get<double>(), expected.ess_bulk, 1e-9 * expected.ess_bulk);
-    EXPECT_NEAR(q["ess_tail"].get<double>(), expected.ess_tail, 1e-9 * expected.ess_tail);
-    EXPECT_NEAR(q["mcse_mean"].get<double>(), expected.mcse_mean, 1e-9 * expected.mcse_mean);
+    EXPECT_EQ(q["judged"], "pass");
+    EXPECT_NEAR(q["mixing"]["rhat"].get<double>(), expected.rhat, 1e-12);
+    EXPECT_NEAR(q["mixing"]["ess_bulk"].get<double>(), expected.ess_bulk, 1e-9 * expected.ess_bulk);
+    EXPECT_NEAR(q["mixing"]["ess_tail"].get<double>(), expected.ess_tail, 1e-9 * expected.ess_tail);
+    EXPECT_NEAR(q["summary"]["mcse_mean"].get<double>(), expected.mcse_mean, 1e-9 * expected.mcse_mean);
   }
   for (const auto& entry : fs::directory_iterator(dir_)) {
     EXPECT_EQ(entry.path().string().find(".tmp."), std::string::npos) << "temp file left behind";
@@ -111,9 +112,9 @@ TEST_F(DiagnoseCli, ChainsWithDifferentMeansFailWithExitThree) {
   const Outcome o = run("--traces '" + write_traces({fine, stuck}).string() + "'");
   EXPECT_EQ(o.status, 3) << o.out << o.err;
   EXPECT_NE(o.out.find("verdict: fail"), std::string::npos) << o.out;
-  // Worst first: the stuck quantity is the first row of the table.
-  const auto table_start = o.out.find('\n', o.out.find("quantity")) + 1;
-  EXPECT_EQ(o.out.compare(table_start, 15, "districts_split"), 0) << o.out;
+  // Worst first: the stuck observable is the first row of the table, and it fails.
+  const auto table_start = o.out.find('\n', o.out.find("\njudged ") + 1) + 1;
+  EXPECT_EQ(o.out.compare(table_start, 23, "fail    districts_split"), 0) << o.out;
   EXPECT_NE(o.out.find("tempering"), std::string::npos) << o.out;
 }
 
@@ -122,8 +123,15 @@ TEST_F(DiagnoseCli, StricterThresholdsTurnPassIntoFail) {
   const auto traces = write_traces({a}).string();
   EXPECT_EQ(run("--traces '" + traces + "'").status, 0);
   EXPECT_EQ(run("--traces '" + traces + "' --ess-min 5000").status, 3);
-  // Burn-in drops draws: 300 of 400 left, the ESS falls below 1500.
-  EXPECT_EQ(run("--traces '" + traces + "' --burn-in 300 --ess-min 1000").status, 3);
+  // Dropped records: 100 of 400 left, the ESS falls below 1000.
+  EXPECT_EQ(run("--traces '" + traces + "' --drop-records 300 --ess-min 1000").status, 3);
+  const Outcome all = run("--traces '" + traces + "' --drop-records 400");
+  EXPECT_EQ(all.status, 2) << all.out << all.err;
+  EXPECT_NE(all.err.find("--drop-records"), std::string::npos) << all.err;
+  // The former --burn-in counted records while the job's burn_in counts steps: it now says so.
+  const Outcome renamed = run("--traces '" + traces + "' --burn-in 300");
+  EXPECT_EQ(renamed.status, 2) << renamed.out << renamed.err;
+  EXPECT_NE(renamed.err.find("is now --drop-records"), std::string::npos) << renamed.err;
 }
 
 TEST_F(DiagnoseCli, UnequalChainLengthsNameFileAndLine) {

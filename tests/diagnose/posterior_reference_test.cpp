@@ -18,7 +18,7 @@
 #include "planmill/diagnose/ess_tail.hpp"
 #include "planmill/diagnose/mcse_mean.hpp"
 #include "planmill/diagnose/mcse_quantile.hpp"
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 #include "planmill/diagnose/rhat.hpp"
 #include "planmill/diagnose/rhat_bulk.hpp"
 #include "planmill/diagnose/rhat_folded.hpp"
@@ -181,7 +181,7 @@ TEST(PosteriorReference, AllDiagnosticsAgreeWithPosterior) {
     expect_close(mcse_quantile(x, 0.95).value, r.at("mcse_q95"), kEssTol, "mcse_q95");
 
     // The one-pass table row must give the same numbers as the single functions.
-    const QuantityDiagnostics q = diagnose_quantity(d.name, x);
+    const ObservableDiagnostics q = diagnose_observable(d.name, x);
     expect_close(q.rhat, r.at("rhat"), kRhatTol, "table rhat");
     expect_close(q.ess_bulk, r.at("ess_bulk"), kEssTol, "table ess_bulk");
     expect_close(q.ess_tail, r.at("ess_tail"), kEssTol, "table ess_tail");

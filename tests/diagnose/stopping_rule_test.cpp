@@ -21,13 +21,13 @@ TEST(StoppingRule, AWellMixedRecordPassesWholeAndInItsLaterHalf) {
   EXPECT_EQ(s.records, 1000u);
   EXPECT_EQ(s.later_first, 500u);
   EXPECT_EQ(s.failed_part(), "");
-  // The later half is judged on its own draws: the same table as diagnose_quantity on them.
+  // The later half is judged on its own draws: the same table as diagnose_observable on them.
   const auto later = testing::ar1("cut_edges", 1000, 4, 0.3, 61);
   std::vector<double> tail;
   for (std::size_t c = 0; c < 4; ++c)
     tail.insert(tail.end(), later.values.begin() + static_cast<std::ptrdiff_t>(c * 1000 + 500),
                 later.values.begin() + static_cast<std::ptrdiff_t>(c * 1000 + 1000));
-  EXPECT_EQ(s.later.table[0].rhat, diagnose_quantity("cut_edges", {tail, 500, 4}).rhat);
+  EXPECT_EQ(s.later.table[0].rhat, diagnose_observable("cut_edges", {tail, 500, 4}).rhat);
 }
 
 // iid N(0, 1) draws, then in the last quarter of every chain a shift of +0.25 (chains 0, 1) or

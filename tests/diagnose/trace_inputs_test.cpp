@@ -41,8 +41,9 @@ class TraceInputs : public ::testing::Test {
     return {status, read_text(out), read_text(err)};
   }
 
-  // The quantities of `diagnose --json` by name: name -> {rhat, ess_bulk, ess_tail, mcse_mean}.
-  nlohmann::json diagnose_json(const std::string& args, const std::string& list_key) const {
+  // The observables of `diagnose --json` (one shape for a run dir and a trace file) by name:
+  // name -> {rhat, ess_bulk, ess_tail, mcse_mean}.
+  nlohmann::json diagnose_json(const std::string& args) const {
     const auto json_path = dir_ / "out.json";
     fs::remove(json_path);
     const Outcome o = diagnose(args + " --json '" + json_path.string() + "'");
@@ -50,28 +51,30 @@ class TraceInputs : public ::testing::Test {
     nlohmann::json by_name = nlohmann::json::object();
     if (!fs::exists(json_path)) return by_name;
     const nlohmann::json written = nlohmann::json::parse(read_text(json_path));
-    for (const auto& q : written[list_key]) {
-      by_name[q["name"].get<std::string>()] = {q["rhat"], q["ess_bulk"], q["ess_tail"], q["mcse_mean"]};
+    for (const auto& q : written["observables"]) {
+      const auto& mixing = q["mixing"];
+      by_name[q["observable"].get<std::string>()] = {mixing["rhat"], mixing["ess_bulk"], mixing["ess_tail"],
+                                                     q["summary"]["mcse_mean"]};
     }
     return by_name;
   }
 
-  // A plain trace CSV (chain,draw,<quantities>), LF line ends; `eol` and `bom` change that. Numbers
+  // A plain trace CSV (chain,draw,<observables>), LF line ends; `eol` and `bom` change that. Numbers
   // have 15 significant digits, as R writes them (write.csv), so a round trip through R is exact.
-  fs::path write_traces(const std::string& name, const std::vector<testing::Draws>& quantities,
+  fs::path write_traces(const std::string& name, const std::vector<testing::Draws>& observables,
                         const std::string& eol = "\n", bool bom = false) const {
     const auto path = dir_ / name;
     std::ofstream csv(path, std::ios::binary);
     if (bom) csv << "\xEF\xBB\xBF";
     csv << "chain,draw";
-    for (const auto& q : quantities) csv << ',' << q.name;
+    for (const auto& q : observables) csv << ',' << q.name;
     csv << eol;
-    const auto& first = quantities.front();
+    const auto& first = observables.front();
     char number[40];
     for (std::size_t c = 0; c < first.chains; ++c) {
       for (std::size_t t = 0; t < first.draws; ++t) {
         csv << "chain " << char('a' + c) << ',' << 5 * t;
-        for (const auto& q : quantities) {
+        for (const auto& q : observables) {
           std::snprintf(number, sizeof number, "%.15g", q.values[c * q.draws + t]);
           csv << ',' << number;
         }
@@ -99,10 +102,10 @@ TEST_F(TraceInputs, ReadsRWriteCsvOutput) {
 
   const Outcome o = diagnose("--traces '" + from_r.string() + "'");
   EXPECT_TRUE(o.status == 0 || o.status == 3) << o.out << o.err;
-  EXPECT_NE(o.out.find("3 chains x 300 draws, 2 quantities"), std::string::npos) << o.out << o.err;
-  const auto expected = diagnose_json("--traces '" + plain.string() + "'", "quantities");
+  EXPECT_NE(o.out.find("3 chains x 300 draws, 2 observables"), std::string::npos) << o.out << o.err;
+  const auto expected = diagnose_json("--traces '" + plain.string() + "'");
   ASSERT_EQ(expected.size(), 2u);
-  EXPECT_EQ(diagnose_json("--traces '" + from_r.string() + "'", "quantities"), expected);
+  EXPECT_EQ(diagnose_json("--traces '" + from_r.string() + "'"), expected);
 }
 
 TEST_F(TraceInputs, ReadsByteOrderMarkAndCrlf) {
@@ -111,10 +114,10 @@ TEST_F(TraceInputs, ReadsByteOrderMarkAndCrlf) {
   const auto windows = write_traces("windows.csv", q, "\r\n", true);
   const Outcome o = diagnose("--traces '" + windows.string() + "'");
   EXPECT_TRUE(o.status == 0 || o.status == 3) << o.out << o.err;
-  EXPECT_NE(o.out.find("2 chains x 200 draws, 1 quantities"), std::string::npos) << o.out << o.err;
-  const auto expected = diagnose_json("--traces '" + plain.string() + "'", "quantities");
+  EXPECT_NE(o.out.find("2 chains x 200 draws, 1 observables"), std::string::npos) << o.out << o.err;
+  const auto expected = diagnose_json("--traces '" + plain.string() + "'");
   ASSERT_EQ(expected.size(), 1u);
-  EXPECT_EQ(diagnose_json("--traces '" + windows.string() + "'", "quantities"), expected);
+  EXPECT_EQ(diagnose_json("--traces '" + windows.string() + "'"), expected);
 }
 
 // A small real run (planmill synth + planmill run), exported with planmill export: its
@@ -135,11 +138,11 @@ TEST_F(TraceInputs, ReadsPlanmillExportObservables) {
   const Outcome o = diagnose("--traces '" + observables.string() + "'");
   EXPECT_TRUE(o.status == 0 || o.status == 3) << o.out << o.err;
   EXPECT_EQ(o.err.find("warning"), std::string::npos) << o.err;
-  const auto from_csv = diagnose_json("--traces '" + observables.string() + "'", "quantities");
-  const auto from_run = diagnose_json("'" + run_dir.string() + "'", "observables");
+  const auto from_csv = diagnose_json("--traces '" + observables.string() + "'");
+  const auto from_run = diagnose_json("'" + run_dir.string() + "'");
   ASSERT_FALSE(from_run.empty());
   EXPECT_EQ(from_csv, from_run);
-  EXPECT_FALSE(from_csv.contains("step")) << "step is an index, not a quantity";
+  EXPECT_FALSE(from_csv.contains("step")) << "step is an index, not an observable";
 }
 
 TEST_F(TraceInputs, WarnsOnOneLineWhenThereIsOneChain) {

@@ -1,4 +1,4 @@
-// The verdict's handling of quantities that carry no evidence (constant, or discrete at an extreme
+// The verdict's handling of observables that carry no evidence (constant, or discrete at an extreme
 // quantile). Draws are built by hand so that the cases are exact.
 #include "planmill/diagnose/verdict.hpp"
 
@@ -18,8 +18,8 @@ std::vector<double> draws(std::size_t n, std::size_t chains, std::uint64_t seed,
   return v;
 }
 
-QuantityDiagnostics diagnose(const char* name, const std::vector<double>& v, std::size_t chains) {
-  return diagnose_quantity(name, {v, v.size() / chains, chains});
+ObservableDiagnostics diagnose(const char* name, const std::vector<double>& v, std::size_t chains) {
+  return diagnose_observable(name, {v, v.size() / chains, chains});
 }
 
 TEST(Verdict, AConstantQuantityIsNotJudgedAndDoesNotFail) {
@@ -47,7 +47,7 @@ TEST(Verdict, ADiscreteQuantityAtAnExtremeQuantileIsJudgedWithoutTailEss) {
   const auto v = judge({q}, {1.01, 400});
   EXPECT_TRUE(v.pass) << (v.failures.empty() ? "" : v.failures[0].problem);
   ASSERT_EQ(v.remarks.size(), 1U);
-  // The same quantity still fails on bulk ESS when the bar is higher than its bulk ESS.
+  // The same observable still fails on bulk ESS when the bar is higher than its bulk ESS.
   EXPECT_FALSE(judge({q}, {1.01, q.ess_bulk + 1}).pass);
 }
 

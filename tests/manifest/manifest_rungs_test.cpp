@@ -98,7 +98,7 @@ TEST(ManifestRungs, ATruncatedFileIsListedForTheChainAndForEachHotRung) {
   EXPECT_EQ(m["rung_problems"][0]["rung"], 1U);
   EXPECT_EQ(m["rung_problems"][1]["rung"], 2U);
   EXPECT_EQ(m["chains"][1]["rung_problems"].size(), 2U);
-  EXPECT_EQ(m["diagnostics"]["left_out"][0]["chain"], 1U);  // the ensemble's damage, as before
+  EXPECT_EQ(m["diagnostics"]["left_out"][0]["chain"], "1");  // the ensemble's damage, as before
 }
 
 TEST(ManifestRungs, MergeExitsThreeOnHotRungDamageAndDiagnoseIgnoresIt) {

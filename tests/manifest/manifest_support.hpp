@@ -119,12 +119,12 @@ inline FixtureRun write_mixed_run(const std::filesystem::path& dir,
       dir, options, [&rng](std::uint64_t, std::size_t, std::size_t) { return uniform01(rng); });
 }
 
-// The table lines of `planmill diagnose` output: from the "quantity" header to the verdict.
+// The table lines of `planmill diagnose` output: from its header to the verdict.
 inline std::string table_of(const std::string& out) {
-  const auto start = out.find("quantity");
+  const auto start = out.find("\njudged ");  // the header's first column
   const auto end = out.find("verdict:");
   if (start == std::string::npos || end == std::string::npos) return {};
-  return out.substr(start, end - start);
+  return out.substr(start + 1, end - start - 1);
 }
 
 }  // namespace planmill::test

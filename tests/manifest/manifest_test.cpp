@@ -1,6 +1,6 @@
 // The manifest of a fixture run: every key against what the fixture wrote, input hashes against
 // the run state, damaged files with the right chain and records, and the diagnostics section
-// against diagnose_quantity/judge on the same draws.
+// against diagnose_observable/judge on the same draws.
 #include "planmill/manifest/manifest.hpp"
 
 #include <gtest/gtest.h>
@@ -12,7 +12,7 @@
 
 #include "manifest_support.hpp"
 #include "planmill/base/error.hpp"
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 #include "planmill/io/file_hash.hpp"
 #include "planmill/version.hpp"
 
@@ -146,9 +146,9 @@ TEST(Manifest, ADamagedPlanFileIsNamedWithItsChainAndRecords) {
   EXPECT_TRUE(m["chains"][0]["problems"].empty());
   // The damaged chain is left out of the diagnostics, which then cannot pass.
   const auto& d = m["diagnostics"];
-  EXPECT_EQ(d["chains"], std::vector<std::uint64_t>{0});
+  EXPECT_EQ(d["chains"], std::vector<std::string>{"0"});
   ASSERT_EQ(d["left_out"].size(), 1U);
-  EXPECT_EQ(d["left_out"][0]["chain"], 1U);
+  EXPECT_EQ(d["left_out"][0]["chain"], "1");
   EXPECT_EQ(d["verdict"], "fail");
 }
 
@@ -172,21 +172,21 @@ void expect_same(double ours, double expected, const std::string& what) {
   }
 }
 
-TEST(RunDiagnostics, EqualsTheDiagnosticsOfTheSameDrawsAfterTheExtraBurnIn) {
+TEST(RunDiagnostics, EqualsTheDiagnosticsOfTheSameDrawsAfterTheDroppedRecords) {
   const test::ScratchDir scratch("planmill-manifest");
   const auto& dir = scratch.path;
   const auto run = test::write_fixture_run(dir, {.chains = 3, .ranks = 2, .segments = 2});
   const RunReader reader(dir.string());
-  const RunDiagnostics d = diagnose_run(reader, {1.05, 20.0}, {.burn_in = 7});
+  const RunDiagnostics d = diagnose_run(reader, {1.05, 20.0}, {.dropped_records = 7});
   EXPECT_EQ(d.draws, 33U);
   EXPECT_TRUE(d.notes.empty());
-  ASSERT_EQ(d.verdict.table.size(), 4U);
-  for (const auto& row : d.verdict.table) {
+  ASSERT_EQ(d.verdict().table.size(), 4U);
+  for (const auto& row : d.verdict().table) {
     const std::size_t q = static_cast<std::size_t>(
         std::find(reader.observable_names().begin(), reader.observable_names().end(), row.name) -
         reader.observable_names().begin());
     const auto values = column(run, q, 7, 33);
-    const auto expected = diagnose::diagnose_quantity(row.name, {values, 33, 3});
+    const auto expected = diagnose::diagnose_observable(row.name, {values, 33, 3});
     expect_same(row.rhat, expected.rhat, row.name + " rhat");
     expect_same(row.ess_bulk, expected.ess_bulk, row.name + " ess_bulk");
     expect_same(row.ess_tail, expected.ess_tail, row.name + " ess_tail");  // NaN for county_splits
@@ -197,69 +197,76 @@ TEST(RunDiagnostics, EqualsTheDiagnosticsOfTheSameDrawsAfterTheExtraBurnIn) {
 
 TEST(RunDiagnostics, ChainsOfUnequalLengthUseTheCommonPrefixAndSaySo) {
   const std::vector<std::string> names{"a", "b"};
-  std::vector<ChainTraces> chains(3);
+  std::vector<diagnose::ChainRecords> chains(3);
   for (std::size_t c = 0; c < 3; ++c) {
-    chains[c].chain = c;
+    chains[c].chain = std::to_string(c);
     const std::size_t n = 50 + 10 * c;
     for (std::size_t t = 0; t < n; ++t) {
       chains[c].rows.push_back(std::sin(static_cast<double>(t * (c + 3))));
       chains[c].rows.push_back(static_cast<double>((t * 7 + c) % 5));
     }
   }
-  const RunDiagnostics d = diagnose_traces(names, chains, {}, 0);
+  const RunDiagnostics d = diagnose::assess_convergence({names, chains, {}, 0}, {});
   EXPECT_EQ(d.draws, 50U);
-  EXPECT_EQ(d.records, (std::vector<std::uint64_t>{50, 60, 70}));
+  EXPECT_EQ(d.records, (std::vector<std::size_t>{50, 60, 70}));
   ASSERT_EQ(d.notes.size(), 1U);
   EXPECT_NE(d.notes[0].find("common prefix of 50"), std::string::npos) << d.notes[0];
   std::vector<double> a;
   for (const auto& c : chains) {
     for (std::size_t t = 0; t < 50; ++t) a.push_back(c.rows[2 * t]);
   }
-  const auto expected = diagnose::diagnose_quantity("a", {a, 50, 3});
-  const auto row = std::find_if(d.verdict.table.begin(), d.verdict.table.end(),
+  const auto expected = diagnose::diagnose_observable("a", {a, 50, 3});
+  const auto row = std::find_if(d.verdict().table.begin(), d.verdict().table.end(),
                                 [](const auto& q) { return q.name == "a"; });
-  ASSERT_NE(row, d.verdict.table.end());
+  ASSERT_NE(row, d.verdict().table.end());
   EXPECT_DOUBLE_EQ(row->rhat, expected.rhat);
   EXPECT_DOUBLE_EQ(row->ess_bulk, expected.ess_bulk);
 }
 
 TEST(RunDiagnostics, AConstantObservableIsNaNWithItsReasonAndNotJudgedAsTheTraceFormJudgesIt) {
-  std::vector<ChainTraces> chains(2);
-  std::vector<diagnose::QuantityDiagnostics> by_hand;
+  std::vector<diagnose::ChainRecords> chains(2);
   for (std::size_t c = 0; c < 2; ++c) {
-    chains[c].chain = c;
+    chains[c].chain = std::to_string(c);
     for (std::size_t t = 0; t < 100; ++t) {
       chains[c].rows.push_back(0.0);  // county_splits, always 0
       chains[c].rows.push_back(std::cos(static_cast<double>(t * t + 17 * c)));
     }
   }
   const diagnose::VerdictRule rule{1.5, 5.0};
-  const RunDiagnostics d = diagnose_traces({"county_splits", "energy"}, chains, rule);
-  const auto& constant = d.verdict.table.back();  // not judged: sorts last
+  const RunDiagnostics d = diagnose::assess_convergence({{"county_splits", "energy"}, chains, {}, 0}, rule);
+  const auto& constant = d.verdict().table.back();  // not judged: sorts last
   EXPECT_EQ(constant.name, "county_splits");
   EXPECT_TRUE(std::isnan(constant.rhat));
   EXPECT_EQ(constant.note, "all draws are equal");
   // One behaviour for both forms: the verdict is judge()'s on the same table.
-  const auto expected = diagnose::judge(d.verdict.table, rule);
-  EXPECT_EQ(d.verdict.pass, expected.pass);
-  EXPECT_EQ(d.verdict.failures.size(), expected.failures.size());
-  ASSERT_EQ(d.verdict.remarks.size(), 1U);
-  EXPECT_EQ(d.verdict.remarks[0].name, "county_splits");
+  const auto expected = diagnose::judge(d.verdict().table, rule);
+  EXPECT_EQ(d.verdict().pass, expected.pass);
+  EXPECT_EQ(d.verdict().failures.size(), expected.failures.size());
+  ASSERT_EQ(d.verdict().remarks.size(), 1U);
+  EXPECT_EQ(d.verdict().remarks[0].name, "county_splits");
   const json j = diagnostics_to_json(d);
-  EXPECT_TRUE(j["observables"][1]["rhat"].is_null());
+  EXPECT_EQ(j["observables"][1]["observable"], "county_splits");
+  EXPECT_EQ(j["observables"][1]["judged"], "not judged");
+  EXPECT_TRUE(j["observables"][1]["mixing"]["rhat"].is_null());
   EXPECT_EQ(j["observables"][1]["note"], "all draws are equal");
-  EXPECT_EQ(j["remarks"][0]["name"], "county_splits");
+  EXPECT_EQ(j["remarks"][0]["observable"], "county_splits");
 }
 
-TEST(RunDiagnostics, TooLargeABurnInLeavesNoDrawsAndEveryObservableSaysWhy) {
+// Bad input in every form (run dir, trace file): dropping every record is an error naming the
+// option, not an empty table.
+TEST(RunDiagnostics, DroppingEveryRecordIsAnErrorNamingTheOption) {
   const test::ScratchDir scratch("planmill-manifest");
   const auto& dir = scratch.path;
   test::write_fixture_run(dir, {.chains = 2, .ranks = 1, .segments = 1});
   const RunReader reader(dir.string());
-  const RunDiagnostics d = diagnose_run(reader, {}, {.burn_in = 25});
-  EXPECT_EQ(d.draws, 0U);
-  EXPECT_FALSE(d.pass());
-  for (const auto& row : d.verdict.table) EXPECT_FALSE(row.note.empty()) << row.name;
+  EXPECT_EQ(diagnose_run(reader, {}, {.dropped_records = 19}).draws, 1U);
+  try {
+    (void)diagnose_run(reader, {}, {.dropped_records = 20});
+    ADD_FAILURE() << "dropping all 20 records did not throw";
+  } catch (const InputError& e) {
+    EXPECT_NE(std::string(e.what()).find("--drop-records"), std::string::npos) << e.what();
+    EXPECT_NE(std::string(e.what()).find("(20 records)"), std::string::npos) << e.what();
+  }
 }
 
 TEST(VerdictRuleOfRun, ComesFromTheJobsVerdictSectionElseDefaults) {
@@ -292,14 +299,14 @@ TEST(Manifest, DiagnoseReplacesOnlyTheDiagnosticsSectionOfAnExistingManifest) {
   // No manifest yet: the whole manifest is built.
   EXPECT_TRUE(write_manifest_diagnostics(reader, problems, diagnose_run(reader, {})));
   json m = json::parse(test::slurp(dir / "manifest.json"));
-  EXPECT_EQ(m["diagnostics"]["burn_in"], 0U);
+  EXPECT_EQ(m["diagnostics"]["dropped_records"], 0U);
   m["run_id"] = "kept";  // a mark to see that the rest is left alone
   write_manifest(RunLayout{dir}, m);
   EXPECT_FALSE(
-      write_manifest_diagnostics(reader, problems, diagnose_run(reader, {}, {.burn_in = 3})));
+      write_manifest_diagnostics(reader, problems, diagnose_run(reader, {}, {.dropped_records = 3})));
   m = json::parse(test::slurp(dir / "manifest.json"));
   EXPECT_EQ(m["run_id"], "kept");
-  EXPECT_EQ(m["diagnostics"]["burn_in"], 3U);
+  EXPECT_EQ(m["diagnostics"]["dropped_records"], 3U);
   EXPECT_EQ(m["diagnostics"]["draws_per_chain"], 17U);
   // A manifest that is not JSON is rebuilt whole.
   std::ofstream(dir / "manifest.json") << "{ half";

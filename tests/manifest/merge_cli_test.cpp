@@ -127,7 +127,7 @@ TEST(DiagnoseRunDirCli, DamagedChainsAreLeftOutAndTheVerdictFails) {
 }
 
 // county_splits (observable 2) always 0, the others mixed. The verdict rule (verdict.hpp: a
-// quantity equal in every draw is not judged) is the same for both forms of diagnose.
+// observable equal in every draw is not judged) is the same for both forms of diagnose.
 TEST(DiagnoseRunDirCli, AConstantObservableIsNaNWithTheReasonAndNotJudged) {
   const test::ScratchDir scratch("planmill-diagnose-run-cli");
   const auto& dir = scratch.path;
@@ -142,13 +142,15 @@ TEST(DiagnoseRunDirCli, AConstantObservableIsNaNWithTheReasonAndNotJudged) {
   EXPECT_NE(o.out.find("county_splits: not judged"), std::string::npos) << o.out;
   EXPECT_NE(o.out.find("verdict: pass"), std::string::npos) << o.out;
   const json m = json::parse(test::slurp(dir / "run" / "manifest.json"));
-  EXPECT_TRUE(m["diagnostics"]["observables"][3]["rhat"].is_null());
-  EXPECT_EQ(m["diagnostics"]["remarks"][0]["name"], "county_splits");
+  EXPECT_EQ(m["diagnostics"]["observables"][3]["observable"], "county_splits");
+  EXPECT_EQ(m["diagnostics"]["observables"][3]["judged"], "not judged");
+  EXPECT_TRUE(m["diagnostics"]["observables"][3]["mixing"]["rhat"].is_null());
+  EXPECT_EQ(m["diagnostics"]["remarks"][0]["observable"], "county_splits");
   EXPECT_TRUE(m["diagnostics"]["failures"].empty());
 }
 
 // Internal consistency: the run dir form and the trace CSV form print the same table for the
-// same draws (burn-in included), because both end in diagnose_quantity and judge.
+// same draws (dropped records included), because both go through assess_convergence.
 TEST(DiagnoseRunDirCli, TableEqualsTheTraceFormOnTheSameDrawsExportedAsLongCsv) {
   const test::ScratchDir scratch("planmill-diagnose-run-cli");
   const auto& dir = scratch.path;
@@ -173,8 +175,8 @@ TEST(DiagnoseRunDirCli, TableEqualsTheTraceFormOnTheSameDrawsExportedAsLongCsv) 
       }
     }
   }
-  for (const char* burn_in : {"0", "11"}) {
-    const std::string rule = std::string(" --burn-in ") + burn_in + " --rhat-max 1.05 --ess-min 50";
+  for (const char* dropped : {"0", "11"}) {
+    const std::string rule = std::string(" --drop-records ") + dropped + " --rhat-max 1.05 --ess-min 50";
     const auto from_run = run_planmill(dir, "diagnose " + quoted(run_dir) + rule);
     const auto from_csv = run_planmill(dir, "diagnose --traces " + quoted(csv_path) + rule);
     EXPECT_EQ(from_run.status, from_csv.status) << from_run.out << from_csv.out;
@@ -228,7 +230,7 @@ TEST(RealRun, MergeAndDiagnoseAgreeWithTheRunReader) {
   // (verdict.hpp), as it would be for the same draws given as a trace CSV.
   o = run_planmill(dir, "diagnose " + quoted(dir / "run"));
   EXPECT_NE(o.out.find("energy: not judged"), std::string::npos) << o.out;
-  const auto energy = test::table_of(o.out).find("\nenergy ");
+  const auto energy = test::table_of(o.out).find("\nnot judged  energy ");
   ASSERT_NE(energy, std::string::npos) << o.out;
   EXPECT_NE(test::table_of(o.out).find("all draws are equal", energy), std::string::npos) << o.out;
 }

@@ -1,7 +1,7 @@
 // `mpiexec planmill run --until-converged` stops by the stopping rule (diagnose/stopping_rule.hpp):
 // only once every chain holds [verdict] min_records records and the verdict passes on the whole
 // record and on its later half alone. Each block end's check is recomputed here from the records
-// the run left, with the library's check_stop: every earlier check fails, the last one passes.
+// the run left, with the library's assess_convergence: every earlier check fails, the last one passes.
 #include <gtest/gtest.h>
 
 #include <fstream>
@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "../support/run_jobs.hpp"
-#include "planmill/diagnose/stopping_rule.hpp"
+#include "planmill/diagnose/convergence.hpp"
 #include "planmill/run/run_reader.hpp"
 #include "planmill/run/run_state.hpp"
 
@@ -20,22 +20,16 @@ namespace fs = std::filesystem;
 using test::shell;
 using test::read_text;
 
-// The rule's check on the first `records` records of every chain.
+// The rule's check on the first `records` records of every chain, by the one path the runner takes.
 diagnose::StopCheck check_prefix(const RunReader& reader, std::size_t records, const diagnose::VerdictRule& rule) {
-  const auto& names = reader.observable_names();
-  const auto chains = reader.chains();
-  std::vector<double> values(names.size() * records * chains.size());
-  std::vector<diagnose::NamedDraws> quantities;
-  for (std::size_t c = 0; c < chains.size(); ++c) {
-    const std::vector<double> rows = reader.read_observables(chains[c]);
-    for (std::size_t q = 0; q < names.size(); ++q)
-      for (std::size_t t = 0; t < records; ++t)
-        values[(q * chains.size() + c) * records + t] = rows[t * names.size() + q];
+  diagnose::RecordedDraws draws;
+  draws.observables = reader.observable_names();
+  for (const auto c : reader.chains()) {
+    std::vector<double> rows = reader.read_observables(c);
+    rows.resize(records * draws.observables.size());
+    draws.chains.push_back({std::to_string(c), std::move(rows)});
   }
-  const std::size_t cells = records * chains.size();
-  for (std::size_t q = 0; q < names.size(); ++q)
-    quantities.push_back({names[q], {{values.data() + q * cells, cells}, records, chains.size()}});
-  return diagnose::check_stop(quantities, rule);
+  return diagnose::assess_convergence(draws, rule).stop;
 }
 
 TEST(UntilConverged, StopsOnlyWhenTheStoppingRuleHolds) {

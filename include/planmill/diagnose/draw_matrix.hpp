@@ -1,5 +1,5 @@
 #pragma once
-// The input of every diagnostic: a read-only draws x chains matrix of one quantity, and the
+// The input of every diagnostic: a read-only draws x chains matrix of one observable, and the
 // output: an Estimate, a value or NaN with a short reason. Diagnostics never throw on bad draws.
 #include <cmath>
 #include <cstddef>

@@ -19,7 +19,7 @@
 
 namespace planmill::diagnose {
 
-// One quantity's draws; every quantity given to check_stop has the same draws and chains.
+// One observable's draws; every observable given to check_stop has the same draws and chains.
 struct NamedDraws {
   std::string_view name;
   DrawMatrix draws;
@@ -37,12 +37,18 @@ struct StopCheck {
   // Empty when pass(); otherwise which part failed, first of: "too short", "whole record",
   // "later half".
   [[nodiscard]] std::string failed_part() const;
-  // One line: what passed or which part failed and why, e.g. "2 of 5 quantities fail on the
+  // One line: what passed or which part failed and why, e.g. "2 of 5 observables fail on the
   // later half (records 1200..2399 of each chain); the whole record passes".
   [[nodiscard]] std::string summary() const;
+  // The verdict whose failures explain a fail: the later half's when the record is long enough
+  // and passes whole, else the whole record's.
+  [[nodiscard]] const Verdict& deciding() const {
+    return long_enough() && whole.pass ? later : whole;
+  }
 };
 
-// Pure: diagnoses every quantity on the whole record and on its later half and judges both.
-[[nodiscard]] StopCheck check_stop(std::span<const NamedDraws> quantities, const VerdictRule& rule);
+// The step on matrices that assess_convergence() (convergence.hpp, the one path from recorded
+// draws to a verdict) takes after it has cut the records. Pure: diagnoses every observable on the whole record and on its later half and judges both.
+[[nodiscard]] StopCheck check_stop(std::span<const NamedDraws> observables, const VerdictRule& rule);
 
 }  // namespace planmill::diagnose

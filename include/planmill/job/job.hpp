@@ -6,6 +6,7 @@
 #include <string_view>
 #include <vector>
 
+#include "planmill/diagnose/verdict_rule.hpp"
 #include "planmill/graph/map_spec.hpp"
 #include "planmill/moves/kernel_kind.hpp"
 
@@ -57,12 +58,6 @@ struct OutputSpec {
   double checkpoint_seconds = 300.0;
 };
 
-struct VerdictSpec {
-  double rhat_max = 1.01;
-  double ess_min = 400.0;
-  std::uint64_t min_records = 200;  // records per chain before a verdict can count
-};
-
 // Where each chain starts when the job gives a start plan (docs/jobs.md, "Starting plans").
 enum class ChainStarts {
   mixed,   // chain 0 from the given plan, every other chain from its own random seed plan
@@ -81,7 +76,7 @@ struct JobSpec {
   SamplerSpec sampler;
   TemperingSpec tempering;
   OutputSpec output;
-  VerdictSpec verdict;
+  diagnose::VerdictRule verdict;  // the [verdict] section (defaults: diagnose/verdict_rule.hpp)
 };
 
 // Parses job text; relative paths are resolved against the folder of `source`.

@@ -12,7 +12,8 @@
 
 namespace planmill {
 
-inline constexpr std::int64_t kManifestSchemaVersion = 1;
+// 2: the diagnostics section in the one verdict shape (docs/diagnostics.md, "JSON").
+inline constexpr std::int64_t kManifestSchemaVersion = 2;
 
 // `problems` is reader.verify() (the ensemble), `rung_problems` reader.verify_rungs() (the hotter
 // rungs of ladders that recorded every rung; they never touch the diagnostics); `diagnostics`

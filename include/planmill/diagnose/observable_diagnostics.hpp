@@ -1,5 +1,5 @@
 #pragma once
-// All diagnostics of one quantity in one pass (one sort of the draws shared by every rank-based
+// All diagnostics of one observable in one pass (one sort of the draws shared by every rank-based
 // step), and the table row that `planmill diagnose` prints. Values agree with the single-purpose
 // functions (rhat.hpp, ess_bulk.hpp, ...); NaN entries carry the first reason in `note`.
 #include <string>
@@ -8,7 +8,7 @@
 
 namespace planmill::diagnose {
 
-struct QuantityDiagnostics {
+struct ObservableDiagnostics {
   std::string name;
   double rhat, rhat_bulk, rhat_folded;  // max(bulk, folded), and its two parts
   double ess_bulk, ess_tail;
@@ -22,6 +22,6 @@ struct QuantityDiagnostics {
   bool constant_within_chains = false;
 };
 
-[[nodiscard]] QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x);
+[[nodiscard]] ObservableDiagnostics diagnose_observable(std::string name, DrawMatrix x);
 
 }  // namespace planmill::diagnose

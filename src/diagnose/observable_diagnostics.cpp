@@ -1,4 +1,4 @@
-#include "planmill/diagnose/quantity_diagnostics.hpp"
+#include "planmill/diagnose/observable_diagnostics.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -9,9 +9,9 @@
 namespace planmill::diagnose {
 using namespace detail;
 
-QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
+ObservableDiagnostics diagnose_observable(std::string name, DrawMatrix x) {
   constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-  QuantityDiagnostics q{
+  ObservableDiagnostics q{
       std::move(name), kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, kNaN, {}, false, false};
   if (x.shape_matches() && !x.values.empty() && x.chains > 0) {
     bool within = true;
@@ -38,7 +38,7 @@ QuantityDiagnostics diagnose_quantity(std::string name, DrawMatrix x) {
   q.mean = pooled_mean(x.values);
   q.sd = pooled_sd(x.values);
 
-  // Matrices kept per thread and refilled for each quantity: no fresh pages per call.
+  // Matrices kept per thread and refilled for each observable: no fresh pages per call.
   struct Workspace {
     SortedDraws sorted;
     Matrix split, scores, indicator;
