@@ -1,4 +1,4 @@
-// planmill diagnose: convergence diagnostics per observable and a verdict, either of a run dir
+// planmill diagnose: convergence diagnostics per observable and a verdict, either of a run folder
 // (every observable across its chains; the result also goes into RUNDIR/manifest.json) or of a
 // long trace CSV (--traces). Both go through diagnose::assess_convergence() and print and write
 // the same table and JSON. Exit status: 0 pass, 3 fail, 2 bad input.
@@ -101,7 +101,7 @@ int diagnose_trace_file(const DiagnoseOptions& o) {
 int diagnose_run_dir(const DiagnoseOptions& o) {
   if (!std::filesystem::is_directory(o.run_dir)) {
     throw InputError({o.run_dir, 0, {}}, "is not a folder",
-                     "give the run dir that 'planmill run' wrote, or --traces FILE.csv");
+                     "give the run folder that 'planmill run' wrote, or --traces FILE.csv");
   }
   const RunReader reader(o.run_dir);
   const auto problems = reader.verify();
@@ -132,7 +132,7 @@ int diagnose_run_dir(const DiagnoseOptions& o) {
 
 int run_diagnose(const DiagnoseOptions& o) {
   if (o.traces.empty() && o.run_dir.empty()) {
-    throw InputError({{}, 0, {}}, "diagnose needs a run dir or --traces FILE.csv",
+    throw InputError({{}, 0, {}}, "diagnose needs a run folder or --traces FILE.csv",
                      "e.g. planmill diagnose runs/demo");
   }
   if (!o.old_burn_in.empty()) {
@@ -141,7 +141,7 @@ int run_diagnose(const DiagnoseOptions& o) {
                          ": it counts records; burn-in means the job's steps before the first record");
   }
   if (!o.traces.empty() && !o.run_dir.empty()) {
-    throw InputError({o.run_dir, 0, {}}, "give either a run dir or --traces, not both");
+    throw InputError({o.run_dir, 0, {}}, "give either a run folder or --traces, not both");
   }
   return o.traces.empty() ? diagnose_run_dir(o) : diagnose_trace_file(o);
 }
@@ -153,7 +153,7 @@ void add_diagnose_command(CLI::App& app, Action& action) {
   const diagnose::VerdictRule defaults;
   auto* sub = app.add_subcommand("diagnose",
                                  "convergence diagnostics (R-hat, ESS, MCSE) per observable and a verdict");
-  sub->add_option("rundir", options->run_dir, "run dir: every observable across its chains");
+  sub->add_option("RUNDIR", options->run_dir, "run folder: every observable across its chains");
   sub->add_option("--traces", options->traces, "long trace CSV: chain,draw,<observable>...");
   sub->add_option("--json", options->json, "also write the table and verdict as JSON");
   auto* rhat = sub->add_option("--rhat-max", options->rhat_max,

@@ -113,7 +113,7 @@ RunVerdictRule verdict_rule_of_run(const RunReader& reader) {
         continue;  // damaged files are reported by verify(); another one may hold the text
       }
     }
-    if (source.empty()) return {{}, "defaults (no job text found in the run dir)"};
+    if (source.empty()) return {{}, "defaults (no job text found in the run folder)"};
   }
   toml::table root;
   try {

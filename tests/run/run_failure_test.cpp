@@ -51,7 +51,9 @@ TEST(RunFailure, AFullDiskEndsEveryRankWithExit5AndTheRunResumesOnceThereIsRoom)
   test::SmallDisk::release_leftover(
       std::filesystem::temp_directory_path() / "planmill-failure-test-disk" / "disk");
   const auto dir = scratch("disk");
-  test::SmallDisk disk(dir / "disk", 3 << 20);
+  // Room for the resumed run too: it checkpoints every second, a new plan file per rank (about
+  // 40 KB each here), so on a loaded machine it writes more files than on a quiet one.
+  test::SmallDisk disk(dir / "disk", 24 << 20);
   if (!disk.available()) GTEST_SKIP() << "cannot mount a tmpfs here (needs root)";
   const auto job = test::write_synth_job(
       dir, "chains = 4\nsteps = 400000\nburn_in = 0\nrecord_every = 100\nseed = 8", 1.0);

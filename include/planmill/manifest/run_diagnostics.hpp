@@ -1,7 +1,7 @@
 #pragma once
-// Convergence diagnostics of a run dir, and how a verdict is shown. The verdict itself comes from
+// Convergence diagnostics of a run folder, and how a verdict is shown. The verdict itself comes from
 // diagnose::assess_convergence() (planmill/diagnose/convergence.hpp), the one path that
-// `planmill run --until-converged`, `planmill diagnose` (run dir or trace file) and `planmill merge`
+// `planmill run --until-converged`, `planmill diagnose` (run folder or trace file) and `planmill merge`
 // share; this part reads a run's chains into it and writes its result: one text table and one
 // JSON shape (docs/diagnostics.md), laid out by one list of fields.
 #include <cstdint>
