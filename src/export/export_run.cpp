@@ -259,7 +259,7 @@ ExportResult export_run(const ExportOptions& o) {
     matrix = std::make_unique<PlanMatrixWriter>(
         (staging.dir / matrix_file_name(rung)).string(),
         PlanMatrixHeader{ids, run.district_count(), rung, run.state().run_id,
-                         run.state().job_sha256, run.state().planmill_version});
+                         run.state().job_sha256, run.state().planmill_version, chosen.size()});
   }
 
   // Plan files are written as they are read, so memory holds one plan (the wide table needs all).

@@ -94,6 +94,7 @@ PlanMatrixWriter::PlanMatrixWriter(std::string path, PlanMatrixHeader header)
   m.cell_bytes = header.district_count <= 255 ? 1 : 2;
   m.cell_type = m.cell_bytes == 1 ? H5T_STD_U8LE : H5T_STD_U16LE;
   m.chunk = chunk_rows(m.units, m.cell_bytes);
+  if (header.expected_rows > 0) m.chunk = std::min<hsize_t>(m.chunk, header.expected_rows);
   m.bytes.reserve(m.chunk * m.units * m.cell_bytes);
   m.header = std::move(header);
   silence_hdf5_errors();

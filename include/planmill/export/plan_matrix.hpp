@@ -19,6 +19,7 @@ struct PlanMatrixHeader {
   std::size_t district_count = 0;     // k, 1..65535
   std::uint64_t rung = 0;
   std::string run_id, job_sha256, planmill_version;  // the run the plans come from
+  std::uint64_t expected_rows = 0;  // if known: chunks are no taller than the matrix; 0 = unknown
 };
 
 class PlanMatrixWriter {
