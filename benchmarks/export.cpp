@@ -84,8 +84,8 @@ void BM_PlanMatrixWrite(benchmark::State& bench) {
   fs::remove(path);
   bench.counters["bytes_per_plan"] = bytes / kPlans;
   bench.counters["bits_per_unit"] = bytes * 8.0 / kPlans / static_cast<double>(n);
-  bench.counters["plans_per_second"] =
-      benchmark::Counter(static_cast<double>(kPlans), benchmark::Counter::kIsIterationInvariantRate);
+  bench.counters["plans_per_second"] = benchmark::Counter(
+      static_cast<double>(kPlans), benchmark::Counter::kIsIterationInvariantRate);
 }
 BENCHMARK(BM_PlanMatrixWrite)
     ->Arg(10)

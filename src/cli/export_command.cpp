@@ -51,7 +51,7 @@ int run_export(ExportArgs& args) {
 void add_export_command(CLI::App& app, Action& action) {
   auto args = std::make_shared<ExportArgs>();
   auto* sub = app.add_subcommand(
-      "export", "write a run's observables, chosen plans and their district tallies as CSV or HDF5");
+      "export", "write a run's observables, chosen plans and district tallies as CSV or HDF5");
   sub->add_option("RUNDIR", args->options.run_dir, "run folder written by 'planmill run'")->required();
   sub->add_option("--out", args->options.out_dir, "folder to write into (created or reused)")
       ->required();
@@ -72,7 +72,7 @@ void add_export_command(CLI::App& app, Action& action) {
   sub->add_option("--map-units", args->options.units_path,
                   "unit table giving the unit ids (default: the one the run's job names)");
   sub->add_option("--map-adjacency", args->options.adjacency_path,
-                  "adjacency file of the map, for --tallies (default: the one the run's job names)");
+                  "adjacency file of the map, for --tallies (default: the one the job names)");
   sub->add_option("--map-id-column", args->options.id_column,
                   "id column of the unit table (default: the job's map.id)");
   sub->callback([&action, args] { action = [args] { return run_export(*args); }; });

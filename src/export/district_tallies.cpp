@@ -27,16 +27,16 @@ bool perimeters_known(const UnitGraph& g) { return g.has_outer_boundary() && g.h
 }  // namespace
 
 std::string tallies_header(const UnitGraph& graph, const std::string& units_path) {
-  std::set<std::string> taken{"chain", "record", "step", "district", "population", "area",
-                              "perimeter"};
+  std::set<std::string> taken{"chain",      "record", "step",     "district",
+                              "population", "area",   "perimeter"};
   std::string header = "chain,record,step,district,population";
   for (std::size_t c = 0; c < graph.count_column_count(); ++c) {
     const std::string& name = graph.count_column_name(c);
     if (!taken.insert(name).second) {
-      throw InputError({units_path, 1, name},
-                       "count column '" + name +
-                           "' has the name of another column of the district tallies",
-                       "rename the column in the unit table and the job to export tallies");
+      throw InputError(
+          {units_path, 1, name},
+          "count column '" + name + "' has the name of another column of the district tallies",
+          "rename the column in the unit table and the job to export tallies");
     }
     header += "," + csv_field(name);
   }

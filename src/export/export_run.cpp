@@ -59,7 +59,8 @@ void check_job_names_file(const RunReader& run, const std::string& path, const c
                           const char* what, const char* option) {
   if (fs::is_regular_file(path)) return;
   throw InputError({run.layout().job_copy().string(), 0, key},
-                   "names " + std::string(what) + " '" + path + "' (relative to the job file as given, '" +
+                   "names " + std::string(what) + " '" + path +
+                       "' (relative to the job file as given, '" +
                        run.state().job_path + "'), which is not there",
                    "run export from the folder the run was started in, or give the file with " +
                        std::string(option) + " FILE");
@@ -98,6 +99,11 @@ RunMap run_map(const RunReader& run, const ExportOptions& o, bool whole, ExportR
     spec.id_column = id_column;
     if (!o.adjacency_path.empty()) {
       spec.adjacency_path = o.adjacency_path;
+      if (!fs::is_regular_file(spec.adjacency_path)) {
+        throw InputError({spec.adjacency_path, 0, "--map-adjacency"},
+                         "the adjacency file is not there",
+                         "give the adjacency file the run used with --map-adjacency FILE");
+      }
     } else {
       check_job_names_file(run, spec.adjacency_path, "map.adjacency", "adjacency file",
                            "--map-adjacency");

@@ -71,9 +71,9 @@ struct PlanMatrixWriter::Impl {
     check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr),
           path, "selecting rows of the plan matrix");
     H5Dataspace memory = checked<H5Dataspace>(H5Screate_simple(2, count, nullptr), path, "rows");
-    check(H5Dwrite(plans.get(), cell_type, memory.get(), file_space.get(), H5P_DEFAULT,
-                   bytes.data()),
-          path, "writing rows of the plan matrix");
+    check(
+        H5Dwrite(plans.get(), cell_type, memory.get(), file_space.get(), H5P_DEFAULT, bytes.data()),
+        path, "writing rows of the plan matrix");
     flushed += rows;
     bytes.clear();
   }
@@ -118,9 +118,7 @@ PlanMatrixWriter::PlanMatrixWriter(std::string path, PlanMatrixHeader header)
 
 PlanMatrixWriter::~PlanMatrixWriter() = default;
 
-std::uint64_t PlanMatrixWriter::rows() const noexcept {
-  return impl_->flushed + impl_->pending();
-}
+std::uint64_t PlanMatrixWriter::rows() const noexcept { return impl_->flushed + impl_->pending(); }
 
 void PlanMatrixWriter::add(std::uint64_t chain, std::uint64_t record, std::uint64_t step,
                            std::span<const DistrictIndex> labels) {

@@ -44,13 +44,14 @@ TEST(ExportDisk, AFullDiskLeavesTheOutputFolderAsItWas) {
   EXPECT_EQ(test::read_text(out / "notes.txt"), "the analyst's own file\n");
 }
 
-// The plan matrix is built in memory and written whole: on a disk with no room at all, exit 5 naming
-// plan-matrix.h5, and neither it nor the tallies (written after it) appear in the output folder.
+// The plan matrix is built in memory and written whole: on a disk with no room at all, exit 5
+// naming plan-matrix.h5, and neither it nor the tallies (written after it) appear in the output folder.
 TEST(ExportDisk, AFullDiskStopsThePlanMatrixAndTheTallies) {
   const fs::path dir = test::scratch_dir("planmill-export-disk", "matrix");
   test::SmallDisk disk(dir / "disk", 64 * 1024);
   if (!disk.available()) GTEST_SKIP() << "cannot mount a tmpfs here (needs root)";
-  const fs::path job = test::write_synth_job(dir, "chains = 2\nsteps = 100\nrecord_every = 1\nseed = 2");
+  const fs::path job =
+      test::write_synth_job(dir, "chains = 2\nsteps = 100\nrecord_every = 1\nseed = 2");
   const fs::path run = dir / "run";
   ASSERT_EQ(test::shell(std::string(PLANMILL_BINARY) + " run " + job.string() + " --output " +
                         run.string() + " --quiet >/dev/null 2>&1"),

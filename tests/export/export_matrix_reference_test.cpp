@@ -19,10 +19,11 @@ namespace fs = std::filesystem;
 // Runs the check; returns what it printed, or "failed (STATUS): ..." with its message.
 std::string matrix_check(const fs::path& run_dir, const fs::path& out_dir, const fs::path& job,
                          std::uint64_t rung = 0, const std::string& map_files = "") {
-  const std::string command = "PYTHONPATH=" PLANMILL_SOURCE_DIR "/tests/support /usr/bin/python3 "
-                              PLANMILL_SOURCE_DIR "/tests/export/matrix_tallies_check.py " +
-                              run_dir.string() + " " + out_dir.string() + " " + job.string() +
-                              " " + std::to_string(rung) + " " + map_files + " 2>&1";
+  const std::string command = "PYTHONPATH=" PLANMILL_SOURCE_DIR
+                              "/tests/support /usr/bin/python3 " PLANMILL_SOURCE_DIR
+                              "/tests/export/matrix_tallies_check.py " +
+                              run_dir.string() + " " + out_dir.string() + " " + job.string() + " " +
+                              std::to_string(rung) + " " + map_files + " 2>&1";
   FILE* pipe = ::popen(command.c_str(), "r");
   std::string output;
   char buffer[512];
@@ -54,8 +55,8 @@ TEST(ExportMatrixH5py, MatrixAndTalliesOfARealRunMatchAnIndependentRecount) {
   test::TempDir dir;
   const test::RealRun run = test::write_real_run(dir.path());
   const fs::path state = run.job.parent_path();
-  shift_column(state / "units.csv", 4, 0.1);   // area
-  shift_column(state / "units.csv", 6, 0.01);  // outer
+  shift_column(state / "units.csv", 4, 0.1);        // area
+  shift_column(state / "units.csv", 6, 0.01);       // outer
   shift_column(state / "adjacency.csv", 2, 0.001);  // shared length
   const fs::path out = dir.path() / "out";
   std::string errors;
@@ -93,8 +94,13 @@ TEST(ExportMatrixH5py, TwoByteCellsAndAHotRung) {
   const fs::path job = f.dir.path() / "job" / "job.toml";
   EXPECT_EQ(matrix_check(f.run_dir, f.out_dir, job), "matrix 11\n");
 
-  test::ExportFixture hot({.chains = 3, .ranks = 2, .segments = 2, .records_per_segment = 15,
-                           .units = 40, .districts = 4, .recorded_rungs = 3});
+  test::ExportFixture hot({.chains = 3,
+                           .ranks = 2,
+                           .segments = 2,
+                           .records_per_segment = 15,
+                           .units = 40,
+                           .districts = 4,
+                           .recorded_rungs = 3});
   ASSERT_EQ(test::run_export(hot.run_dir.string() + " --out " + hot.out_dir.string() +
                              " --rung 2 --every 4 --plan-layout matrix"),
             0);

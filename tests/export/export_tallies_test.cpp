@@ -49,7 +49,8 @@ Matrix read_matrix(const fs::path& file) {
   m.rows = dims[0];
   m.units = dims[1];
   m.cells.resize(m.rows * m.units);
-  if (!m.cells.empty()) H5Dread(d, H5T_NATIVE_UINT16, H5S_ALL, H5S_ALL, H5P_DEFAULT, m.cells.data());
+  if (!m.cells.empty())
+    H5Dread(d, H5T_NATIVE_UINT16, H5S_ALL, H5S_ALL, H5P_DEFAULT, m.cells.data());
   for (auto [name, out] : {std::pair{"chain", &m.chain}, std::pair{"record", &m.record}}) {
     const hid_t c = H5Dopen2(f, name, H5P_DEFAULT);
     out->resize(m.rows);
@@ -116,8 +117,8 @@ TEST(ExportTallies, AMissingAdjacencyFileIsNamedAndNothingIsWritten) {
   EXPECT_FALSE(fs::exists(f.out_dir));
   const fs::path elsewhere = f.dir.path() / "edges.csv";
   write_path_adjacency(f, elsewhere);
-  EXPECT_EQ(test::run_export(export_args(f, "--every 10 --tallies --map-adjacency " +
-                                                elsewhere.string())),
+  EXPECT_EQ(test::run_export(
+                export_args(f, "--every 10 --tallies --map-adjacency " + elsewhere.string())),
             0);
   EXPECT_EQ(read_csv_file((f.out_dir / tallies_file_name()).string()).rows.size(), 3U * 4U * 3U);
   EXPECT_TRUE(fs::exists(f.out_dir / plan_file_name({2, 30})));  // files stay the default

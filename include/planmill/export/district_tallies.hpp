@@ -1,6 +1,6 @@
 #pragma once
-// The long table of district tallies: one CSV row per (chain, record, district) of the chosen plans,
-// taken from a Plan rebuilt on the run's map (docs/export.md, "District tallies").
+// The long table of district tallies: one CSV row per (chain, record, district) of the chosen
+// plans, taken from a Plan rebuilt on the run's map (docs/export.md, "District tallies").
 #include <cstdint>
 #include <string>
 

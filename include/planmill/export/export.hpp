@@ -1,9 +1,9 @@
 #pragma once
 // `planmill export`: a run's observables and chosen plans as plain CSV for R, Python and GIS users,
 // the chosen plans' district tallies as one long CSV, and the chosen plans as one dense HDF5
-// matrix (docs/export.md, docs/format.md). Everything the user asked for is checked before the first file is written, so
-// a bad choice (a chain or record that does not exist, a map that cannot be found) writes nothing.
-// Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
+// matrix (docs/export.md, docs/format.md). Everything the user asked for is checked before the
+// first file is written, so a bad choice (a chain or record that does not exist, a map that
+// cannot be found) writes nothing. Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
 // the other chains are still exported. With a rung R > 0 everything written is rung R of each
 // chain's ladder, and only damage to that rung's records leaves a chain out.
 #include <cstdint>
@@ -45,7 +45,7 @@ struct ExportOptions {
   bool tallies = false;  // district-tallies.csv: a row per chosen plan and district
   std::string units_path;  // unit table overriding the job's map.units; empty = the job's
   std::string id_column;   // overriding the job's map.id; empty = the job's
-  std::string adjacency_path;  // overriding the job's map.adjacency (tallies only); empty = the job's
+  std::string adjacency_path;  // overriding the job's map.adjacency (for tallies); empty = job's
   // Rung of each chain's ladder to export: 0 = the chains (the ensemble); R > 0 needs every chain
   // of the run to have recorded rung R ([tempering] record = "all"), else InputError.
   std::uint64_t rung = 0;
