@@ -108,6 +108,15 @@ RunMap run_map(const RunReader& run, const ExportOptions& o, bool whole, ExportR
       check_job_names_file(run, spec.adjacency_path, "map.adjacency", "adjacency file",
                            "--map-adjacency");
     }
+    for (const InputFileEntry& input : run.state().inputs) {
+      if (input.role != "adjacency" || input.sha256.empty()) continue;
+      if (sha256_file_hex(spec.adjacency_path) != input.sha256) {
+        result.warnings.push_back("adjacency file " + spec.adjacency_path +
+                                  " differs from the one the run started with (SHA-256 " +
+                                  input.sha256.substr(0, 12) +
+                                  "...); the tallies' perimeters come from this one");
+      }
+    }
     map.graph = share_graph(load_unit_graph(spec));
   }
   return map;

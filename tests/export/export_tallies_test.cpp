@@ -116,6 +116,15 @@ TEST(ExportTallies, AMissingAdjacencyFileIsNamedAndNothingIsWritten) {
   EXPECT_EQ(std::count(errors.begin(), errors.end(), '\n'), 1) << errors;
   EXPECT_FALSE(fs::exists(f.out_dir));
   const fs::path elsewhere = f.dir.path() / "edges.csv";
+  EXPECT_EQ(
+      test::run_export(export_args(f, "--every 10 --tallies --map-adjacency " + elsewhere.string()),
+                       &errors),
+      2);
+  EXPECT_NE(
+      errors.find(elsewhere.string() + ": '--map-adjacency': the adjacency file is not there"),
+      std::string::npos)
+      << errors;
+  EXPECT_FALSE(fs::exists(f.out_dir));
   write_path_adjacency(f, elsewhere);
   EXPECT_EQ(test::run_export(
                 export_args(f, "--every 10 --tallies --map-adjacency " + elsewhere.string())),
