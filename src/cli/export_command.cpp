@@ -1,7 +1,7 @@
-// planmill export RUNDIR --out DIR: observables and chosen plans as CSV (docs/export.md).
+// planmill export RUNDIR --out DIR: observables and chosen plans as CSV, district tallies and a
+// dense HDF5 plan matrix (docs/export.md).
 // Exit status: 0 done, 2 bad input (nothing written), 3 some chains damaged and left out.
 #include <iostream>
-#include <map>
 #include <string>
 
 #include "cli/commands.hpp"
@@ -27,9 +27,7 @@ int run_export(ExportArgs& args) {
     o.plans.chains_given = true;
     o.plans.chains = parse_chain_list(args.chains, "--chains");
   }
-  static const std::map<std::string, PlanLayout> layouts{
-      {"files", PlanLayout::files}, {"wide", PlanLayout::wide}, {"both", PlanLayout::both}};
-  o.layout = layouts.at(args.layout);
+  o.layout = parse_plan_layout(args.layout, "--plan-layout");
   const ExportResult result = export_run(o);
   for (const std::string& w : result.warnings) std::cerr << "planmill: warning: " << w << "\n";
   std::cout << "wrote " << result.observable_rows << " observable rows and " << result.plans
@@ -52,7 +50,8 @@ int run_export(ExportArgs& args) {
 
 void add_export_command(CLI::App& app, Action& action) {
   auto args = std::make_shared<ExportArgs>();
-  auto* sub = app.add_subcommand("export", "write a run's observables and chosen plans as CSV");
+  auto* sub = app.add_subcommand(
+      "export", "write a run's observables, chosen plans and district tallies as CSV or HDF5");
   sub->add_option("RUNDIR", args->options.run_dir, "run folder written by 'planmill run'")->required();
   sub->add_option("--out", args->options.out_dir, "folder to write into (created or reused)")
       ->required();
@@ -62,13 +61,18 @@ void add_export_command(CLI::App& app, Action& action) {
   sub->add_option("--chains", args->chains,
                   "chains for --every, as 0,2,5-7; alone: every record of these chains");
   sub->add_option("--plan-layout", args->layout,
-                  "files: one CSV per plan; wide: one CSV, a column per plan; both")
-      ->check(CLI::IsMember({"files", "wide", "both"}));
+                  "files: one CSV per plan; wide: one CSV, a column per plan; matrix: one HDF5 "
+                  "matrix, plans x units; several as files,matrix; both = files,wide; none");
+  sub->add_flag("--tallies", args->options.tallies,
+                "also write district-tallies.csv: population, counts, area and perimeter of every "
+                "district of every chosen plan");
   sub->add_option("--rung", args->rung,
                   "rung of each ladder to export (0, the default: the ensemble; R > 0 needs "
                   "[tempering] record = \"all\")");
   sub->add_option("--map-units", args->options.units_path,
                   "unit table giving the unit ids (default: the one the run's job names)");
+  sub->add_option("--map-adjacency", args->options.adjacency_path,
+                  "adjacency file of the map, for --tallies (default: the one the job names)");
   sub->add_option("--map-id-column", args->options.id_column,
                   "id column of the unit table (default: the job's map.id)");
   sub->callback([&action, args] { action = [args] { return run_export(*args); }; });

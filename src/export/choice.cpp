@@ -74,6 +74,29 @@ std::vector<std::uint64_t> parse_chain_list(std::string_view text, const std::st
   return out;
 }
 
+PlanLayout parse_plan_layout(std::string_view text, const std::string& option) {
+  PlanLayout layout{.files = false};
+  const std::vector<std::string_view> items = split(text, ',');
+  for (std::string_view item : items) {
+    if (item == "files") {
+      layout.files = true;
+    } else if (item == "wide") {
+      layout.wide = true;
+    } else if (item == "both") {
+      layout.files = layout.wide = true;
+    } else if (item == "matrix") {
+      layout.matrix = true;
+    } else if (item != "none" || items.size() > 1) {
+      throw InputError({"", 0, option},
+                       "'" + std::string(item) + "' is not a plan layout" +
+                           (item == "none" ? " to combine with others" : ""),
+                       "give files, wide, matrix (several separated by commas), both (files and "
+                       "wide) or none");
+    }
+  }
+  return layout;
+}
+
 std::vector<RecordRef> choose_records(const RunReader& run, const PlanChoice& choice) {
   const std::vector<std::uint64_t> run_chains = run.chains();
   const auto check_chain = [&](std::uint64_t chain, const char* option) {

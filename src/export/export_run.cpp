@@ -6,12 +6,16 @@
 #include <fstream>
 #include <iterator>
 #include <map>
+#include <memory>
 #include <set>
 
 #include <unistd.h>
 
 #include "planmill/base/error.hpp"
 #include "planmill/export/export.hpp"
+#include "planmill/export/district_tallies.hpp"
+#include "planmill/export/plan_matrix.hpp"
+#include "planmill/graph/load.hpp"
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/csv.hpp"
@@ -31,50 +35,91 @@ std::string read_text(const fs::path& path) {
   return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
 }
 
-// The unit ids of the run's map, from --map-units / --map-id-column or the job the run copied.
-std::vector<std::string> run_unit_ids(const RunReader& run, const ExportOptions& o,
-                                      ExportResult& result) {
-  std::string units_path = o.units_path, id_column = o.id_column;
-  if (units_path.empty() || id_column.empty()) {
-    const fs::path job_copy = run.layout().job_copy();
-    if (!fs::is_regular_file(job_copy)) {
-      throw InputError({job_copy.string(), 0, ""},
-                       "the run folder has no copy of its job, so its map is unknown",
-                       "give the unit table with --map-units FILE and --map-id-column NAME");
-    }
-    // Relative paths in the job are relative to the job file as it was given to `planmill run`.
-    const std::string& given = run.state().job_path;
-    const JobSpec job =
-        parse_job_text(read_text(job_copy), given.empty() ? job_copy.string() : given);
-    if (units_path.empty()) {
-      units_path = job.map.units_path;
-      if (!fs::is_regular_file(units_path)) {
-        throw InputError({job_copy.string(), 0, "map.units"},
-                         "names unit table '" + units_path +
-                             "' (relative to the job file as given, '" + given +
-                             "'), which is not there",
-                         "run export from the folder the run was started in, or give the table "
-                         "with --map-units FILE");
-      }
+// The run's map as export needs it: unit ids always, the whole map (for tallies) when asked. Paths
+// come from --map-units / --map-adjacency / --map-id-column or the job the run copied.
+struct RunMap {
+  std::vector<std::string> ids;
+  GraphHandle graph;  // null unless the whole map was loaded
+  std::string units_path;
+};
+
+JobSpec run_job(const RunReader& run) {
+  const fs::path job_copy = run.layout().job_copy();
+  if (!fs::is_regular_file(job_copy)) {
+    throw InputError({job_copy.string(), 0, ""},
+                     "the run folder has no copy of its job, so its map is unknown",
+                     "give the unit table with --map-units FILE and --map-id-column NAME");
+  }
+  // Relative paths in the job are relative to the job file as it was given to `planmill run`.
+  const std::string& given = run.state().job_path;
+  return parse_job_text(read_text(job_copy), given.empty() ? job_copy.string() : given);
+}
+
+void check_job_names_file(const RunReader& run, const std::string& path, const char* key,
+                          const char* what, const char* option) {
+  if (fs::is_regular_file(path)) return;
+  throw InputError({run.layout().job_copy().string(), 0, key},
+                   "names " + std::string(what) + " '" + path +
+                       "' (relative to the job file as given, '" +
+                       run.state().job_path + "'), which is not there",
+                   "run export from the folder the run was started in, or give the file with " +
+                       std::string(option) + " FILE");
+}
+
+RunMap run_map(const RunReader& run, const ExportOptions& o, bool whole, ExportResult& result) {
+  RunMap map{{}, nullptr, o.units_path};
+  std::string id_column = o.id_column;
+  MapSpec spec;
+  if (map.units_path.empty() || id_column.empty() || whole) {
+    const JobSpec job = run_job(run);
+    spec = job.map;
+    if (map.units_path.empty()) {
+      map.units_path = job.map.units_path;
+      check_job_names_file(run, map.units_path, "map.units", "unit table", "--map-units");
     }
     if (id_column.empty()) id_column = job.map.id_column;
   }
-  std::vector<std::string> ids = read_unit_ids(units_path, id_column);
-  if (run.unit_count() != 0 && ids.size() != run.unit_count()) {
-    throw InputError({units_path, 0, ""},
-                     "has " + std::to_string(ids.size()) + " units but the run's plans have " +
+  map.ids = read_unit_ids(map.units_path, id_column);
+  if (run.unit_count() != 0 && map.ids.size() != run.unit_count()) {
+    throw InputError({map.units_path, 0, ""},
+                     "has " + std::to_string(map.ids.size()) + " units but the run's plans have " +
                          std::to_string(run.unit_count()),
                      "give the unit table the run used with --map-units FILE");
   }
   for (const InputFileEntry& input : run.state().inputs) {
     if (input.role != "units" || input.sha256.empty()) continue;
-    if (sha256_file_hex(units_path) != input.sha256) {
+    if (sha256_file_hex(map.units_path) != input.sha256) {
       result.warnings.push_back(
-          "unit table " + units_path + " differs from the one the run started with (SHA-256 " +
+          "unit table " + map.units_path + " differs from the one the run started with (SHA-256 " +
           input.sha256.substr(0, 12) + "...); check that its rows are in the same order");
     }
   }
-  return ids;
+  if (whole) {
+    spec.units_path = map.units_path;
+    spec.id_column = id_column;
+    if (!o.adjacency_path.empty()) {
+      spec.adjacency_path = o.adjacency_path;
+      if (!fs::is_regular_file(spec.adjacency_path)) {
+        throw InputError({spec.adjacency_path, 0, "--map-adjacency"},
+                         "the adjacency file is not there",
+                         "give the adjacency file the run used with --map-adjacency FILE");
+      }
+    } else {
+      check_job_names_file(run, spec.adjacency_path, "map.adjacency", "adjacency file",
+                           "--map-adjacency");
+    }
+    for (const InputFileEntry& input : run.state().inputs) {
+      if (input.role != "adjacency" || input.sha256.empty()) continue;
+      if (sha256_file_hex(spec.adjacency_path) != input.sha256) {
+        result.warnings.push_back("adjacency file " + spec.adjacency_path +
+                                  " differs from the one the run started with (SHA-256 " +
+                                  input.sha256.substr(0, 12) +
+                                  "...); the tallies' perimeters come from this one");
+      }
+    }
+    map.graph = share_graph(load_unit_graph(spec));
+  }
+  return map;
 }
 
 struct ChainRows {
@@ -113,6 +158,10 @@ std::string observables_file_name(std::uint64_t rung) {
   return "observables" + rung_part(rung) + ".csv";
 }
 std::string wide_file_name(std::uint64_t rung) { return "plans-wide" + rung_part(rung) + ".csv"; }
+std::string tallies_file_name(std::uint64_t rung) {
+  return "district-tallies" + rung_part(rung) + ".csv";
+}
+std::string matrix_file_name(std::uint64_t rung) { return "plan-matrix" + rung_part(rung) + ".h5"; }
 std::string plan_file_name(const RecordRef& ref, std::uint64_t rung) {
   return "plans/chain-" + std::to_string(ref.chain) + rung_part(rung) + "-record-" +
          std::to_string(ref.record) + ".csv";
@@ -143,8 +192,25 @@ ExportResult export_run(const ExportOptions& o) {
   // Everything that can be the user's mistake is checked before anything is written.
   check_rung_recorded(run, rung);
   const std::vector<RecordRef> chosen = choose_records(run, o.plans);
-  std::vector<std::string> ids;
-  if (!chosen.empty()) ids = run_unit_ids(run, o, result);
+  if (chosen.empty() && (o.tallies || o.layout.matrix)) {
+    throw InputError({"", 0, o.tallies ? "--tallies" : "--plan-layout"},
+                     std::string(o.tallies ? "district tallies" : "a plan matrix") +
+                         " need chosen plans, and none are chosen",
+                     "choose plans with --plans, --every or --chains");
+  }
+  RunMap map;
+  if (!chosen.empty()) map = run_map(run, o, o.tallies, result);
+  const std::vector<std::string>& ids = map.ids;
+  std::string tallies;
+  if (o.tallies) {
+    if (map.graph->unit_count() != run.unit_count()) {
+      throw InputError({map.units_path, 0, ""}, "the map has " +
+                           std::to_string(map.graph->unit_count()) +
+                           " units but the run's plans have " + std::to_string(run.unit_count()),
+                       "give the map the run used with --map-units and --map-adjacency");
+    }
+    tallies = tallies_header(*map.graph, map.units_path);
+  }
 
   // Only damage to the rung exported leaves a chain out.
   std::set<std::uint64_t> bad;
@@ -154,6 +220,7 @@ ExportResult export_run(const ExportOptions& o) {
   }
   const std::vector<std::string>& names = run.observable_names();
   std::vector<ChainRows> rows;
+  std::map<std::uint64_t, const std::vector<std::uint64_t>*> steps_of;
   for (std::uint64_t chain : run.chains()) {
     if (left_out(bad, chain)) continue;
     try {
@@ -167,6 +234,7 @@ ExportResult export_run(const ExportOptions& o) {
       leave_out(result, bad, chain, run.record_count(chain), e.what());
     }
   }
+  for (const ChainRows& r : rows) steps_of[r.chain] = &r.steps;
 
   // Plans, labelled with the map's unit ids through the plan CSV writer.
   GraphHandle id_graph;
@@ -201,13 +269,20 @@ ExportResult export_run(const ExportOptions& o) {
     write_file_atomically((staging.dir / name).string(), text);
     result.written.push_back(name);
   };
+  std::unique_ptr<PlanMatrixWriter> matrix;
+  if (o.layout.matrix) {
+    matrix = std::make_unique<PlanMatrixWriter>(
+        (staging.dir / matrix_file_name(rung)).string(),
+        PlanMatrixHeader{ids, run.district_count(), rung, run.state().run_id,
+                         run.state().job_sha256, run.state().planmill_version, chosen.size()});
+  }
 
   // Plan files are written as they are read, so memory holds one plan (the wide table needs all).
   // Each chain's chosen records are read in stretches, decoding every record of a stretch once; a
   // gap of more than kNewStretchGap records starts a new stretch (from its nearest self-contained
   // record) rather than decoding the gap.
   constexpr std::uint64_t kNewStretchGap = 256;
-  if (o.layout != PlanLayout::wide && !chosen.empty()) fs::create_directories(staging.dir / "plans", ec);
+  if (o.layout.files && !chosen.empty()) fs::create_directories(staging.dir / "plans", ec);
   std::map<std::uint64_t, std::vector<std::uint64_t>> wanted;
   for (const RecordRef& ref : chosen) wanted[ref.chain].push_back(ref.record);
   std::map<RecordRef, std::vector<DistrictIndex>> wide_labels;
@@ -215,6 +290,10 @@ ExportResult export_run(const ExportOptions& o) {
     if (left_out(bad, chain)) continue;
     std::sort(records.begin(), records.end());
     records.erase(std::unique(records.begin(), records.end()), records.end());
+    // A chain found damaged part-way is left out of the tallies and the matrix whole.
+    std::string chain_tallies;
+    const std::uint64_t matrix_rows = matrix ? matrix->rows() : 0;
+    const std::vector<std::uint64_t>& steps = *steps_of.at(chain);
     try {
       for (std::size_t begin = 0; begin < records.size();) {
         std::size_t end = begin + 1;
@@ -226,21 +305,33 @@ ExportResult export_run(const ExportOptions& o) {
               if (next >= end || records[next] != record) return;
               ++next;
               const RecordRef ref{chain, record};
-              if (o.layout != PlanLayout::wide) {
+              if (o.layout.files) {
                 write(plan_file_name(ref, rung),
                       plan_csv_text(Plan(id_graph, run.district_count(),
                                          std::vector<DistrictIndex>(labels.begin(), labels.end()))));
               }
-              if (o.layout != PlanLayout::files) {
+              if (o.layout.wide) {
                 wide_labels.emplace(ref, std::vector<DistrictIndex>(labels.begin(), labels.end()));
               }
+              if (o.tallies) {
+                const Plan plan(map.graph, run.district_count(),
+                                std::vector<DistrictIndex>(labels.begin(), labels.end()));
+                append_tally_rows(chain_tallies, chain, record, steps.at(record), plan);
+              }
+              if (matrix) matrix->add(chain, record, steps.at(record), labels);
             },
             rung);
         begin = end;
       }
+      tallies += chain_tallies;
     } catch (const StoreError& e) {
+      if (matrix) matrix->drop_rows_from(matrix_rows);
       leave_out(result, bad, chain, run.record_count(chain), e.what());
     }
+  }
+  if (matrix) {
+    matrix->close();
+    result.written.push_back(matrix_file_name(rung));
   }
   // The wide table's columns in the order chosen, pointing into wide_labels.
   std::vector<std::pair<RecordRef, const std::vector<DistrictIndex>*>> wide_plans;
@@ -283,6 +374,7 @@ ExportResult export_run(const ExportOptions& o) {
     }
     write(wide_file_name(rung), wide);
   }
+  if (o.tallies) write(tallies_file_name(rung), tallies);
   for (const RecordRef& ref : chosen) result.plans += left_out(bad, ref.chain) ? 0 : 1;
   for (const std::string& name : result.written) {  // renames within one file system: no new space
     fs::create_directories((out / name).parent_path());

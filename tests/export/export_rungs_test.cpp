@@ -49,7 +49,7 @@ TEST(ExportRungs, AHotRungsObservablesAndPlansAreThoseItRecorded) {
   ExportFixture f(kLadders);
   ExportOptions o = options_for(f, 2);
   o.plans.every = 10;
-  o.layout = PlanLayout::both;
+  o.layout = {.files = true, .wide = true};
   const ExportResult result = export_run(o);
   EXPECT_TRUE(result.left_out.empty());
   EXPECT_EQ(result.plans, 12U);

@@ -137,7 +137,7 @@ TEST(Export, WideTableHasOneColumnPerPlan) {
   ExportFixture f;
   ExportOptions o = options_for(f);
   o.plans.records = {{1, 5}, {0, 39}};
-  o.layout = PlanLayout::wide;
+  o.layout = {.files = false, .wide = true};
   (void)export_run(o);
   EXPECT_FALSE(fs::exists(f.out_dir / "plans"));
   const CsvTable table = read_csv_file((f.out_dir / wide_file_name()).string());
@@ -148,7 +148,7 @@ TEST(Export, WideTableHasOneColumnPerPlan) {
     EXPECT_EQ(table.rows[u].fields[1], std::to_string(f.run.plans.at(0)[39][u] + 1));
     EXPECT_EQ(table.rows[u].fields[2], std::to_string(f.run.plans.at(1)[5][u] + 1));
   }
-  o.layout = PlanLayout::both;
+  o.layout = {.files = true, .wide = true};
   (void)export_run(o);
   expect_plan_file(f, {1, 5});
 }

@@ -1,8 +1,9 @@
 #pragma once
-// `planmill export`: a run's observables and chosen plans as plain CSV for R, Python and GIS users
-// (docs/export.md). Everything the user asked for is checked before the first file is written, so
-// a bad choice (a chain or record that does not exist, a map that cannot be found) writes nothing.
-// Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
+// `planmill export`: a run's observables and chosen plans as plain CSV for R, Python and GIS users,
+// the chosen plans' district tallies as one long CSV, and the chosen plans as one dense HDF5
+// matrix (docs/export.md, docs/format.md). Everything the user asked for is checked before the
+// first file is written, so a bad choice (a chain or record that does not exist, a map that
+// cannot be found) writes nothing. Each file is replaced atomically. A chain whose plan file is damaged is left out and reported;
 // the other chains are still exported. With a rung R > 0 everything written is rung R of each
 // chain's ladder, and only damage to that rung's records leaves a chain out.
 #include <cstdint>
@@ -28,15 +29,23 @@ struct PlanChoice {
   std::vector<std::uint64_t> chains;
 };
 
-enum class PlanLayout { files, wide, both };
+// The forms the chosen plans are written in; any mix, or none (e.g. only tallies).
+struct PlanLayout {
+  bool files = true;    // plans/chain-C-record-N.csv, one per plan
+  bool wide = false;    // plans-wide.csv, a column per plan
+  bool matrix = false;  // plan-matrix.h5, plans x units (docs/format.md)
+  friend bool operator==(const PlanLayout&, const PlanLayout&) = default;
+};
 
 struct ExportOptions {
   std::string run_dir;
   std::string out_dir;
   PlanChoice plans;
-  PlanLayout layout = PlanLayout::files;
+  PlanLayout layout;
+  bool tallies = false;  // district-tallies.csv: a row per chosen plan and district
   std::string units_path;  // unit table overriding the job's map.units; empty = the job's
   std::string id_column;   // overriding the job's map.id; empty = the job's
+  std::string adjacency_path;  // overriding the job's map.adjacency (for tallies); empty = job's
   // Rung of each chain's ladder to export: 0 = the chains (the ensemble); R > 0 needs every chain
   // of the run to have recorded rung R ([tempering] record = "all"), else InputError.
   std::uint64_t rung = 0;
@@ -57,6 +66,10 @@ struct ExportResult {
 [[nodiscard]] std::vector<std::uint64_t> parse_chain_list(std::string_view text,
                                                           const std::string& option);
 
+// "files,matrix" -> the forms named; "both" is files and wide, "none" no plan files. InputError
+// (key `option`) on anything else.
+[[nodiscard]] PlanLayout parse_plan_layout(std::string_view text, const std::string& option);
+
 // The chosen records, ascending and without repeats. InputError naming the first chain or record
 // that the run does not have.
 [[nodiscard]] std::vector<RecordRef> choose_records(const RunReader& run, const PlanChoice& choice);
@@ -76,6 +89,8 @@ struct ExportResult {
 [[nodiscard]] std::string plan_file_name(const RecordRef& ref, std::uint64_t rung = 0);
 [[nodiscard]] std::string wide_file_name(std::uint64_t rung = 0);  // plans-wide-rung-R.csv
 [[nodiscard]] std::string wide_column_name(const RecordRef& ref);  // cC_rN, whatever the rung
+[[nodiscard]] std::string tallies_file_name(std::uint64_t rung = 0);  // district-tallies-rung-R.csv
+[[nodiscard]] std::string matrix_file_name(std::uint64_t rung = 0);   // plan-matrix-rung-R.h5
 
 // InputError naming the first chain of the run that did not record `rung` (0 always passes).
 void check_rung_recorded(const RunReader& run, std::uint64_t rung);
