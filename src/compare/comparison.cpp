@@ -142,7 +142,7 @@ ScalarComparison compare_scalar(const ScalarTable& t, double plan) {
   r.mcse_beyond = r.beyond_every_draw ? kNaN : mcse_of_share(r.beyond, r.ess);
   // The rule of three: with no event in ESS independent draws, the event's probability is below
   // about 3 / ESS at 95% confidence (Hanley and Lippman-Hand 1983, JAMA 249(13)).
-  r.bound = r.beyond_every_draw ? std::min(1.0, 3.0 / r.ess) : kNaN;
+  r.bound = r.beyond_every_draw && r.ess > 0.0 ? std::min(1.0, 3.0 / r.ess) : kNaN;
 
   std::vector<double> sorted(buffer);
   if (finite.draws * finite.chains < r.finite) {  // NaN cut some chains shorter: use every number

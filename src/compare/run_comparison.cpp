@@ -146,8 +146,8 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
     const std::vector<double> rows = reader.read_observables(chains[c]);
     for (ScalarTable& t : tables) {
       const std::size_t col = column.at(t.name);
-      for (std::size_t d = 0; d < r.draws; ++d)
-        t.values[c * r.draws + d] = rows[(r.dropped_records + d) * stored.size() + col];
+      for (std::size_t draw = 0; draw < r.draws; ++draw)
+        t.values[c * r.draws + draw] = rows[(r.dropped_records + draw) * stored.size() + col];
     }
   }
   for (std::size_t i = 0; i < tables.size(); ++i) r.scalars.push_back(compare_scalar(tables[i], plan_values[i]));
