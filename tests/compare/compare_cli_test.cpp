@@ -135,3 +135,37 @@ TEST_F(CompareCli, AFolderThatIsNoRunIsRefused) {
 
 }  // namespace
 }  // namespace planmill
+
+namespace planmill {
+namespace {
+
+// A tempered run that records every rung: compare reads each chain's target rung only.
+TEST(CompareCliTempered, UsesTheTargetRungOfEachLadder) {
+  const fs::path dir = test::scratch_dir("planmill-compare-cli-rungs", std::to_string(::getpid()));
+  const fs::path job = test::write_synth_job(
+      dir,
+      "kernel = \"flip\"\nchains = 2\nsteps = 300\nburn_in = 60\nrecord_every = 3\nseed = 8\n"
+      "[tempering]\nrungs = 3\nhottest_beta = 0.2\nswap_every = 5\nrecord = \"all\"\n"
+      "[rules.weights]\ncut_edges = 0.5");
+  const std::string bin = PLANMILL_BINARY;
+  ASSERT_EQ(test::shell(bin + " run " + job.string() + " --output " + (dir / "run").string() + " --quiet >/dev/null 2>&1"), 0);
+  ASSERT_EQ(test::shell(bin + " export " + (dir / "run").string() + " --out " + (dir / "csv").string() +
+                        " --plans 0:11 >/dev/null 2>&1"),
+            0);
+  const int status = test::shell(bin + " compare " + (dir / "run").string() + " " +
+                                 (dir / "csv" / "plans" / "chain-0-record-11.csv").string() + " --json " +
+                                 (dir / "c.json").string() + " >" + (dir / "out").string() + " 2>&1");
+  EXPECT_TRUE(status == 0 || status == 3) << test::read_text(dir / "out");
+  const auto j = nlohmann::json::parse(test::read_text(dir / "c.json"));
+  // (300 - 60) / 3 = 80 records of the target rung per chain; the hotter rungs' 160 more per
+  // chain are not among them.
+  EXPECT_EQ(j["ensemble"]["records_used_per_chain"], 80);
+  for (const auto& s : j["scalars"]) {
+    EXPECT_EQ(s["draws"], 160) << s["name"];
+    EXPECT_GE(s["equal"].get<double>(), 1.0 / 160) << s["name"];  // the plan is one of the draws
+  }
+  fs::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace planmill
