@@ -373,6 +373,11 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
         s.integer("min_records", static_cast<std::int64_t>(defaults.min_records), 8, 1'000'000'000'000));
     s.reject_unknown();
   }
+  if (const toml::table* c = top.table("compare")) {
+    Section s(*c, "compare", job.path);
+    job.compare.declared = s.strings("declared");
+    s.reject_unknown();
+  }
   read_tempering(top, job);
   top.reject_unknown();
   return job;

@@ -55,6 +55,9 @@ checkpoint_seconds = 60
 rhat_max = 1.05
 ess_min = 200
 min_records = 300
+
+[compare]
+declared = ["cut_edges", "election.gov.efficiency_gap"]
 )";
 
 TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
@@ -80,6 +83,7 @@ TEST(JobFile, ParsesEveryKeyAndResolvesPathsAgainstTheJobFolder) {
   EXPECT_EQ(job.output.dir, "jobs/runs/x");
   EXPECT_DOUBLE_EQ(job.verdict.ess_min, 200.0);
   EXPECT_EQ(job.verdict.min_records, 300u);
+  EXPECT_EQ(job.compare.declared, (std::vector<std::string>{"cut_edges", "election.gov.efficiency_gap"}));
   EXPECT_EQ(job.text, kGood);
 }
 
@@ -114,6 +118,8 @@ INSTANTIATE_TEST_SUITE_P(
     ::testing::Values(
         BadJob{"unknown key", "count = 20", "count = 20\ncolour = 3", "'districts.colour': unknown key"},
         BadJob{"unknown section", "[verdict]", "[verdikt]", "'verdikt': unknown key"},
+        BadJob{"declared not strings", "declared = [\"cut_edges\"", "declared = [3", "'compare.declared'"},
+        BadJob{"unknown compare key", "[compare]", "[compare]\nchosen = 1", "'compare.chosen': unknown key"},
         BadJob{"min_records too small", "min_records = 300", "min_records = 4", "'verdict.min_records'"},
         BadJob{"wrong type", "count = 20", "count = \"20\"", "'districts.count': must be a whole number"},
         BadJob{"out of range", "population_tolerance = 0.02", "population_tolerance = 1.5",

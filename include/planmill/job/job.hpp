@@ -65,6 +65,12 @@ enum class ChainStarts {
   random,  // every chain from its own random seed plan
 };
 
+// [compare] (docs/compare.md): the measures a comparison's summary speaks of, named before any plan
+// is compared, so that the summary cannot be chosen after seeing the results.
+struct CompareSpec {
+  std::vector<std::string> declared;  // observable names; empty: the summary gives only the overall statistics
+};
+
 struct JobSpec {
   std::string path;  // the job file as given
   std::string text;  // its full text, stored with every run
@@ -77,6 +83,7 @@ struct JobSpec {
   TemperingSpec tempering;
   OutputSpec output;
   diagnose::VerdictRule verdict;  // the [verdict] section (defaults: diagnose/verdict_rule.hpp)
+  CompareSpec compare;            // the [compare] section
 };
 
 // Parses job text; relative paths are resolved against the folder of `source`.

@@ -1,0 +1,42 @@
+#pragma once
+// A comparison of one plan with a run's ensemble as shown and written: the terminal text, the
+// JSON and the CSV of `planmill compare` (layouts: docs/compare.md). Every output carries
+// caution(); the summary speaks only of the measures declared before the comparison ([compare]
+// declared in the job) and of the overall statistics of the sorted-position vectors.
+#include <cstddef>
+#include <iosfwd>
+#include <nlohmann/json.hpp>
+#include <string>
+#include <vector>
+
+#include "planmill/compare/comparison.hpp"
+
+namespace planmill::compare {
+
+struct CompareReport {
+  std::string run_dir, plan_file;
+  std::vector<std::string> chains;     // chains used, after the verdict left out damaged ones
+  std::vector<std::size_t> records;    // their record counts
+  std::uint64_t burn_in_steps = 0;     // the job's steps before the first record
+  std::size_t dropped_records = 0;     // further leading records dropped per chain
+  std::size_t draws = 0;               // records used per chain
+  bool verdict_pass = false;
+  std::string verdict_line;            // the verdict as `planmill diagnose` words it
+  std::vector<std::string> warnings;
+  std::vector<std::string> not_stored;  // the plan's measures that the run has not recorded
+  std::vector<std::string> declared;    // [compare] declared, in the job's order
+  std::vector<ScalarComparison> scalars;
+  std::vector<VectorComparison> vectors;
+};
+
+[[nodiscard]] const std::string& caution();
+
+// One sentence per declared measure (or why it cannot be given), then one per vector's overall
+// statistic.
+[[nodiscard]] std::vector<std::string> summary(const CompareReport& report);
+
+void print_report(const CompareReport& report, std::ostream& out);
+[[nodiscard]] nlohmann::ordered_json report_json(const CompareReport& report);
+[[nodiscard]] std::string report_csv(const CompareReport& report);
+
+}  // namespace planmill::compare

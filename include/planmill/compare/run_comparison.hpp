@@ -1,0 +1,36 @@
+#pragma once
+// One plan against a run folder: reads the run (its chains after burn-in, the same records the
+// verdict judges), reads and checks the plan against the run's map, measures the plan with the
+// run's own observables and the MeasureEvaluator, and compares every measure the run has stored
+// under the same name.
+#include <cstddef>
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "planmill/compare/report.hpp"
+#include "planmill/run/run_reader.hpp"
+
+namespace planmill::compare {
+
+struct CompareOptions {
+  std::string run_dir;
+  std::string plan_file;
+  std::size_t dropped_records = 0;  // leading records dropped per chain, beyond the job's burn-in
+};
+
+// Throws InputError (exit 2 in the CLI) when the run or its job cannot be read, when the plan's
+// units do not match the run's map, or when no chain has records to compare with.
+[[nodiscard]] CompareReport compare_plan_with_run(const CompareOptions& options);
+
+// THE ONE PLACE that reads sorted-position vectors from a run: for each name (the
+// MeasureEvaluator's vector_names()) that the run stores, chains' records [first, first + draws)
+// as a VectorTable. Runs do not store them yet, so today it returns none; the report then lists
+// every vector as not stored.
+[[nodiscard]] std::vector<VectorTable> read_sorted_vectors(const RunReader& reader,
+                                                           const std::vector<std::uint64_t>& chains,
+                                                           std::size_t first, std::size_t draws,
+                                                           std::size_t positions,
+                                                           const std::vector<std::string>& names);
+
+}  // namespace planmill::compare

@@ -1,0 +1,170 @@
+#include "planmill/compare/run_comparison.hpp"
+
+#include <filesystem>
+#include <fstream>
+#include <map>
+#include <sstream>
+
+#include "planmill/base/error.hpp"
+#include "planmill/graph/load.hpp"
+#include "planmill/job/job.hpp"
+#include "planmill/job/job_rules.hpp"
+#include "planmill/manifest/run_diagnostics.hpp"
+#include "planmill/measures/measures.hpp"
+#include "planmill/moves/kernel.hpp"
+#include "planmill/run/observables.hpp"
+#include "planmill/seed/plan_csv.hpp"
+#include "planmill/seed/seed_plan.hpp"
+
+namespace planmill::compare {
+namespace {
+
+namespace fs = std::filesystem;
+
+JobSpec job_of_run(const RunReader& reader) {
+  const fs::path copy = reader.layout().job_copy();
+  std::ifstream in(copy, std::ios::binary);
+  if (!in)
+    throw InputError({copy.string(), 0, ""}, "the run folder has no readable copy of its job, so its map is unknown",
+                     "give a run folder written by 'planmill run'");
+  std::ostringstream text;
+  text << in.rdbuf();
+  // Relative paths in the job are relative to the job file as it was given to `planmill run`.
+  const std::string& given = reader.state().job_path;
+  return parse_job_text(text.str(), given.empty() ? copy.string() : given);
+}
+
+// The plan's value of every scalar it can be given, by name: the run's own observables first.
+struct PlanValues {
+  std::map<std::string, double> scalars;
+  std::vector<std::string> scalar_order;
+  std::vector<std::string> vector_names;
+  std::vector<std::vector<double>> vectors;
+};
+
+PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSet& rules) {
+  PlanValues v;
+  const std::vector<std::string> observed = observable_names(*graph, rules);
+  std::vector<double> values(observed.size());
+  const ChainState state(plan, rules);
+  compute_observables(*graph, state, values);
+  for (std::size_t i = 0; i < observed.size(); ++i) {
+    v.scalars.emplace(observed[i], values[i]);
+    v.scalar_order.push_back(observed[i]);
+  }
+  // The run stores measures of default_measure_spec until jobs choose their own (docs/compare.md).
+  MeasureEvaluator evaluator(graph, plan.district_count(), default_measure_spec(*graph));
+  evaluator.evaluate(plan);
+  for (std::size_t i = 0; i < evaluator.scalar_names().size(); ++i) {
+    if (v.scalars.emplace(evaluator.scalar_names()[i], evaluator.scalars()[i]).second)
+      v.scalar_order.push_back(evaluator.scalar_names()[i]);
+  }
+  v.vector_names = evaluator.vector_names();
+  for (std::size_t i = 0; i < v.vector_names.size(); ++i) {
+    const auto sorted = evaluator.sorted_vector(i);
+    v.vectors.emplace_back(sorted.begin(), sorted.end());
+  }
+  return v;
+}
+
+}  // namespace
+
+std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
+                                             std::size_t first, std::size_t draws, std::size_t positions,
+                                             const std::vector<std::string>& names) {
+  // Runs do not store sorted vectors yet. When they do (a per-chain reader call such as
+  // reader.read_sorted(chain, name), records x positions), fill one VectorTable per stored name
+  // here from records [first, first + draws) of each chain; nothing else needs to change.
+  (void)reader, (void)chains, (void)first, (void)draws, (void)positions, (void)names;
+  return {};
+}
+
+CompareReport compare_plan_with_run(const CompareOptions& o) {
+  if (!fs::is_directory(o.run_dir))
+    throw InputError({o.run_dir, 0, {}}, "is not a folder", "give the run folder that 'planmill run' wrote");
+  const RunReader reader(o.run_dir);
+  const std::vector<ChainProblem> problems = reader.verify();
+  const RunVerdictRule rule = verdict_rule_of_run(reader);
+  const RunDiagnostics d = diagnose_run(reader, rule.rule, {.dropped_records = o.dropped_records, .problems = problems});
+
+  CompareReport r;
+  r.run_dir = o.run_dir;
+  r.plan_file = o.plan_file;
+  r.burn_in_steps = reader.state().burn_in;
+  r.dropped_records = d.dropped_records;
+  r.draws = d.draws;
+  r.chains = d.chains;
+  r.records = d.records;
+  r.verdict_pass = d.pass();
+  std::ostringstream verdict;
+  print_verdict(d, verdict);
+  r.verdict_line = verdict.str();
+  for (const auto& l : d.left_out) r.warnings.push_back("chain " + l.chain + " left out: " + l.why);
+  for (const auto& n : d.notes) r.warnings.push_back(n);
+  if (r.chains.empty() || r.draws == 0)
+    throw InputError({o.run_dir, 0, {}}, "has no chain with records to compare with",
+                     "run the job longer, or check it with 'planmill diagnose'");
+
+  const JobSpec job = job_of_run(reader);
+  r.declared = job.compare.declared;
+  LoadReport load;
+  const GraphHandle graph = share_graph(load_unit_graph(job.map, &load));
+  if (graph->unit_count() != reader.unit_count())
+    throw InputError({job.map.units_path, 0, {}},
+                     "has " + std::to_string(graph->unit_count()) + " units but the run's plans have " +
+                         std::to_string(reader.unit_count()),
+                     "the map changed since the run; restore the map the run used");
+  const Plan plan = read_plan_csv(o.plan_file, graph, reader.district_count());
+  const RuleSet rules = make_rule_set(job.rules, *graph, job.path);
+  try {
+    check_seed_plan(plan, rules, o.plan_file);
+  } catch (const std::exception& e) {
+    r.warnings.push_back(std::string("the plan breaks a hard rule of the run, so the ensemble holds no plan like it: ") +
+                         e.what());
+  }
+  const PlanValues values = measure_plan(plan, graph, rules);
+
+  std::vector<std::uint64_t> chains;
+  for (const std::string& c : r.chains) chains.push_back(std::stoull(c));
+  const std::vector<std::string>& stored = reader.observable_names();
+  std::map<std::string, std::size_t> column;
+  for (std::size_t i = 0; i < stored.size(); ++i) column.emplace(stored[i], i);
+  std::vector<ScalarTable> tables;
+  std::vector<double> plan_values;
+  for (const std::string& name : values.scalar_order) {
+    if (column.count(name) == 0) {
+      r.not_stored.push_back(name);
+      continue;
+    }
+    tables.push_back({name, std::vector<double>(r.draws * chains.size()), r.draws, chains.size()});
+    plan_values.push_back(values.scalars.at(name));
+  }
+  for (const std::string& name : stored)
+    if (values.scalars.count(name) == 0)
+      r.warnings.push_back("the run stores '" + name + "', which compare cannot compute for a plan; it is not compared");
+  for (std::size_t c = 0; c < chains.size(); ++c) {
+    const std::vector<double> rows = reader.read_observables(chains[c]);
+    for (ScalarTable& t : tables) {
+      const std::size_t col = column.at(t.name);
+      for (std::size_t draw = 0; draw < r.draws; ++draw)
+        t.values[c * r.draws + draw] = rows[(r.dropped_records + draw) * stored.size() + col];
+    }
+  }
+  for (std::size_t i = 0; i < tables.size(); ++i) r.scalars.push_back(compare_scalar(tables[i], plan_values[i]));
+
+  const std::vector<VectorTable> vectors = read_sorted_vectors(reader, chains, r.dropped_records, r.draws,
+                                                               reader.district_count(), values.vector_names);
+  for (std::size_t v = 0; v < values.vector_names.size(); ++v) {
+    const VectorTable* table = nullptr;
+    for (const auto& t : vectors)
+      if (t.name == values.vector_names[v]) table = &t;
+    if (table == nullptr) {
+      r.not_stored.push_back(values.vector_names[v]);
+      continue;
+    }
+    r.vectors.push_back(compare_vector(*table, values.vectors[v]));
+  }
+  return r;
+}
+
+}  // namespace planmill::compare
