@@ -285,7 +285,8 @@ void read_measures(Section& top, JobSpec& job) {
   }
   if (const toml::node* node = s.get("groups")) {
     const toml::array* list = node->as_array();
-    if (!list || !list->is_array_of_tables())
+    // groups = [] measures no group; otherwise one [[measures.groups]] table per group.
+    if (!list || (!list->empty() && !list->is_array_of_tables()))
       s.fail("groups", "must be a list of tables", "write each group as a [[measures.groups]] section");
     m.groups.emplace();
     for (const toml::node& item : *list) {
