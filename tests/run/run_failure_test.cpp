@@ -45,13 +45,14 @@ void expect_intact(const fs::path& out) {
   EXPECT_TRUE(problems.empty()) << problems.front().what;
 }
 
-// The run folder is on a 3 MiB file system; once two checkpoints are in, the disk is filled, so
-// the next commit cannot write its plan files.
+// The run folder is on a 12 MiB file system (with the measures' observables and sorted vectors
+// the whole run no longer fits in 3 MiB); once two checkpoints are in, the disk is filled, so the next
+// commit cannot write its plan files.
 TEST(RunFailure, AFullDiskEndsEveryRankWithExit5AndTheRunResumesOnceThereIsRoom) {
   test::SmallDisk::release_leftover(
       std::filesystem::temp_directory_path() / "planmill-failure-test-disk" / "disk");
   const auto dir = scratch("disk");
-  test::SmallDisk disk(dir / "disk", 3 << 20);
+  test::SmallDisk disk(dir / "disk", 12 << 20);
   if (!disk.available()) GTEST_SKIP() << "cannot mount a tmpfs here (needs root)";
   const auto job = test::write_synth_job(
       dir, "chains = 4\nsteps = 400000\nburn_in = 0\nrecord_every = 100\nseed = 8", 1.0);
