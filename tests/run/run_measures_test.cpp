@@ -11,6 +11,8 @@
 #include <string>
 #include <vector>
 
+#include <nlohmann/json.hpp>
+
 #include "planmill/io/csv.hpp"
 #include "planmill/job/job_rules.hpp"
 #include "planmill/job/loaded_job.hpp"
@@ -116,6 +118,17 @@ TEST(RunMeasures, EveryStoredRecordEqualsAFreshEvaluatorOnItsStoredPlan) {
   }
   EXPECT_EQ(records, 2U * 130);  // steps 12, 15, ..., 399 after burn-in 10
   EXPECT_GT(differing_vectors, records / 2);
+
+  // The manifest lists what was measured, and says the run read group and vote columns.
+  ASSERT_EQ(test::shell(std::string(PLANMILL_BINARY) + " merge " + (dir / "out").string() + " >/dev/null 2>&1"), 0);
+  const auto m = nlohmann::json::parse(test::read_text(dir / "out" / "manifest.json"));
+  EXPECT_EQ(m["sorted"], nlohmann::json(fresh.vector_names()));
+  EXPECT_EQ(m["measures"]["scalars"], nlohmann::json(fresh.scalar_names()));
+  EXPECT_EQ(m["measures"]["groups"][1]["denominator"], "vap");
+  EXPECT_EQ(m["measures"]["groups"][0]["denominator"], "total population");
+  EXPECT_EQ(m["measures"]["competitive"], nlohmann::json::parse("[0.4, 0.6]"));
+  EXPECT_EQ(m["measures"]["reads_group_or_vote_columns"], true);
+  EXPECT_EQ(m["measures"]["rules_read_group_columns"], false);
 }
 
 TEST(RunMeasures, BadMeasuresAndJudgeKeysAreRefusedWithFileLineAndKey) {
