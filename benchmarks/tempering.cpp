@@ -23,7 +23,7 @@
 #include "planmill/diagnose/observable_diagnostics.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
-#include "planmill/run/observables.hpp"
+#include "planmill/measures/measures.hpp"
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/synth/synth.hpp"
 #include "planmill/temper/ladder.hpp"
@@ -85,15 +85,16 @@ double cpu_now() { return static_cast<double>(std::clock()) / CLOCKS_PER_SEC; }
 
 // draws x chains matrices (column-major) of the two quantities, filled by `record(c, d)`.
 struct Traces {
-  std::vector<double> cut, seats, values;
+  std::vector<double> cut, seats;
   std::size_t draws, chains;
-  Traces(std::size_t d, std::size_t c, std::size_t observables)
-      : cut(d * c), seats(d * c), values(observables), draws(d), chains(c) {}
-  void record(const UnitGraph& g, const ChainState& s, const Observed& o, std::size_t c,
+  MeasureEvaluator measures;
+  Traces(std::size_t d, std::size_t c, const MeasureEvaluator& m)
+      : cut(d * c), seats(d * c), draws(d), chains(c), measures(m) {}
+  void record(const UnitGraph&, const ChainState& s, const Observed& o, std::size_t c,
               std::size_t d) {
-    compute_observables(g, s, values);
-    cut[c * draws + d] = values[o.cut_edges];
-    seats[c * draws + d] = values[o.seats];
+    measures.evaluate(s.plan);
+    cut[c * draws + d] = measures.scalars()[o.cut_edges];
+    seats[c * draws + d] = measures.scalars()[o.seats];
   }
 };
 
@@ -110,11 +111,11 @@ void finish(Result& r, Traces& t) {
 }
 
 Result run_independent(const Settings& s, const ChainSetup& base, const std::vector<Plan>& starts,
-                       const Observed& o, std::size_t observables) {
+                       const Observed& o, const MeasureEvaluator& measures) {
   Result r;
   r.name = std::to_string(s.chains) + " independent chains";
   const double t0 = cpu_now();
-  Traces t(s.draws, s.chains, observables);
+  Traces t(s.draws, s.chains, measures);
   const std::uint64_t thin = s.steps / s.draws;
   for (std::size_t c = 0; c < s.chains; ++c) {
     ChainSetup setup = base;
@@ -132,11 +133,11 @@ Result run_independent(const Settings& s, const ChainSetup& base, const std::vec
 }
 
 Result run_ladders(const Settings& s, const ChainSetup& base, const std::vector<Plan>& starts,
-                   const Observed& o, std::size_t observables, std::size_t rungs) {
+                   const Observed& o, const MeasureEvaluator& measures, std::size_t rungs) {
   Result r;
   r.name = std::to_string(s.chains) + " ladders of " + std::to_string(rungs) + " rungs";
   const double t0 = cpu_now();
-  Traces t(s.draws, s.chains, observables);
+  Traces t(s.draws, s.chains, measures);
   const std::uint64_t ladder_steps = s.steps / rungs, thin = ladder_steps / s.draws;
   r.swap_acceptance.assign(rungs - 1, 0.0);
   double trip_steps = 0;
@@ -229,14 +230,15 @@ int main(int argc, char** argv) {
   base.kernel.beta = s.beta;
   base.run_seed = s.run_seed;
 
-  const std::vector<std::string> names = observable_names(graph, base.rules);
+  const MeasureEvaluator measures(graph_handle, s.districts, default_measure_spec(graph));
+  const std::vector<std::string>& names = measures.scalar_names();
   const auto index_of = [&](const std::string& name) {
     for (std::size_t i = 0; i < names.size(); ++i) {
       if (names[i] == name) return i;
     }
     throw std::logic_error("no observable " + name);
   };
-  const Observed o{index_of("cut_edges"), index_of("seats.gov.A")};
+  const Observed o{index_of("compactness.cut_edges"), index_of("election.gov.seats.A")};
   std::vector<Plan> starts;
   for (std::size_t c = 0; c < s.chains; ++c) {
     Rng rng = make_stream(s.run_seed, 1000 + c);
@@ -257,9 +259,9 @@ int main(int argc, char** argv) {
       s.hottest, static_cast<unsigned long long>(s.swap_every));
 
   std::vector<Result> results;
-  results.push_back(run_independent(s, base, starts, o, names.size()));
+  results.push_back(run_independent(s, base, starts, o, measures));
   for (std::size_t rungs : s.rungs)
-    results.push_back(run_ladders(s, base, starts, o, names.size(), rungs));
+    results.push_back(run_ladders(s, base, starts, o, measures, rungs));
 
   std::printf(
       "| setting | R-hat cut_edges | bulk ESS cut_edges | R-hat seats | bulk ESS seats | "

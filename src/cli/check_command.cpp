@@ -1,6 +1,7 @@
 #include <cstdio>
 #include <iostream>
 #include <set>
+#include <string>
 
 #include "cli/commands.hpp"
 #include "planmill/job/loaded_job.hpp"
@@ -30,6 +31,28 @@ int run_check(const std::string& job_path) {
   std::printf("start        %s\n", loaded.start ? loaded.job.start.c_str() : "random seed plans");
   std::printf("kernel       %s, %zu chains x %llu steps\n", kernel_name(loaded.job.sampler.kernel),
               loaded.job.sampler.chains, static_cast<unsigned long long>(loaded.job.sampler.steps));
+  const MeasureSpec& m = loaded.measures;
+  for (const auto& e : m.elections)
+    std::printf("measure      election %s: %s against %s (seats, efficiency gap, mean-median, bias, "
+                "declination, competitive in [%g, %g], sorted shares)\n",
+                e.name.c_str(), e.party_a.c_str(), e.party_b.c_str(), m.competitive_low, m.competitive_high);
+  for (const auto& gr : m.groups) {
+    std::string above;
+    for (const double t : gr.thresholds) {
+      char text[32];
+      std::snprintf(text, sizeof text, "%g", t);
+      above += (above.empty() ? "" : ", ") + std::string(text);
+    }
+    std::printf("measure      group %s: share of %s, districts above %s, sorted shares\n", gr.name.c_str(),
+                gr.denominator ? g.count_column_name(*gr.denominator).c_str() : "total population",
+                above.empty() ? "(no threshold)" : above.c_str());
+  }
+  std::printf("measure      compactness: cut edges, Polsby-Popper%s\n",
+              g.has_areas() && g.has_outer_boundary() && g.has_edge_lengths()
+                  ? ""
+                  : " (NaN: the map lacks areas, outer boundaries or shared lengths)");
+  if (m.county_splits) std::printf("measure      county splits and pieces\n");
+  if (m.municipality_splits) std::printf("measure      municipality splits and pieces\n");
   std::printf("ok\n");
   return 0;
 }

@@ -107,11 +107,11 @@ int diagnose_run_dir(const DiagnoseOptions& o) {
   const auto problems = reader.verify();
   const Given given = thresholds_given(o);
   // With every threshold given, the job's [verdict] is not read (it may be what is broken).
-  RunVerdictRule rule = given.all ? RunVerdictRule{{}, "command line"} : verdict_rule_of_run(reader);
+  RunVerdictRule rule = given.all ? RunVerdictRule{{}, "command line", std::nullopt} : verdict_rule_of_run(reader);
   if (given.any && !given.all) rule.source = "command line and " + rule.source;
   rule.rule = with_options(rule.rule, o);
   RunDiagnostics d =
-      diagnose_run(reader, rule.rule, {.dropped_records = dropped_records(o), .problems = problems});
+      diagnose_run(reader, rule.rule, {.dropped_records = dropped_records(o), .problems = problems, .judge = rule.judge});
   d.rule_source = rule.source;
 
   std::cout << d.chains.size() << " chains x " << d.draws << " draws, "

@@ -21,7 +21,7 @@ int run_merge(const std::string& run_dir) {
   const RunReader reader(run_dir);
   const auto problems = reader.verify();
   const RunVerdictRule rule = verdict_rule_of_run(reader);
-  RunDiagnostics diagnostics = diagnose_run(reader, rule.rule, {.problems = problems});
+  RunDiagnostics diagnostics = diagnose_run(reader, rule.rule, {.problems = problems, .judge = rule.judge});
   diagnostics.rule_source = rule.source;
   const auto rung_problems = reader.verify_rungs();  // hot rungs: never part of the verdict
   const auto manifest = build_manifest(reader, problems, rung_problems, diagnostics);

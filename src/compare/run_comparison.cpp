@@ -1,5 +1,6 @@
 #include "planmill/compare/run_comparison.hpp"
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -8,6 +9,7 @@
 #include "planmill/base/error.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
+#include "planmill/job/job_measures.hpp"
 #include "planmill/job/job_rules.hpp"
 #include "planmill/manifest/run_diagnostics.hpp"
 #include "planmill/measures/measures.hpp"
@@ -42,28 +44,24 @@ struct PlanValues {
   std::vector<std::vector<double>> vectors;
 };
 
-PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSet& rules) {
+PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSet& rules,
+                        const MeasureSpec& spec) {
   PlanValues v;
-  const std::vector<std::string> observed = observable_names(*graph, rules);
+  // The same evaluator and observables the runner records (run/observables.hpp).
+  MeasureEvaluator evaluator(graph, plan.district_count(), spec);
+  const std::vector<std::string> observed = observable_names(*graph, rules, evaluator);
   std::vector<double> values(observed.size());
+  std::vector<double> sorted(evaluator.vector_names().size() * plan.district_count());
   const ChainState state(plan, rules);
-  compute_observables(*graph, state, values);
+  compute_observables(state, evaluator, values, sorted);
   for (std::size_t i = 0; i < observed.size(); ++i) {
-    v.scalars.emplace(observed[i], values[i]);
-    v.scalar_order.push_back(observed[i]);
-  }
-  // The run stores measures of default_measure_spec until jobs choose their own (docs/compare.md).
-  MeasureEvaluator evaluator(graph, plan.district_count(), default_measure_spec(*graph));
-  evaluator.evaluate(plan);
-  for (std::size_t i = 0; i < evaluator.scalar_names().size(); ++i) {
-    if (v.scalars.emplace(evaluator.scalar_names()[i], evaluator.scalars()[i]).second)
-      v.scalar_order.push_back(evaluator.scalar_names()[i]);
+    if (v.scalars.emplace(observed[i], values[i]).second) v.scalar_order.push_back(observed[i]);
   }
   v.vector_names = evaluator.vector_names();
-  for (std::size_t i = 0; i < v.vector_names.size(); ++i) {
-    const auto sorted = evaluator.sorted_vector(i);
-    v.vectors.emplace_back(sorted.begin(), sorted.end());
-  }
+  const std::size_t k = plan.district_count();
+  for (std::size_t i = 0; i < v.vector_names.size(); ++i)
+    v.vectors.emplace_back(sorted.begin() + static_cast<std::ptrdiff_t>(i * k),
+                           sorted.begin() + static_cast<std::ptrdiff_t>((i + 1) * k));
   return v;
 }
 
@@ -72,11 +70,19 @@ PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSe
 std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
                                              std::size_t first, std::size_t draws, std::size_t positions,
                                              const std::vector<std::string>& names) {
-  // Runs do not store sorted vectors yet. When they do (a per-chain reader call such as
-  // reader.read_sorted(chain, name), records x positions), fill one VectorTable per stored name
-  // here from records [first, first + draws) of each chain; nothing else needs to change.
-  (void)reader, (void)chains, (void)first, (void)draws, (void)positions, (void)names;
-  return {};
+  std::vector<VectorTable> tables;
+  const std::vector<std::string>& stored = reader.sorted_names();
+  for (const std::string& name : names) {
+    if (std::find(stored.begin(), stored.end(), name) == stored.end()) continue;
+    VectorTable t{name, std::vector<double>(chains.size() * draws * positions), draws, chains.size(), positions};
+    for (std::size_t c = 0; c < chains.size(); ++c) {
+      const std::vector<double> rows = reader.read_sorted(chains[c], name);  // records x positions
+      std::copy_n(rows.begin() + static_cast<std::ptrdiff_t>(first * positions), draws * positions,
+                  t.values.begin() + static_cast<std::ptrdiff_t>(c * draws * positions));
+    }
+    tables.push_back(std::move(t));
+  }
+  return tables;
 }
 
 CompareReport compare_plan_with_run(const CompareOptions& o) {
@@ -122,7 +128,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
     r.warnings.push_back(std::string("the plan breaks a hard rule of the run, so the ensemble holds no plan like it: ") +
                          e.what());
   }
-  const PlanValues values = measure_plan(plan, graph, rules);
+  const PlanValues values = measure_plan(plan, graph, rules, make_measure_spec(job.measures, *graph));
 
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));

@@ -1,6 +1,8 @@
 #include "planmill/job/loaded_job.hpp"
 
 #include "planmill/graph/feasibility.hpp"
+#include "planmill/base/error.hpp"
+#include "planmill/job/job_measures.hpp"
 #include "planmill/job/job_rules.hpp"
 #include "planmill/seed/plan_csv.hpp"
 #include "planmill/seed/seed_plan.hpp"
@@ -8,10 +10,16 @@
 namespace planmill {
 
 LoadedJob load_and_check_job(const std::string& job_path) {
-  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt};
+  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt, {}};
   loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
   check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_tolerance, job_path);
   const RuleSet rules = make_rule_set(loaded.job.rules, *loaded.graph, job_path);
+  loaded.measures = make_measure_spec(loaded.job.measures, *loaded.graph);
+  try {
+    (void)MeasureEvaluator(loaded.graph, loaded.job.districts, loaded.measures);
+  } catch (const std::invalid_argument& e) {
+    throw InputError({job_path, 0, "measures"}, e.what(), "fix the [measures] section (docs/jobs.md)");
+  }
   if (loaded.job.start != "random") {
     loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));
     check_seed_plan(*loaded.start, rules, loaded.job.start);

@@ -133,6 +133,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
   m["burn_in"] = s.burn_in;
   m["record_every"] = s.record_every;
   m["observables"] = s.observable_names;
+  m["sorted"] = s.sorted_names;
+  m["measures"] = s.measures_json.empty() ? json(nullptr) : json::parse(s.measures_json);
   m["unit_count"] = reader.unit_count();
   m["district_count"] = reader.district_count();
   m["checkpoints"] = s.checkpoints;

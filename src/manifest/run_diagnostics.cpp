@@ -15,6 +15,7 @@
 #include "planmill/base/error.hpp"
 #include "planmill/io/json_number.hpp"
 #include "planmill/job/job.hpp"
+#include "planmill/run/judged_draws.hpp"
 #include "planmill/store/hdf5_handle.hpp"
 
 namespace planmill {
@@ -85,7 +86,9 @@ RunDiagnostics diagnose_run(const RunReader& reader, const diagnose::VerdictRule
   }
   std::sort(left_out.begin(), left_out.end());
   for (auto& [chain, why] : left_out) draws.left_out.push_back({std::to_string(chain), std::move(why)});
-  RunDiagnostics d = diagnose::assess_convergence(draws, rule);
+  JudgedDraws judged = judged_draws(draws, options.judge);
+  RunDiagnostics d = diagnose::assess_convergence(judged.draws, rule);
+  d.notes.insert(d.notes.end(), judged.notes.begin(), judged.notes.end());
   if (const std::string start = shared_start_plan(reader); !start.empty() && d.chains.size() > 1)
     d.notes.push_back(shared_start_note(start));
   return d;
@@ -113,7 +116,7 @@ RunVerdictRule verdict_rule_of_run(const RunReader& reader) {
         continue;  // damaged files are reported by verify(); another one may hold the text
       }
     }
-    if (source.empty()) return {{}, "defaults (no job text found in the run folder)"};
+    if (source.empty()) return {{}, "defaults (no job text found in the run folder)", std::nullopt};
   }
   toml::table root;
   try {
@@ -123,9 +126,9 @@ RunVerdictRule verdict_rule_of_run(const RunReader& reader) {
                      "the run's job text is not valid TOML: " + std::string(e.description()),
                      "give --rhat-max and --ess-min on the command line");
   }
-  if (!root.contains("verdict")) return {{}, "defaults (the job has no [verdict] section)"};
+  if (!root.contains("verdict")) return {{}, "defaults (the job has no [verdict] section)", std::nullopt};
   const JobSpec job = parse_job_text(text, source);
-  return {job.verdict, "job [verdict] in " + source};
+  return {job.verdict, "job [verdict] in " + source, job.verdict_judge};
 }
 
 namespace {

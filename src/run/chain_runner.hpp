@@ -2,7 +2,8 @@
 // The runner's state, shared by the files that implement it (private to src/run):
 //   session.cpp          new or resumed run state, the session's start, building chains/ladders
 //   runner.cpp           the round loop: stepping chains and ladders, and how a run ends
-//   recorder.cpp         recording plans and observables into this rank's plan file
+//   recorder.cpp         recording plans, observables and sorted vectors into this rank's plan file
+//   observables.cpp      what is recorded with each plan (planmill/run/observables.hpp)
 //   commit.cpp           the checkpoint: closing plan files, committing the run state
 //   until_converged.cpp  judging a block of --until-converged by the stopping rule
 //   progress.cpp         progress reports and the closing summary
@@ -20,6 +21,7 @@
 #include "planmill/chain/chain.hpp"
 #include "planmill/diagnose/convergence.hpp"
 #include "planmill/job/loaded_job.hpp"
+#include "planmill/measures/measures.hpp"
 #include "planmill/rules/rules.hpp"
 #include "planmill/run/placement.hpp"
 #include "planmill/run/run_lock.hpp"
@@ -66,6 +68,7 @@ struct LocalChain {
     return sum;
   }
   [[nodiscard]] std::string save() const { return ladder ? ladder->save() : chain->save(); }
+  std::optional<MeasureEvaluator> measures;  // made once, used for every record of the chain
   ChainEntry entry;                      // as last committed
   std::vector<std::size_t> handles;      // in the open writer, per recorded rung; SIZE_MAX: none yet
   std::uint64_t segment_records = 0;     // recorded since the last checkpoint (on the home rank)
@@ -152,8 +155,12 @@ class ChainRunner {
   RunLayout layout_;
   RunState state_;
   std::uint64_t segment_ = 0;
-  std::vector<std::string> names_;
+  MeasureSpec measure_spec_;              // the job's [measures] for this map
+  std::vector<std::string> names_;        // observables
   std::vector<double> row_;
+  std::vector<std::string> sorted_names_;  // the measures' sorted vectors
+  std::vector<double> sorted_;             // one record's, one after another
+  std::string measures_text_;              // measures_json() for the run state
   std::vector<LocalChain> chains_;
   EnsembleHeader header_;
   std::unique_ptr<EnsembleWriter> writer_;

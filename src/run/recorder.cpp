@@ -1,5 +1,5 @@
 // Recording: this rank's plan file of the segment, opened at the first record, and the plans
-// and observables of chains and of ladders' recorded rungs written into it (a replica held on
+// with their observables and sorted vectors of chains and of ladders' recorded rungs written into it (a replica held on
 // another rank sends its plan to the ladder's home rank).
 #include "run/chain_runner.hpp"
 
@@ -30,17 +30,19 @@ void ChainRunner::open_writer() {
 
 std::size_t ChainRunner::writer_handle(LocalChain& local, std::uint64_t rung) {
   std::size_t& handle = local.handles[rung];
-  if (handle == SIZE_MAX) handle = writer_->add_chain(rung_record_index(local.entry.index, rung), names_);
+  if (handle == SIZE_MAX)
+    handle = writer_->add_chain(rung_record_index(local.entry.index, rung), names_, sorted_names_,
+                                header_.district_count);
   return handle;
 }
 
 void ChainRunner::record_chain(LocalChain& local, std::uint64_t step) {
   open_writer();
   const ChainState& state = local.chain->state();
-  compute_observables(*loaded_->graph, state, row_);
+  compute_observables(state, *local.measures, row_, sorted_);
   // The units moved since the last record spare the writer a scan of the whole plan.
   writer_->record(writer_handle(local, 0), step, state.plan.assignment(), row_,
-                  state.plan.changes());
+                  state.plan.changes(), sorted_);
   local.chain->clear_plan_changes();
   ++local.segment_records;
 }
@@ -58,11 +60,13 @@ void ChainRunner::record_ladder(LocalChain& local, std::uint64_t step) {
     std::span<const DistrictIndex> plan;
     if (owner == w_.rank) {
       const ChainState& state = ladder.replica(replica).state();
-      compute_observables(*loaded_->graph, state, row_);
+      compute_observables(state, *local.measures, row_, sorted_);
       plan = state.plan.assignment();
       if (!home) {
         MPI_Send(row_.data(), static_cast<int>(row_.size()), MPI_DOUBLE, local.home, kRecordTag,
                  MPI_COMM_WORLD);
+        MPI_Send(sorted_.data(), static_cast<int>(sorted_.size()), MPI_DOUBLE, local.home,
+                 kRecordTag, MPI_COMM_WORLD);
         MPI_Send(plan.data(), static_cast<int>(plan.size()), MPI_UINT16_T, local.home, kRecordTag,
                  MPI_COMM_WORLD);
         continue;
@@ -70,13 +74,15 @@ void ChainRunner::record_ladder(LocalChain& local, std::uint64_t step) {
     } else if (home) {
       MPI_Recv(row_.data(), static_cast<int>(row_.size()), MPI_DOUBLE, owner, kRecordTag,
                MPI_COMM_WORLD, MPI_STATUS_IGNORE);
+      MPI_Recv(sorted_.data(), static_cast<int>(sorted_.size()), MPI_DOUBLE, owner, kRecordTag,
+               MPI_COMM_WORLD, MPI_STATUS_IGNORE);
       MPI_Recv(incoming_plan_.data(), static_cast<int>(incoming_plan_.size()), MPI_UINT16_T,
                owner, kRecordTag, MPI_COMM_WORLD, MPI_STATUS_IGNORE);
       plan = incoming_plan_;
     } else {
       continue;
     }
-    writer_->record(writer_handle(local, r), step, plan, row_);
+    writer_->record(writer_handle(local, r), step, plan, row_, PlanChanges{}, sorted_);
   }
   if (home) ++local.segment_records;
 }

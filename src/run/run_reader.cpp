@@ -154,6 +154,21 @@ std::vector<double> RunReader::read_observables(std::uint64_t chain, std::uint64
   return out;
 }
 
+std::vector<double> RunReader::read_sorted(std::uint64_t chain, const std::string& name,
+                                           std::uint64_t rung) const {
+  if (std::find(state_.sorted_names.begin(), state_.sorted_names.end(), name) == state_.sorted_names.end())
+    throw std::out_of_range("the run has no sorted vector " + name);
+  const std::uint64_t index = store_index(chain, rung);
+  std::vector<double> out;
+  for (const auto& s : spans_of(chain)) {
+    if (s.records == 0) continue;
+    const auto rows = reader_of(s).read_sorted(index, name);
+    const std::size_t take = std::min<std::size_t>(rows.size(), s.records * district_count_);
+    out.insert(out.end(), rows.begin(), rows.begin() + static_cast<std::ptrdiff_t>(take));
+  }
+  return out;
+}
+
 std::string RunReader::identity_of(const std::string& file) const {
   if (!identities_) {
     identities_.emplace();

@@ -54,6 +54,8 @@ json to_json(const RunState& s) {
   j["burn_in"] = s.burn_in;
   j["record_every"] = s.record_every;
   j["observables"] = s.observable_names;
+  if (!s.sorted_names.empty()) j["sorted"] = s.sorted_names;
+  if (!s.measures_json.empty()) j["measures"] = json::parse(s.measures_json);
   j["checkpoints"] = s.checkpoints;
   j["finished"] = s.finished;
   j["stop_reason"] = s.stop_reason;
@@ -115,6 +117,8 @@ RunState from_json(const json& j) {
   s.burn_in = j.at("burn_in").get<std::uint64_t>();
   s.record_every = j.at("record_every").get<std::uint64_t>();
   s.observable_names = j.at("observables").get<std::vector<std::string>>();
+  if (j.contains("sorted")) s.sorted_names = j.at("sorted").get<std::vector<std::string>>();
+  if (j.contains("measures")) s.measures_json = j.at("measures").dump();
   s.checkpoints = j.at("checkpoints").get<std::uint64_t>();
   s.finished = j.at("finished").get<bool>();
   s.stop_reason = j.at("stop_reason").get<std::string>();

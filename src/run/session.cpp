@@ -17,6 +17,7 @@
 #include "planmill/job/job_rules.hpp"
 #include "planmill/job/kernel_settings.hpp"
 #include "planmill/run/build_info.hpp"
+#include "planmill/run/judged_draws.hpp"
 #include "planmill/run/observables.hpp"
 #include "planmill/seed/seed_plan.hpp"
 #include "planmill/temper/job_ladder.hpp"
@@ -65,6 +66,12 @@ void ChainRunner::prepare() {
   everywhere_then_agree([&] {
     loaded_ = std::make_unique<LoadedJob>(load_and_check_job(options_.job_path));
     rules_ = make_rule_set(loaded_->job.rules, *loaded_->graph, options_.job_path);
+    measure_spec_ = loaded_->measures;
+    const MeasureEvaluator probe(loaded_->graph, loaded_->job.districts, measure_spec_);
+    names_ = observable_names(*loaded_->graph, rules_, probe);
+    sorted_names_ = probe.vector_names();
+    measures_text_ = measures_json(*loaded_->graph, rules_, probe);
+    check_judged_names(loaded_->job, names_);
   });
   const JobSpec& job = loaded_->job;
   const std::string dir = options_.output_dir ? *options_.output_dir : job.output.dir;
@@ -86,8 +93,15 @@ void ChainRunner::prepare() {
   });
   state_ = decode_run_state(broadcast_string(encoded));
   segment_ = state_.checkpoints;
-  names_ = state_.observable_names;
+  everywhere_then_agree([&] {
+    // A run drawn by a build that recorded other observables cannot be continued in the same files.
+    if (state_.observable_names != names_ || state_.sorted_names != sorted_names_)
+      throw InputError({layout_.state_file().string(), 0, "observables"},
+                       "the run records other observables than this build would",
+                       "resume with the planmill build that started the run, or start a new run with --output");
+  });
   row_.assign(names_.size(), 0.0);
+  sorted_.assign(sorted_names_.size() * loaded_->job.districts, 0.0);
   if (w_.root()) {
     for (const auto& warning : loaded_->report.warnings) spdlog::warn("{}", warning);
     if (loaded_->start && loaded_->job.starts == ChainStarts::given && state_.chains.size() > 1) {
@@ -148,7 +162,9 @@ RunState ChainRunner::new_state() {
   s.target_steps = job.sampler.steps;
   s.burn_in = job.sampler.burn_in;
   s.record_every = job.sampler.record_every;
-  s.observable_names = observable_names(*loaded_->graph, rules_);
+  s.observable_names = names_;
+  s.sorted_names = sorted_names_;
+  s.measures_json = measures_text_;
   for (std::uint64_t c = 0; c < job.sampler.chains; ++c) {
     ChainEntry entry;
     entry.index = c;
@@ -313,6 +329,7 @@ void ChainRunner::build_chains() {
         local.chain = std::make_unique<Chain>(setup, start_plan(entry.index));
         if (!entry.snapshot.empty()) local.chain->restore(entry.snapshot);
       }
+      local.measures.emplace(loaded_->graph, job.districts, measure_spec_);
       chains_.push_back(std::move(local));
     }
     incoming_plan_.resize(loaded_->graph->unit_count());

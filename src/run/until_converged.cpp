@@ -9,6 +9,7 @@
 #include "planmill/diagnose/convergence.hpp"
 #include "planmill/diagnose/verdict.hpp"
 #include "planmill/store/hdf5_handle.hpp"
+#include "planmill/run/judged_draws.hpp"
 #include "planmill/run/run_reader.hpp"
 
 namespace planmill::runner {
@@ -73,7 +74,10 @@ diagnose::ConvergenceReport ChainRunner::diagnose_committed() const {
       draws.left_out.push_back({std::to_string(c), std::string("observables cannot be read: ") + e.what()});
     }
   }
-  return diagnose::assess_convergence(draws, loaded_->job.verdict);
+  const JudgedDraws judged = judged_draws(draws, loaded_->job.verdict_judge);
+  diagnose::ConvergenceReport report = diagnose::assess_convergence(judged.draws, loaded_->job.verdict);
+  report.notes.insert(report.notes.end(), judged.notes.begin(), judged.notes.end());
+  return report;
 }
 
 }  // namespace planmill::runner

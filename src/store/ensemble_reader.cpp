@@ -176,24 +176,54 @@ void EnsembleReader::for_each_plan(
   }
 }
 
+namespace {
+
+std::vector<std::string> read_names(hid_t object, const std::string& path, const char* action) {
+  H5Attribute attr = checked<H5Attribute>(H5Aopen(object, "names", H5P_DEFAULT), path, action);
+  H5Dataspace space = checked<H5Dataspace>(H5Aget_space(attr.get()), path, action);
+  const hssize_t n = H5Sget_simple_extent_npoints(space.get());
+  if (n < 0) throw StoreError(path, action, hdf5_error_stack());
+  H5Type t = vlen_string_type(path);
+  std::vector<char*> p(static_cast<std::size_t>(n), nullptr);
+  check(H5Aread(attr.get(), t.get(), p.data()), path, action);
+  std::vector<std::string> names;
+  for (char* s : p) names.emplace_back(s ? s : "");
+  (void)H5Dvlen_reclaim(t.get(), space.get(), H5P_DEFAULT, p.data());
+  return names;
+}
+
+}  // namespace
+
 std::vector<std::string> EnsembleReader::observable_names(std::uint64_t chain) const {
   const Impl& m = *impl_;
   H5Group g = m.group(chain);
   if (H5Lexists(g.get(), "observables", H5P_DEFAULT) <= 0) return {};
   H5Dataset d = m.dataset(g, "observables");
-  H5Attribute attr = checked<H5Attribute>(H5Aopen(d.get(), "names", H5P_DEFAULT), m.path,
-                                          "reading observable names");
-  H5Dataspace space =
-      checked<H5Dataspace>(H5Aget_space(attr.get()), m.path, "reading observable names");
-  const hssize_t n = H5Sget_simple_extent_npoints(space.get());
-  if (n < 0) throw StoreError(m.path, "reading observable names", hdf5_error_stack());
-  H5Type t = vlen_string_type(m.path);
-  std::vector<char*> p(static_cast<std::size_t>(n), nullptr);
-  check(H5Aread(attr.get(), t.get(), p.data()), m.path, "reading observable names");
-  std::vector<std::string> names;
-  for (char* s : p) names.emplace_back(s ? s : "");
-  (void)H5Dvlen_reclaim(t.get(), space.get(), H5P_DEFAULT, p.data());
-  return names;
+  return read_names(d.get(), m.path, "reading observable names");
+}
+
+std::vector<std::string> EnsembleReader::sorted_names(std::uint64_t chain) const {
+  const Impl& m = *impl_;
+  H5Group g = m.group(chain);
+  if (H5Lexists(g.get(), "sorted", H5P_DEFAULT) <= 0) return {};
+  H5Group sorted = checked<H5Group>(H5Gopen2(g.get(), "sorted", H5P_DEFAULT), m.path, "opening group sorted");
+  return read_names(sorted.get(), m.path, "reading sorted vector names");
+}
+
+std::vector<double> EnsembleReader::read_sorted(std::uint64_t chain, const std::string& name) const {
+  const Impl& m = *impl_;
+  const auto names = sorted_names(chain);
+  if (std::find(names.begin(), names.end(), name) == names.end())
+    throw std::out_of_range(m.path + ": " + chain_group_name(chain) + " has no sorted vector " + name);
+  H5Group g = m.group(chain);
+  H5Group sorted = checked<H5Group>(H5Gopen2(g.get(), "sorted", H5P_DEFAULT), m.path, "opening group sorted");
+  H5Dataset d = m.dataset(sorted, name.c_str());
+  const auto dims = dims_of(d.get(), m.path);
+  if (dims.size() != 2) throw StoreError(m.path, "reading sorted/" + name, "not a records x k table");
+  std::vector<double> values(dims[0] * dims[1]);
+  read_rows(d.get(), H5T_NATIVE_DOUBLE, values.data(), 0, dims[0], dims[1], true, m.path,
+            "reading a sorted vector");
+  return values;
 }
 
 std::vector<double> EnsembleReader::read_observables(std::uint64_t chain) const {

@@ -37,6 +37,18 @@ void write_adjacency(hid_t root, const UnitAdjacency& adjacency, const std::stri
                path);
 }
 
+void write_names(hid_t object, const std::vector<std::string>& names, const std::string& path,
+                 const char* action) {
+  H5Type t = vlen_string_type(path);
+  const hsize_t n = names.size();
+  H5Dataspace space = checked<H5Dataspace>(H5Screate_simple(1, &n, nullptr), path, action);
+  H5Attribute attr = checked<H5Attribute>(
+      H5Acreate2(object, "names", t.get(), space.get(), H5P_DEFAULT, H5P_DEFAULT), path, action);
+  std::vector<const char*> p;
+  for (const auto& s : names) p.push_back(s.c_str());
+  check(H5Awrite(attr.get(), t.get(), p.data()), path, action);
+}
+
 }  // namespace
 
 struct EnsembleWriter::Impl {
@@ -45,6 +57,11 @@ struct EnsembleWriter::Impl {
     H5Group group;
     H5Dataset bytes, records, observables;
     std::size_t observable_count = 0;
+    H5Group sorted_group;
+    std::vector<H5Dataset> sorted;  // one per sorted vector
+    std::size_t sorted_width = 0;
+    std::vector<double> sorted_buffer;  // per record: every vector in turn
+    std::vector<double> slice;          // one vector's rows, reused
     std::unique_ptr<ChainEncoder> encoder;
     std::uint64_t record_count = 0;  // recorded so far, written or buffered
     std::uint64_t byte_count = 0;    // encoded bytes so far, written or buffered
@@ -71,6 +88,17 @@ struct EnsembleWriter::Impl {
       append_rows(c.observables.get(), H5T_NATIVE_DOUBLE, c.observable_buffer.data(),
                   c.written_records, buffered_records, c.observable_count, true, path,
                   "appending to observables");
+    for (std::size_t v = 0; v < c.sorted.size(); ++v) {
+      // Buffered records hold the vectors one after another; each dataset takes its own slice.
+      const std::size_t stride = c.sorted.size() * c.sorted_width;
+      c.slice.resize(buffered_records * c.sorted_width);
+      for (std::size_t r = 0; r < buffered_records; ++r)
+        std::copy_n(c.sorted_buffer.begin() + static_cast<std::ptrdiff_t>(r * stride + v * c.sorted_width),
+                    c.sorted_width, c.slice.begin() + static_cast<std::ptrdiff_t>(r * c.sorted_width));
+      append_rows(c.sorted[v].get(), H5T_NATIVE_DOUBLE, c.slice.data(), c.written_records,
+                  buffered_records, c.sorted_width, true, path, "appending to a sorted vector");
+    }
+    c.sorted_buffer.clear();
     c.written_bytes += c.byte_buffer.size();
     c.written_records += buffered_records;
     c.byte_buffer.clear();
@@ -122,6 +150,13 @@ EnsembleWriter::~EnsembleWriter() = default;  // an unclosed file is dropped wit
 
 std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
                                       const std::vector<std::string>& names) {
+  return add_chain(chain_index, names, {}, 0);
+}
+
+std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
+                                      const std::vector<std::string>& names,
+                                      const std::vector<std::string>& sorted_names,
+                                      std::size_t width) {
   Impl& m = *impl_;
   const std::string& path = m.path;
   Impl::ChainOut c;
@@ -141,16 +176,19 @@ std::size_t EnsembleWriter::add_chain(std::uint64_t chain_index,
     const hsize_t obs_chunk[2] = {kObservableChunkRows, names.size()};
     c.observables = create_stream(c.group.get(), "observables", H5T_IEEE_F64LE, obs_chunk,
                                   m.options.deflate_level, true, path);
-    H5Type t = vlen_string_type(path);
-    const hsize_t n = names.size();
-    H5Dataspace space =
-        checked<H5Dataspace>(H5Screate_simple(1, &n, nullptr), path, "writing observable names");
-    H5Attribute attr = checked<H5Attribute>(
-        H5Acreate2(c.observables.get(), "names", t.get(), space.get(), H5P_DEFAULT, H5P_DEFAULT),
-        path, "writing observable names");
-    std::vector<const char*> p;
-    for (const auto& s : names) p.push_back(s.c_str());
-    check(H5Awrite(attr.get(), t.get(), p.data()), path, "writing observable names");
+    write_names(c.observables.get(), names, path, "writing observable names");
+  }
+  if (!sorted_names.empty()) {
+    if (width == 0) throw std::invalid_argument("EnsembleWriter::add_chain: sorted vectors of width 0");
+    c.sorted_width = width;
+    c.sorted_group = checked<H5Group>(
+        H5Gcreate2(c.group.get(), "sorted", H5P_DEFAULT, H5P_DEFAULT, H5P_DEFAULT), path,
+        "creating group sorted");
+    write_names(c.sorted_group.get(), sorted_names, path, "writing sorted vector names");
+    const hsize_t chunk[2] = {kObservableChunkRows, width};
+    for (const auto& name : sorted_names)
+      c.sorted.push_back(create_stream(c.sorted_group.get(), name.c_str(), H5T_IEEE_F64LE, chunk,
+                                       m.options.deflate_level, true, path));
   }
   c.encoder = std::make_unique<ChainEncoder>(m.header.unit_count, m.header.district_count,
                                              &m.header.adjacency);
@@ -168,6 +206,13 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
 void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
                             std::span<const DistrictIndex> plan,
                             std::span<const double> observables, const PlanChanges& changes) {
+  record(chain, step, plan, observables, changes, {});
+}
+
+void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
+                            std::span<const DistrictIndex> plan,
+                            std::span<const double> observables, const PlanChanges& changes,
+                            std::span<const double> sorted) {
   Impl& m = *impl_;
   Impl::ChainOut& c = m.chains.at(chain);
   if (plan.size() != m.header.unit_count)
@@ -175,6 +220,8 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
                                 " units, the file " + std::to_string(m.header.unit_count));
   if (observables.size() != c.observable_count)
     throw std::invalid_argument("EnsembleWriter::record: wrong number of observables");
+  if (sorted.size() != c.sorted.size() * c.sorted_width)
+    throw std::invalid_argument("EnsembleWriter::record: wrong number of sorted values");
   const std::size_t before = c.byte_buffer.size();
   RecordKind kind = RecordKind::full;
   try {
@@ -190,6 +237,7 @@ void EnsembleWriter::record(std::size_t chain, std::uint64_t step,
   c.record_buffer.insert(c.record_buffer.end(),
                          {step, c.byte_count, length, static_cast<std::uint64_t>(kind)});
   c.observable_buffer.insert(c.observable_buffer.end(), observables.begin(), observables.end());
+  c.sorted_buffer.insert(c.sorted_buffer.end(), sorted.begin(), sorted.end());
   c.byte_count += length;
   ++c.record_count;
   if (c.byte_buffer.size() >= m.options.chunk_bytes ||
@@ -213,6 +261,8 @@ void EnsembleWriter::close() {
   for (auto& c : m.chains) m.write_pending(c);
   for (auto& c : m.chains) {
     check(c.observables.close(), path, "closing observables");
+    for (auto& d : c.sorted) check(d.close(), path, "closing a sorted vector");
+    check(c.sorted_group.close(), path, "closing group sorted");
     check(c.records.close(), path, "closing plan_records");
     check(c.bytes.close(), path, "closing plan_bytes");
     check(c.group.close(), path, "closing a chain group");

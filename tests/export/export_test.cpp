@@ -273,7 +273,7 @@ TEST(Export, ARealRunExportsValidPlansWhoseObservablesRecomputeFromThePlans) {
   const GraphHandle graph_handle = share_graph(load_unit_graph(job.map));
   const UnitGraph& graph = *graph_handle;
   const CsvTable table = read_csv_file((out / observables_file_name()).string());
-  const std::size_t cut = table.column_index("cut_edges");
+  const std::size_t cut = table.column_index("compactness.cut_edges");
   const std::size_t deviation = table.column_index("population_deviation");
   ASSERT_NE(cut, std::string::npos);
   ASSERT_NE(deviation, std::string::npos);

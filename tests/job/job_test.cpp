@@ -145,13 +145,49 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"unknown starts", "count = 20", "count = 20\nstart = \"plan.csv\"\nstarts = \"spread\"",
                "'districts.starts': unknown value 'spread'"},
         BadJob{"tempering needs hottest_beta", "[verdict]", "[tempering]\nrungs = 4\n[verdict]",
-               "'tempering.hottest_beta': required key is missing"}),
+               "'tempering.hottest_beta': required key is missing"},
+        BadJob{"unknown measures key", "[verdict]", "[measures]\nsplits = true\n[verdict]", "'measures.splits': unknown key"},
+        BadJob{"measured election not in map", "[verdict]", "[measures]\nelections = [\"sen\"]\n[verdict]",
+               "'measures.elections': 'sen' is not an election"},
+        BadJob{"municipality splits without codes", "[verdict]", "[measures]\nmunicipality_splits = true\n[verdict]",
+               "'measures.municipality_splits': municipality splits need municipality codes"},
+        BadJob{"threshold outside [0, 1]", "[verdict]",
+               "[[measures.groups]]\ngroup = \"grp\"\nthresholds = [1.5]\n[verdict]", "'measures.groups.thresholds'"},
+        BadJob{"group measured twice", "[verdict]",
+               "[[measures.groups]]\ngroup = \"grp\"\n[[measures.groups]]\ngroup = \"grp\"\n[verdict]",
+               "'measures.groups.group': 'grp' is measured twice"},
+        BadJob{"judge not a list", "min_records = 300", "min_records = 300\njudge = \"energy\"",
+               "'verdict.judge': must be a list of strings"}),
     [](const auto& info) {
       std::string name = info.param.name;
       for (char& ch : name)
         if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
       return name;
     });
+
+// [measures] and verdict.judge as written; left out, the lists stay unset (the defaults of
+// job_measures.hpp, every observable judged).
+TEST(JobFile, MeasuresAndJudgeKeys) {
+  std::string text = kGood;
+  text.replace(text.find("[verdict]"), 9,
+               "[measures]\nelections = [\"gov\"]\ncompetitive = [0.4, 0.6]\ncounty_splits = false\n"
+               "[[measures.groups]]\ngroup = \"grp\"\ndenominator = \"grp\"\nthresholds = [0.3, 0.5]\n"
+               "[verdict]\njudge = [\"energy\"]");
+  const JobSpec job = parse_job_text(text, "job.toml");
+  EXPECT_EQ(job.measures.elections, std::vector<std::string>{"gov"});
+  EXPECT_EQ(job.measures.competitive_low, 0.4);
+  EXPECT_EQ(job.measures.competitive_high, 0.6);
+  EXPECT_EQ(job.measures.county_splits, false);
+  EXPECT_FALSE(job.measures.municipality_splits.has_value());
+  ASSERT_TRUE(job.measures.groups.has_value());
+  ASSERT_EQ(job.measures.groups->size(), 1U);
+  EXPECT_EQ((*job.measures.groups)[0].denominator, "grp");
+  EXPECT_EQ((*job.measures.groups)[0].thresholds, (std::vector<double>{0.3, 0.5}));
+  EXPECT_EQ(job.verdict_judge, std::vector<std::string>{"energy"});
+  EXPECT_GT(job.verdict_judge_line, 0U);
+  const JobSpec plain = parse_job_text(kGood, "job.toml");
+  EXPECT_FALSE(plain.measures.elections || plain.measures.groups || plain.verdict_judge);
+}
 
 // With a start plan, chain 0 starts there and the others from random seed plans unless the job
 // says otherwise; without one every chain starts from a random seed plan.

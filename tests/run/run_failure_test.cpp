@@ -45,8 +45,9 @@ void expect_intact(const fs::path& out) {
   EXPECT_TRUE(problems.empty()) << problems.front().what;
 }
 
-// The run folder is on a 3 MiB file system; once two checkpoints are in, the disk is filled, so
-// the next commit cannot write its plan files.
+// The run folder is on a 12 MiB file system (with the measures' observables and sorted vectors
+// the whole run no longer fits in 3 MiB); once two checkpoints are in, the disk is filled, so the next
+// commit cannot write its plan files.
 TEST(RunFailure, AFullDiskEndsEveryRankWithExit5AndTheRunResumesOnceThereIsRoom) {
   test::SmallDisk::release_leftover(
       std::filesystem::temp_directory_path() / "planmill-failure-test-disk" / "disk");

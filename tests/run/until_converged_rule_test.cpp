@@ -10,6 +10,7 @@
 
 #include "../support/run_jobs.hpp"
 #include "planmill/diagnose/convergence.hpp"
+#include "planmill/run/judged_draws.hpp"
 #include "planmill/run/run_reader.hpp"
 #include "planmill/run/run_state.hpp"
 
@@ -29,7 +30,8 @@ diagnose::StopCheck check_prefix(const RunReader& reader, std::size_t records, c
     rows.resize(records * draws.observables.size());
     draws.chains.push_back({std::to_string(c), std::move(rows)});
   }
-  return diagnose::assess_convergence(draws, rule).stop;
+  // As the runner: observables with a value that is not a number are not judged.
+  return diagnose::assess_convergence(judged_draws(draws, std::nullopt).draws, rule).stop;
 }
 
 TEST(UntilConverged, StopsOnlyWhenTheStoppingRuleHolds) {

@@ -5,7 +5,9 @@
 #include <hdf5.h>
 #include <unistd.h>
 
+#include <cmath>
 #include <filesystem>
+#include <limits>
 #include <fstream>
 #include <random>
 
@@ -153,6 +155,53 @@ TEST(EnsembleStore, WrongAdjacencyOrLabelIsRefused) {
   EnsembleReader reader(path.string());
   ASSERT_EQ(reader.record_count(0), 2u);
   EXPECT_EQ(reader.read_plan(0, 1)[7], 1);
+  EXPECT_TRUE(reader.verify().empty());
+  fs::remove(path);
+}
+
+// Sorted vectors: one dataset per name, records x width, across several buffer flushes (the index
+// writes every 1024 records), beside the observables; a wrong size and an unknown name refused.
+TEST(EnsembleStore, SortedVectorsRoundTripPerRecord) {
+  const fs::path path = temp_file("sorted");
+  constexpr std::size_t kRecords = 2500, kWidth = 3;
+  const auto value = [](std::size_t r, std::size_t v, std::size_t i) {
+    return r == 7 && i == 2 ? std::numeric_limits<double>::quiet_NaN()
+                            : static_cast<double>(r) + 0.1 * static_cast<double>(v) + 0.01 * static_cast<double>(i);
+  };
+  {
+    EnsembleWriter writer(path.string(), {20, 3, "", {}});
+    const std::size_t h = writer.add_chain(4, {"x"}, {"e.sorted_shares", "g.sorted_shares"}, kWidth);
+    const std::size_t plain = writer.add_chain(5, {"x"});
+    std::vector<DistrictIndex> plan(20, 1);
+    std::vector<double> sorted(2 * kWidth);
+    for (std::size_t r = 0; r < kRecords; ++r) {
+      for (std::size_t v = 0; v < 2; ++v)
+        for (std::size_t i = 0; i < kWidth; ++i) sorted[v * kWidth + i] = value(r, v, i);
+      const double x = static_cast<double>(r);
+      writer.record(h, r, plan, std::span<const double>(&x, 1), PlanChanges{}, sorted);
+      if (r == 0) writer.record(plain, r, plan, std::span<const double>(&x, 1));
+    }
+    const double x = 0;
+    sorted.pop_back();
+    EXPECT_THROW(writer.record(h, 0, plan, std::span<const double>(&x, 1), PlanChanges{}, sorted),
+                 std::invalid_argument);
+    writer.close();
+  }
+  EnsembleReader reader(path.string());
+  EXPECT_EQ(reader.sorted_names(4), (std::vector<std::string>{"e.sorted_shares", "g.sorted_shares"}));
+  EXPECT_TRUE(reader.sorted_names(5).empty());
+  EXPECT_EQ(reader.record_count(4), kRecords);
+  for (std::size_t v = 0; v < 2; ++v) {
+    const auto rows = reader.read_sorted(4, v == 0 ? "e.sorted_shares" : "g.sorted_shares");
+    ASSERT_EQ(rows.size(), kRecords * kWidth);
+    for (std::size_t r = 0; r < kRecords; ++r)
+      for (std::size_t i = 0; i < kWidth; ++i) {
+        const double want = value(r, v, i), got = rows[r * kWidth + i];
+        ASSERT_TRUE(std::isnan(want) ? std::isnan(got) : got == want) << v << " " << r << " " << i;
+      }
+  }
+  EXPECT_EQ(reader.read_observables(4)[kRecords - 1], static_cast<double>(kRecords - 1));
+  EXPECT_THROW((void)reader.read_sorted(4, "nope"), std::out_of_range);
   EXPECT_TRUE(reader.verify().empty());
   fs::remove(path);
 }

@@ -25,8 +25,7 @@ struct CompareOptions {
 
 // THE ONE PLACE that reads sorted-position vectors from a run: for each name (the
 // MeasureEvaluator's vector_names()) that the run stores, chains' records [first, first + draws)
-// as a VectorTable. Runs do not store them yet, so today it returns none; the report then lists
-// every vector as not stored.
+// as a VectorTable; a name the run does not store is left out (the report lists it as not stored).
 [[nodiscard]] std::vector<VectorTable> read_sorted_vectors(const RunReader& reader,
                                                            const std::vector<std::uint64_t>& chains,
                                                            std::size_t first, std::size_t draws,

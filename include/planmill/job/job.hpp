@@ -2,6 +2,7 @@
 // The job file (TOML, docs/jobs.md): everything a run needs, read once and checked strictly.
 // Unknown keys, wrong types and out-of-range values are InputErrors naming the key and its line.
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -53,6 +54,21 @@ struct TemperingSpec {
   TemperingRecord record = TemperingRecord::target;  // record the target rung, or every rung
 };
 
+// [measures] (docs/jobs.md): what every recorded plan is measured by (measures/measures.hpp). A
+// list left out takes its default; names were checked against [map] when the file was read.
+struct GroupMeasuresSpec {
+  std::string group;                      // listed in map.groups
+  std::string denominator;                // listed in map.groups; empty: total population
+  std::vector<double> thresholds = {0.5};  // districts strictly above each
+};
+
+struct MeasuresSpec {
+  std::optional<std::vector<std::string>> elections;      // default: every two-party election
+  std::optional<std::vector<GroupMeasuresSpec>> groups;  // default: every group, share of population above 0.5
+  double competitive_low = 0.45, competitive_high = 0.55;
+  std::optional<bool> county_splits, municipality_splits;  // default: when the map has the codes
+};
+
 struct OutputSpec {
   std::string dir;  // resolved relative to the job file
   double checkpoint_seconds = 300.0;
@@ -81,9 +97,14 @@ struct JobSpec {
   RulesSpec rules;
   SamplerSpec sampler;
   TemperingSpec tempering;
+  MeasuresSpec measures;
   OutputSpec output;
   diagnose::VerdictRule verdict;  // the [verdict] section (defaults: diagnose/verdict_rule.hpp)
   CompareSpec compare;            // the [compare] section
+  // verdict.judge: the observables the verdict judges (checked against the run's names when it
+  // starts, see run/judged_draws.hpp); unset: all of them.
+  std::optional<std::vector<std::string>> verdict_judge;
+  std::size_t verdict_judge_line = 0;
 };
 
 // Parses job text; relative paths are resolved against the folder of `source`.

@@ -1,11 +1,12 @@
 #pragma once
 // A job file with everything it names loaded and validated: the map, the feasibility of the
-// district count and tolerance, and the starting plan if one is given.
+// district count and tolerance, the starting plan if one is given, and what is measured.
 #include <optional>
 #include <string>
 
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
+#include "planmill/measures/measures.hpp"
 #include "planmill/plan/plan.hpp"
 
 namespace planmill {
@@ -15,6 +16,7 @@ struct LoadedJob {
   GraphHandle graph;  // shared with every plan drawn on it
   LoadReport report;
   std::optional<Plan> start;  // set when districts.start names a plan file
+  MeasureSpec measures;       // the job's [measures] for this map (job_measures.hpp)
 };
 
 // Throws InputError / InfeasibleError with the file, line and key of the first problem.

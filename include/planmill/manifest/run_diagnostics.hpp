@@ -24,6 +24,9 @@ struct RunDiagnosticsOptions {
   std::size_t dropped_records = 0;
   // reader.verify() if already known (it reads every file); otherwise diagnose_run calls it.
   std::optional<std::vector<ChainProblem>> problems;
+  // The observables judged (the job's verdict.judge); unset: all. Either way an observable with a
+  // value that is not a number is left out with a note (planmill/run/judged_draws.hpp).
+  std::optional<std::vector<std::string>> judge;
 };
 
 // Reads every chain's observables. A chain that verify() reports damaged, or whose observables
@@ -35,6 +38,7 @@ struct RunDiagnosticsOptions {
 struct RunVerdictRule {
   diagnose::VerdictRule rule;
   std::string source;
+  std::optional<std::vector<std::string>> judge;  // verdict.judge of the run's job
 };
 
 // The [verdict] section of the run's job text: RUNDIR/job.toml, else the job text stored in the

@@ -49,6 +49,13 @@ class RunReader {
   // Row-major records x observables, over all of the chain's records.
   [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain,
                                                      std::uint64_t rung = 0) const;
+  // The measures' sorted vectors (state().sorted_names): row-major records x district_count() of
+  // one of them, over all of the chain's records. std::out_of_range for a name not in the run.
+  [[nodiscard]] const std::vector<std::string>& sorted_names() const noexcept {
+    return state_.sorted_names;
+  }
+  [[nodiscard]] std::vector<double> read_sorted(std::uint64_t chain, const std::string& name,
+                                                std::uint64_t rung = 0) const;
   // Checksums and consistency of every listed file, with record ranges counted per chain across
   // files; empty = all good. verify() covers the chains (the ensemble); verify_rungs() the hotter
   // rungs' records, with ChainProblem::chain_index the chain and `what` naming the rung.

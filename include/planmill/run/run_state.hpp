@@ -120,6 +120,10 @@ struct RunState {
   std::uint64_t burn_in = 0;
   std::uint64_t record_every = 1;
   std::vector<std::string> observable_names;
+  std::vector<std::string> sorted_names;  // the measures' sorted vectors, district_count values each
+  // What the run measures, resolved for its map (a JSON object as text, measures_json() in
+  // run/observables.hpp; the manifest lists it); empty in run states from before it was kept.
+  std::string measures_json;
   std::uint64_t checkpoints = 0;  // commits so far; the next plan files use segment = checkpoints
   bool finished = false;
   std::string stop_reason;  // why the last session stopped, once it has

@@ -54,6 +54,10 @@ class EnsembleWriter {
   // Creates group chain_<index> with one observable column per name. Returns a handle for record().
   std::size_t add_chain(std::uint64_t chain_index,
                         const std::vector<std::string>& observable_names);
+  // The same, with per-record vectors of `width` values each (the measures' sorted shares), one
+  // dataset chain_<index>/sorted/<name> each.
+  std::size_t add_chain(std::uint64_t chain_index, const std::vector<std::string>& observable_names,
+                        const std::vector<std::string>& sorted_names, std::size_t width);
   // Appends one recorded plan (labels 0..k-1 per unit) with its observables (one per name).
   // Exact whatever the plan; throws std::invalid_argument on a wrong size or label.
   void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
@@ -64,6 +68,10 @@ class EnsembleWriter {
   // assert); only the listed units are checked for a bad label.
   void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
               std::span<const double> observables, const PlanChanges& changes);
+  // The same, with the chain's sorted vectors one after another (sorted_names.size() * width).
+  void record(std::size_t chain, std::uint64_t step, std::span<const DistrictIndex> plan,
+              std::span<const double> observables, const PlanChanges& changes,
+              std::span<const double> sorted);
   void set_counters(std::size_t chain, const StoredCounters& counters);
   // Finishes the file and writes it to `path` (a temporary name, fsync, rename). Throws
   // StoreError when HDF5 fails, OutputError naming the file when it cannot be written; either way
@@ -109,6 +117,10 @@ class EnsembleReader {
   [[nodiscard]] std::vector<std::string> observable_names(std::uint64_t chain_index) const;
   // Row-major records x observables.
   [[nodiscard]] std::vector<double> read_observables(std::uint64_t chain_index) const;
+  // Names of the chain's sorted vectors (empty in files without them), in the order written.
+  [[nodiscard]] std::vector<std::string> sorted_names(std::uint64_t chain_index) const;
+  // Row-major records x width of one sorted vector; std::out_of_range for a name not in the file.
+  [[nodiscard]] std::vector<double> read_sorted(std::uint64_t chain_index, const std::string& name) const;
   [[nodiscard]] StoredCounters counters(std::uint64_t chain_index) const;
   // Checks every chain (checksums, index consistency, decodability); empty = all good.
   [[nodiscard]] std::vector<ChainProblem> verify() const;
