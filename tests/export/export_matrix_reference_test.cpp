@@ -10,6 +10,7 @@
 #include "export_support.hpp"
 #include "planmill/export/export.hpp"
 #include "planmill/io/csv.hpp"
+#include "command_output.hpp"
 
 namespace planmill {
 namespace {
@@ -24,12 +25,7 @@ std::string matrix_check(const fs::path& run_dir, const fs::path& out_dir, const
                               "/tests/export/matrix_tallies_check.py " +
                               run_dir.string() + " " + out_dir.string() + " " + job.string() + " " +
                               std::to_string(rung) + " " + map_files + " 2>&1";
-  FILE* pipe = ::popen(command.c_str(), "r");
-  std::string output;
-  char buffer[512];
-  while (pipe && std::fgets(buffer, sizeof buffer, pipe)) output += buffer;
-  const int status = pipe ? ::pclose(pipe) : -1;
-  return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
+  return test::command_output(command);
 }
 
 // Adds `extra` (times the row number) to the number in `column` of every row of a CSV file.

@@ -9,6 +9,7 @@
 #include <sstream>
 
 #include "export_support.hpp"
+#include "command_output.hpp"
 
 namespace planmill {
 namespace {
@@ -115,12 +116,7 @@ std::string python_check(const test::TempDir& dir, const fs::path& run_dir, cons
                               script + " " + run_dir.string() + " " +
                               out_dir.string() + " " + units_csv.string() + " unit " +
                               std::to_string(rung) + " 2>&1";
-  FILE* pipe = ::popen(command.c_str(), "r");
-  std::string output;
-  char buffer[512];
-  while (pipe && std::fgets(buffer, sizeof buffer, pipe)) output += buffer;
-  const int status = pipe ? ::pclose(pipe) : -1;
-  return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
+  return test::command_output(command);
 }
 
 std::string python_check(const test::ExportFixture& f, std::uint64_t rung = 0) {

@@ -18,6 +18,7 @@
 #include "planmill/synth/synth.hpp"
 #include "measures_python.hpp"
 #include "run_jobs.hpp"
+#include "command_output.hpp"
 
 namespace planmill {
 namespace {
@@ -100,12 +101,7 @@ std::string python_check(const Written& w) {
   const std::string command = "/usr/bin/python3 " + script.string() + " " + (w.dir / "units.csv").string() + " " +
                               (w.dir / "adjacency.csv").string() + " " + (w.dir / "plans.txt").string() + " " +
                               (w.dir / "measures.csv").string() + " 2>&1";
-  FILE* pipe = ::popen(command.c_str(), "r");
-  std::string output;
-  char buffer[512];
-  while (pipe && std::fgets(buffer, sizeof buffer, pipe)) output += buffer;
-  const int status = pipe ? ::pclose(pipe) : -1;
-  return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
+  return test::command_output(command);
 }
 
 TEST(MeasuresNumpy, EveryMeasureOfEveryPlanMatchesAnIndependentRecomputation) {

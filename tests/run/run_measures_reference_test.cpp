@@ -20,6 +20,7 @@
 #include "../support/measures_python.hpp"
 #include "../support/run_jobs.hpp"
 #include "../support/run_processes.hpp"
+#include "../support/command_output.hpp"
 
 namespace planmill {
 namespace {
@@ -62,12 +63,7 @@ std::string python(const fs::path& dir, const std::string& script_text, const fs
   const std::string command = "/usr/bin/python3 " + script.string() + " " + (dir / "state" / "units.csv").string() +
                               " " + (dir / "state" / "adjacency.csv").string() + " " + (dir / "plans.txt").string() +
                               " " + run.string() + " 2>&1";
-  FILE* pipe = ::popen(command.c_str(), "r");
-  std::string output;
-  char buffer[512];
-  while (pipe && std::fgets(buffer, sizeof buffer, pipe)) output += buffer;
-  const int status = pipe ? ::pclose(pipe) : -1;
-  return status == 0 ? output : "failed (" + std::to_string(status) + "): " + output;
+  return test::command_output(command);
 }
 
 // The stored plans of every chain, in RunReader's order, one line each.
