@@ -182,6 +182,7 @@ void read_map(Section& top, JobSpec& job, const std::string& base) {
   m.area_column = map.string("area", "");
   m.perimeter_column = map.string("perimeter", "");
   m.outer_boundary_column = map.string("outer_boundary", "");
+  m.geometry_path = resolve(base, map.string("geometry", ""));
   m.group_columns = map.strings("groups");
   if (const toml::node* node = map.get("elections")) {
     const toml::array* list = node->as_array();

@@ -186,7 +186,7 @@ SynthSummary write_synthetic_state(const SynthOptions& options) {
       (options.cities != 0 ? " --cities " + std::to_string(options.cities) : std::string()) +
       "\n[map]\nunits = \"units.csv\"\nadjacency = \"adjacency.csv\"\nid = \"unit\"\n"
       "population = \"pop\"\ncounty = \"county\"\nmunicipality = \"town\"\narea = \"area\"\n"
-      "perimeter = \"perimeter\"\nouter_boundary = \"outer\"\ngroups = [\"grp\"]\n"
+      "perimeter = \"perimeter\"\nouter_boundary = \"outer\"\ngeometry = \"units.geojson\"\ngroups = [\"grp\"]\n"
       "[[map.elections]]\nname = \"gov\"\nparties = [\"A\", \"B\"]\n"
       "columns = [\"gov_a\", \"gov_b\"]\n"
       "[[map.elections]]\nname = \"sen\"\nparties = [\"A\", \"B\"]\n"

@@ -22,6 +22,7 @@ struct MapSpec {
   std::string area_column;
   std::string perimeter_column;
   std::string outer_boundary_column;
+  std::string geometry_path;  // optional GeoJSON of the units' shapes (for maps in reports)
   std::vector<std::string> group_columns;  // demographic counts
   std::vector<ElectionSpec> elections;
   // Where each setting came from, for error messages ("job.toml:7: 'map.population'").
