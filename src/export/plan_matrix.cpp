@@ -14,28 +14,6 @@ namespace {
 constexpr unsigned kDeflateLevel = 4;  // common practice: most of level 9's gain for far less time
 constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
 
-H5Type utf8_string_type(const std::string& path) {
-  H5Type t = checked<H5Type>(H5Tcopy(H5T_C_S1), path, "making a string type");
-  check(H5Tset_size(t.get(), H5T_VARIABLE), path, "making a string type");
-  check(H5Tset_cset(t.get(), H5T_CSET_UTF8), path, "making a string type");
-  return t;
-}
-
-void put_attribute(hid_t file, const char* name, hid_t type, const void* value,
-                   const std::string& path) {
-  H5Dataspace scalar = checked<H5Dataspace>(H5Screate(H5S_SCALAR), path, "making an attribute");
-  H5Attribute a = checked<H5Attribute>(
-      H5Acreate2(file, name, type, scalar.get(), H5P_DEFAULT, H5P_DEFAULT), path, name);
-  check(H5Awrite(a.get(), type, value), path, name);
-}
-
-void put_text_attribute(hid_t file, const char* name, const std::string& value,
-                        const std::string& path) {
-  const H5Type t = utf8_string_type(path);
-  const char* text = value.c_str();
-  put_attribute(file, name, t.get(), &text, path);
-}
-
 // A 1-D dataset written whole; `values` holds `count` elements of `type`.
 void put_column(hid_t file, const char* name, hid_t type, const void* values, hsize_t count,
                 const std::string& path) {
@@ -168,12 +146,12 @@ void PlanMatrixWriter::close() {
   const H5Type text = utf8_string_type(p);
   put_column(f, "unit", text.get(), ids.data(), ids.size(), p);
   const std::uint64_t k = m.header.district_count, first = 1, rung = m.header.rung;
-  put_attribute(f, "district_count", H5T_STD_U64LE, &k, p);
-  put_attribute(f, "first_label", H5T_STD_U64LE, &first, p);
-  put_attribute(f, "rung", H5T_STD_U64LE, &rung, p);
-  put_text_attribute(f, "run_id", m.header.run_id, p);
-  put_text_attribute(f, "job_sha256", m.header.job_sha256, p);
-  put_text_attribute(f, "planmill_version", m.header.planmill_version, p);
+  write_attribute(f, "district_count", H5T_STD_U64LE, &k, p);
+  write_attribute(f, "first_label", H5T_STD_U64LE, &first, p);
+  write_attribute(f, "rung", H5T_STD_U64LE, &rung, p);
+  write_string_attribute(f, "run_id", m.header.run_id, p);
+  write_string_attribute(f, "job_sha256", m.header.job_sha256, p);
+  write_string_attribute(f, "planmill_version", m.header.planmill_version, p);
   check(H5Fflush(f, H5F_SCOPE_GLOBAL), p, "finishing the plan matrix file");
   const ssize_t size = H5Fget_file_image(f, nullptr, 0);
   if (size < 0) throw StoreError(p, "sizing the plan matrix file", hdf5_error_stack());

@@ -1,38 +1,13 @@
-// The HDF5 helpers of the ensemble file (store/ensemble_hdf5.hpp): string types, attributes,
+// The HDF5 helpers of the ensemble file (store/ensemble_hdf5.hpp): attributes read back,
 // chunked datasets and row ranges, each failing call a StoreError naming the file and the action.
 #include "store/ensemble_hdf5.hpp"
 
 namespace planmill::ensemble_hdf5 {
 
-H5Type vlen_string_type(const std::string& path) {
-  H5Type t = checked<H5Type>(H5Tcopy(H5T_C_S1), path, "making a string type");
-  check(H5Tset_size(t.get(), H5T_VARIABLE), path, "making a string type");
-  check(H5Tset_cset(t.get(), H5T_CSET_UTF8), path, "making a string type");
-  return t;
-}
-
-void write_attribute(hid_t object, const char* name, hid_t type, const void* value,
-                     const std::string& path) {
-  if (H5Aexists(object, name) > 0) check(H5Adelete(object, name), path, "replacing an attribute");
-  H5Dataspace space = checked<H5Dataspace>(H5Screate(H5S_SCALAR), path, "writing an attribute");
-  H5Attribute attr =
-      checked<H5Attribute>(H5Acreate2(object, name, type, space.get(), H5P_DEFAULT, H5P_DEFAULT),
-                           path, (std::string("creating attribute ") + name).c_str());
-  check(H5Awrite(attr.get(), type, value), path,
-        (std::string("writing attribute ") + name).c_str());
-}
-
-void write_string_attribute(hid_t object, const char* name, const std::string& value,
-                            const std::string& path) {
-  H5Type t = vlen_string_type(path);
-  const char* p = value.c_str();
-  write_attribute(object, name, t.get(), &p, path);
-}
-
 std::string read_string_attribute(hid_t object, const char* name, const std::string& path) {
   const std::string action = std::string("reading attribute ") + name;
   H5Attribute attr = checked<H5Attribute>(H5Aopen(object, name, H5P_DEFAULT), path, action.c_str());
-  H5Type t = vlen_string_type(path);
+  H5Type t = utf8_string_type(path);
   char* p = nullptr;
   check(H5Aread(attr.get(), t.get(), &p), path, action.c_str());
   std::string value = p ? p : "";
@@ -59,32 +34,39 @@ H5Dataset create_stream(hid_t group, const char* name, hid_t type, std::span<con
       (std::string("creating dataset ") + name).c_str());
 }
 
+namespace {
+
+// The file's rows [first, first + rows) selected, and a memory space of that shape.
+struct RowSelection {
+  H5Dataspace file, memory;
+};
+
+RowSelection select_rows(hid_t dset, hsize_t first, hsize_t rows, hsize_t columns, bool two_d,
+                         const std::string& path, const char* action) {
+  RowSelection s{checked<H5Dataspace>(H5Dget_space(dset), path, action), {}};
+  const hsize_t start[2] = {first, 0}, count[2] = {rows, columns};
+  check(H5Sselect_hyperslab(s.file.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path,
+        action);
+  s.memory = checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
+  return s;
+}
+
+}  // namespace
+
 void append_rows(hid_t dset, hid_t mem_type, const void* data, hsize_t at, hsize_t rows,
                  hsize_t columns, bool two_d, const std::string& path, const char* action) {
   if (rows == 0) return;
   const hsize_t new_dims[2] = {at + rows, columns};
   check(H5Dset_extent(dset, new_dims), path, action);
-  H5Dataspace file_space = checked<H5Dataspace>(H5Dget_space(dset), path, action);
-  const hsize_t start[2] = {at, 0}, count[2] = {rows, columns};
-  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path,
-        action);
-  H5Dataspace mem_space =
-      checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
-  check(H5Dwrite(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path,
-        action);
+  const RowSelection s = select_rows(dset, at, rows, columns, two_d, path, action);
+  check(H5Dwrite(dset, mem_type, s.memory.get(), s.file.get(), H5P_DEFAULT, data), path, action);
 }
 
 void read_rows(hid_t dset, hid_t mem_type, void* data, hsize_t first, hsize_t rows, hsize_t columns,
                bool two_d, const std::string& path, const char* action) {
   if (rows == 0) return;
-  H5Dataspace file_space = checked<H5Dataspace>(H5Dget_space(dset), path, action);
-  const hsize_t start[2] = {first, 0}, count[2] = {rows, columns};
-  check(H5Sselect_hyperslab(file_space.get(), H5S_SELECT_SET, start, nullptr, count, nullptr), path,
-        action);
-  H5Dataspace mem_space =
-      checked<H5Dataspace>(H5Screate_simple(two_d ? 2 : 1, count, nullptr), path, action);
-  check(H5Dread(dset, mem_type, mem_space.get(), file_space.get(), H5P_DEFAULT, data), path,
-        action);
+  const RowSelection s = select_rows(dset, first, rows, columns, two_d, path, action);
+  check(H5Dread(dset, mem_type, s.memory.get(), s.file.get(), H5P_DEFAULT, data), path, action);
 }
 
 std::vector<hsize_t> dims_of(hid_t dset, const std::string& path) {

@@ -21,14 +21,6 @@ inline std::string chain_group_name(std::uint64_t index) {
   return "chain_" + std::to_string(index);
 }
 
-H5Type vlen_string_type(const std::string& path);
-
-void write_attribute(hid_t object, const char* name, hid_t type, const void* value,
-                     const std::string& path);
-
-void write_string_attribute(hid_t object, const char* name, const std::string& value,
-                            const std::string& path);
-
 template <typename T>
 T read_scalar_attribute(hid_t object, const char* name, hid_t mem_type, const std::string& path) {
   const std::string action = std::string("reading attribute ") + name;

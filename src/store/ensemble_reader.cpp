@@ -183,7 +183,7 @@ std::vector<std::string> read_names(hid_t object, const std::string& path, const
   H5Dataspace space = checked<H5Dataspace>(H5Aget_space(attr.get()), path, action);
   const hssize_t n = H5Sget_simple_extent_npoints(space.get());
   if (n < 0) throw StoreError(path, action, hdf5_error_stack());
-  H5Type t = vlen_string_type(path);
+  H5Type t = utf8_string_type(path);
   std::vector<char*> p(static_cast<std::size_t>(n), nullptr);
   check(H5Aread(attr.get(), t.get(), p.data()), path, action);
   std::vector<std::string> names;

@@ -108,28 +108,42 @@ std::vector<ChainProblem> EnsembleReader::verify() const {
     } catch (const StoreError& e) {
       report(0, last, std::string("plan_bytes unreadable: ") + e.what());
     }
-    try {
-      H5Group g = m.group(chain);
-      if (H5Lexists(g.get(), "observables", H5P_DEFAULT) > 0) {
-        H5Dataset d = m.dataset(g, "observables");
-        const auto dims = dims_of(d.get(), m.path);
-        if (dims.at(0) != records)
-          report(std::min<std::uint64_t>(dims[0], records), last,
-                 "observables has " + std::to_string(dims[0]) + " rows for " +
-                     std::to_string(records) + " records");
-        std::vector<double> rows(kObservableChunkRows * dims.at(1));
-        for (hsize_t at = 0; at < dims[0]; at += kObservableChunkRows) {
-          const hsize_t n = std::min<hsize_t>(kObservableChunkRows, dims[0] - at);
-          try {
-            read_rows(d.get(), H5T_NATIVE_DOUBLE, rows.data(), at, n, dims[1], true, m.path,
-                      "reading observables");
-          } catch (const StoreError&) {
-            report(at, at + n - 1, "observables rows unreadable (checksum failure)");
-          }
+    // A per-record table (observables, a sorted vector): one row per record, every chunk readable.
+    auto check_table = [&](hid_t table, const std::string& name) {
+      const auto dims = dims_of(table, m.path);
+      if (dims.at(0) != records)
+        report(std::min<std::uint64_t>(dims[0], records), last,
+               name + " has " + std::to_string(dims[0]) + " rows for " + std::to_string(records) +
+                   " records");
+      const hsize_t columns = dims.size() > 1 ? dims[1] : 1;
+      std::vector<double> rows(kObservableChunkRows * columns);
+      for (hsize_t at = 0; at < dims[0]; at += kObservableChunkRows) {
+        const hsize_t n = std::min<hsize_t>(kObservableChunkRows, dims[0] - at);
+        try {
+          read_rows(table, H5T_NATIVE_DOUBLE, rows.data(), at, n, columns, dims.size() > 1, m.path,
+                    ("reading " + name).c_str());
+        } catch (const StoreError&) {
+          report(at, at + n - 1, name + " rows unreadable (checksum failure)");
         }
       }
+    };
+    try {
+      H5Group g = m.group(chain);
+      if (H5Lexists(g.get(), "observables", H5P_DEFAULT) > 0)
+        check_table(m.dataset(g, "observables").get(), "observables");
     } catch (const StoreError& e) {
       report(0, last, std::string("observables unreadable: ") + e.what());
+    }
+    try {
+      H5Group g = m.group(chain);
+      if (H5Lexists(g.get(), "sorted", H5P_DEFAULT) > 0) {
+        H5Group sorted = checked<H5Group>(H5Gopen2(g.get(), "sorted", H5P_DEFAULT), m.path,
+                                          "opening group sorted");
+        for (const std::string& name : sorted_names(chain))
+          check_table(m.dataset(sorted, name.c_str()).get(), "sorted/" + name);
+      }
+    } catch (const StoreError& e) {
+      report(0, last, std::string("sorted vectors unreadable: ") + e.what());
     }
   }
   return problems;

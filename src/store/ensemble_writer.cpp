@@ -39,7 +39,7 @@ void write_adjacency(hid_t root, const UnitAdjacency& adjacency, const std::stri
 
 void write_names(hid_t object, const std::vector<std::string>& names, const std::string& path,
                  const char* action) {
-  H5Type t = vlen_string_type(path);
+  H5Type t = utf8_string_type(path);
   const hsize_t n = names.size();
   H5Dataspace space = checked<H5Dataspace>(H5Screate_simple(1, &n, nullptr), path, action);
   H5Attribute attr = checked<H5Attribute>(

@@ -83,25 +83,14 @@ TEST(ExportMatrixH5py, MatrixAndTalliesOfARealRunMatchAnIndependentRecount) {
 
 // Three hundred districts: uint16 cells. The fixture has no adjacency file, so matrix only.
 TEST(ExportMatrixH5py, TwoByteCellsAndAHotRung) {
-  test::ExportFixture f({.chains = 2,
-                         .ranks = 1,
-                         .segments = 2,
-                         .records_per_segment = 30,
-                         .units = 400,
-                         .districts = 300});
+  test::ExportFixture f(test::kThreeHundredDistricts);
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
                              " --chains 1 --every 7 --plans 0:59,0:0 --plan-layout matrix"),
             0);
   const fs::path job = f.dir.path() / "job" / "job.toml";
   EXPECT_EQ(matrix_check(f.run_dir, f.out_dir, job), "matrix 11\n");
 
-  test::ExportFixture hot({.chains = 3,
-                           .ranks = 2,
-                           .segments = 2,
-                           .records_per_segment = 15,
-                           .units = 40,
-                           .districts = 4,
-                           .recorded_rungs = 3});
+  test::ExportFixture hot(test::kThreeRecordedRungs);
   ASSERT_EQ(test::run_export(hot.run_dir.string() + " --out " + hot.out_dir.string() +
                              " --rung 2 --every 4 --plan-layout matrix"),
             0);

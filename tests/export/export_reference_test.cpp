@@ -140,12 +140,7 @@ TEST(ExportH5py, EveryPlanAndObservableMatchesAnIndependentReader) {
 }
 
 TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
-  test::ExportFixture f({.chains = 2,
-                         .ranks = 1,
-                         .segments = 2,
-                         .records_per_segment = 30,
-                         .units = 400,
-                         .districts = 300});
+  test::ExportFixture f(test::kThreeHundredDistricts);
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
                              " --chains 1 --every 7 --plans 0:59,0:0 --plan-layout both"),
             0);
@@ -156,13 +151,7 @@ TEST(ExportH5py, TwoByteLabelsAndAChosenSubset) {
 // A hot rung of a run that recorded every rung: h5py reads that rung's own group in each file.
 // The export of rung 0 beside it must not pass the rung-2 check, so the check tells them apart.
 TEST(ExportH5py, AHotRungMatchesAnIndependentReaderOfItsGroup) {
-  test::ExportFixture f({.chains = 3,
-                         .ranks = 2,
-                         .segments = 2,
-                         .records_per_segment = 15,
-                         .units = 40,
-                         .districts = 4,
-                         .recorded_rungs = 3});
+  test::ExportFixture f(test::kThreeRecordedRungs);
   ASSERT_EQ(test::run_export(f.run_dir.string() + " --out " + f.out_dir.string() +
                              " --rung 2 --every 4 --plan-layout both"),
             0);

@@ -14,6 +14,18 @@
 
 namespace planmill::test {
 
+// Fixture shapes both reference checks use: 300 districts (two-byte labels and cells), and a
+// tempered run that recorded 3 rungs.
+inline constexpr FixtureRunOptions kThreeHundredDistricts{
+    .chains = 2, .ranks = 1, .segments = 2, .records_per_segment = 30, .units = 400, .districts = 300};
+inline constexpr FixtureRunOptions kThreeRecordedRungs{.chains = 3,
+                                                       .ranks = 2,
+                                                       .segments = 2,
+                                                       .records_per_segment = 15,
+                                                       .units = 40,
+                                                       .districts = 4,
+                                                       .recorded_rungs = 3};
+
 struct ExportFixture {
   TempDir dir;
   FixtureRun run;

@@ -304,6 +304,36 @@ TEST(EnsembleVerify, FlippedObservablesNameTheChain) {
   fs::remove(path);
 }
 
+TEST(EnsembleVerify, FlippedSortedVectorNamesTheChainAndTheRecords) {
+  const fs::path path = temp_file("flip_sorted");
+  constexpr std::size_t kRecords = 600, kWidth = 3;
+  {
+    EnsembleWriter writer(path.string(), {20, 3, "", {}});
+    std::vector<DistrictIndex> plan(20, 1);
+    std::vector<double> sorted(kWidth);
+    for (std::uint64_t chain = 0; chain < 2; ++chain) {
+      const std::size_t h = writer.add_chain(chain, {"x"}, {"g.sorted_shares"}, kWidth);
+      for (std::size_t r = 0; r < kRecords; ++r) {
+        for (std::size_t i = 0; i < kWidth; ++i) sorted[i] = 1.0 / static_cast<double>(r + i + 1);
+        const double x = static_cast<double>(r);
+        writer.record(h, r, plan, std::span<const double>(&x, 1), PlanChanges{}, sorted);
+      }
+    }
+    writer.close();
+  }
+  corrupt_chunk(path, "sorted/g.sorted_shares", 1);
+  EnsembleReader reader(path.string());
+  const auto problems = reader.verify();
+  ASSERT_EQ(problems.size(), 1u);
+  EXPECT_EQ(problems[0].chain_index, 1u);
+  EXPECT_EQ(problems[0].first_record, 256u);  // the second chunk of 256 rows
+  EXPECT_EQ(problems[0].last_record, 511u);
+  EXPECT_NE(problems[0].what.find("sorted/g.sorted_shares rows unreadable"), std::string::npos)
+      << problems[0].what;
+  EXPECT_EQ(reader.read_sorted(0, "g.sorted_shares").size(), kRecords * kWidth);
+  fs::remove(path);
+}
+
 TEST(EnsembleVerify, ShortenedByteStreamIsReportedAsTruncated) {
   const fs::path path = temp_file("short_stream");
   write_file(path, 3000, 30, two_chains());

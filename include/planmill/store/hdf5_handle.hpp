@@ -1,6 +1,7 @@
 #pragma once
 // RAII ownership of HDF5 ids, keyed on their close function, and the typed error every failing
-// HDF5 call in the store turns into. Only the store includes this header.
+// HDF5 call in the store turns into, and the attribute helpers the store and export share.
+// Only the store and export include this header.
 #include <hdf5.h>
 
 #include <stdexcept>
@@ -74,5 +75,13 @@ Handle checked(hid_t id, const std::string& path, const char* action) {
 inline void check(herr_t status, const std::string& path, const char* action) {
   if (status < 0) throw StoreError(path, action, hdf5_error_stack());
 }
+
+// A variable-length UTF-8 string type.
+[[nodiscard]] H5Type utf8_string_type(const std::string& path);
+// A scalar attribute of `object` (one already there of that name is replaced).
+void write_attribute(hid_t object, const char* name, hid_t type, const void* value,
+                     const std::string& path);
+void write_string_attribute(hid_t object, const char* name, const std::string& value,
+                            const std::string& path);
 
 }  // namespace planmill
