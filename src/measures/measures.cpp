@@ -1,6 +1,7 @@
 #include "planmill/measures/measures.hpp"
 
 #include <algorithm>
+#include <bit>
 #include <cassert>
 #include <charconv>
 #include <cmath>
@@ -38,6 +39,45 @@ std::size_t first_above(std::span<const double> sorted, double x) noexcept {
 }
 std::size_t first_at_least(std::span<const double> sorted, double x) noexcept {
   return static_cast<std::size_t>(std::lower_bound(sorted.begin(), sorted.end(), x) - sorted.begin());
+}
+
+bool same_bits(double x, double y) noexcept {
+  return std::bit_cast<std::uint64_t>(x) == std::bit_cast<std::uint64_t>(y);
+}
+
+// A chain step changes few districts (recombination two): when at most this many shares differ
+// from the last plan's, the sorted vector is mended in place instead of sorted again.
+constexpr std::size_t kMendLimit = 8;
+
+// `sorted` holds the values of `last` in ascending order, NaN last. Makes it hold those of `fresh`
+// (and `last` a copy of `fresh`): by moving each changed value when few changed, else by sorting.
+void update_sorted(std::span<double> sorted, std::span<double> last, std::span<const double> fresh,
+                   bool have_last, ShareSorter& sorter) noexcept {
+  const std::size_t k = sorted.size();
+  std::size_t changed = 0;
+  if (have_last)
+    for (std::size_t d = 0; d < k && changed <= kMendLimit; ++d) changed += !same_bits(last[d], fresh[d]);
+  if (!have_last || changed > kMendLimit) {
+    std::copy(fresh.begin(), fresh.end(), sorted.begin());
+    sorter.sort(sorted);
+  } else {
+    for (std::size_t d = 0; d < k; ++d) {
+      if (same_bits(last[d], fresh[d])) continue;
+      std::size_t numbers = without_nan(sorted).size();
+      // Take the old value out (it is there: `sorted` holds the values of `last`)...
+      const std::size_t from =
+          std::isnan(last[d]) ? k - 1 : first_at_least(sorted.first(numbers), last[d]);
+      std::copy(sorted.begin() + static_cast<std::ptrdiff_t>(from) + 1, sorted.end(),
+                sorted.begin() + static_cast<std::ptrdiff_t>(from));
+      if (!std::isnan(last[d])) --numbers;
+      // ...and put the new one in its place among the k - 1 left.
+      const std::size_t to =
+          std::isnan(fresh[d]) ? k - 1 : first_above(sorted.first(numbers), fresh[d]);
+      std::copy_backward(sorted.begin() + static_cast<std::ptrdiff_t>(to), sorted.end() - 1, sorted.end());
+      sorted[to] = fresh[d];
+    }
+  }
+  std::copy(fresh.begin(), fresh.end(), last.begin());
 }
 
 // 0.5 -> "0.5", 0.375 -> "0.375": the shortest text that reads back as the same double.
@@ -232,6 +272,8 @@ MeasureEvaluator::MeasureEvaluator(GraphHandle graph, std::size_t district_count
   has_geometry_ = g.has_areas() && g.has_outer_boundary() && g.has_edge_lengths();
   scalars_.assign(scalar_names_.size(), kNaN);
   vectors_.assign(vector_names_.size() * k_, kNaN);
+  last_.assign(vectors_.size(), kNaN);
+  fresh_.assign(k_, kNaN);
   votes_a_.assign(k_, 0.0);
   votes_b_.assign(k_, 0.0);
   sorter_ = ShareSorter(k_);
@@ -247,9 +289,9 @@ void MeasureEvaluator::evaluate(const Plan& plan, SplitSources splits) noexcept 
       votes_a_[d] = plan.count(d, e.votes_a);
       votes_b_[d] = plan.count(d, e.votes_b);
     }
-    const std::span<double> shares(vectors_.data() + v++ * k_, k_);
-    const double statewide = vote_shares(votes_a_, votes_b_, shares);
-    sorter_.sort(shares);
+    const std::span<double> shares(vectors_.data() + v * k_, k_);
+    const double statewide = vote_shares(votes_a_, votes_b_, fresh_);
+    update_sorted(shares, std::span<double>(last_.data() + v++ * k_, k_), fresh_, have_last_, sorter_);
     const Seats won = seats(votes_a_, votes_b_);
     *out++ = static_cast<double>(won.a);
     *out++ = static_cast<double>(won.b);
@@ -262,13 +304,13 @@ void MeasureEvaluator::evaluate(const Plan& plan, SplitSources splits) noexcept 
                  : static_cast<double>(count_within(shares, spec_.competitive_low, spec_.competitive_high));
   }
   for (const GroupMeasureSpec& group : spec_.groups) {
-    const std::span<double> shares(vectors_.data() + v++ * k_, k_);
+    const std::span<double> shares(vectors_.data() + v * k_, k_);
     for (DistrictIndex d = 0; d < k; ++d) {
       const double of = group.denominator ? plan.count(d, *group.denominator)
                                           : static_cast<double>(plan.population(d));
-      shares[d] = of > 0.0 ? plan.count(d, group.column) / of : kNaN;
+      fresh_[d] = of > 0.0 ? plan.count(d, group.column) / of : kNaN;
     }
-    sorter_.sort(shares);
+    update_sorted(shares, std::span<double>(last_.data() + v++ * k_, k_), fresh_, have_last_, sorter_);
     for (const double t : group.thresholds) *out++ = static_cast<double>(count_above(shares, t));
   }
   *out++ = static_cast<double>(plan.cut_edge_count());
@@ -298,6 +340,7 @@ void MeasureEvaluator::evaluate(const Plan& plan, SplitSources splits) noexcept 
   if (spec_.county_splits) put_splits(splits.counties, own_counties_);
   if (spec_.municipality_splits) put_splits(splits.municipalities, own_municipalities_);
   assert(out == scalars_.data() + scalars_.size());
+  have_last_ = true;
 }
 
 }  // namespace planmill

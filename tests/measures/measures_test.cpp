@@ -5,6 +5,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
 #include <numbers>
 #include <stdexcept>
@@ -373,6 +374,45 @@ TEST(MeasureEvaluator, TrackedTalliesMatchARecountAndNothingIsAllocated) {
   const SplitTally fresh(plan, g->municipalities());
   EXPECT_EQ(tracker.municipality_tally().split(), fresh.split());
   EXPECT_EQ(tracker.municipality_tally().pieces(), fresh.pieces());
+}
+
+// The evaluator mends its sorted vectors when few districts changed since the last plan: after
+// moves of one unit, moves of several and jumps to unrelated plans (empty districts among them,
+// whose shares are NaN), every vector and scalar equals, bit for bit, a fresh evaluator's sort.
+TEST(MeasureEvaluator, MendedSortedVectorsEqualAFreshSort) {
+  test::GraphExtras x = unit_squares(6, 6);
+  std::vector<double> votes(36), other(36), group(36);
+  for (UnitIndex u = 0; u < 36; ++u) votes[u] = 1 + u % 7, other[u] = 1 + u % 5, group[u] = u % 3;
+  x.counts = {{"a", votes}, {"b", other}, {"g", group}};
+  x.groups = {2};
+  const GraphHandle g = share_graph(test::grid(6, 6, x));
+  constexpr std::size_t kDistricts = 12;
+  MeasureSpec spec = default_measure_spec(*g);
+  spec.elections = {{"e", "A", "B", 0, 1}};
+  MeasureEvaluator mended(g, kDistricts, spec);
+  Rng rng = make_stream(8, 8);
+  std::vector<DistrictIndex> labels(36);
+  for (UnitIndex u = 0; u < 36; ++u) labels[u] = static_cast<DistrictIndex>(u % kDistricts);
+  std::size_t with_nan = 0;
+  for (int step = 0; step < 3000; ++step) {
+    const std::uint64_t kind = rng() % 10;
+    const std::size_t moves = kind < 6 ? 1 : kind < 9 ? 1 + rng() % 6 : 36;  // 36: a jump
+    for (std::size_t i = 0; i < moves; ++i)
+      labels[rng() % 36] = static_cast<DistrictIndex>(rng() % kDistricts);
+    const Plan plan(g, kDistricts, labels);
+    mended.evaluate(plan);
+    MeasureEvaluator fresh(g, kDistricts, spec);
+    fresh.evaluate(plan);
+    const auto same = [](double a, double b) { return std::bit_cast<std::uint64_t>(a) == std::bit_cast<std::uint64_t>(b); };
+    for (std::size_t v = 0; v < mended.vector_names().size(); ++v)
+      for (std::size_t j = 0; j < kDistricts; ++j)
+        ASSERT_TRUE(same(mended.sorted_vector(v)[j], fresh.sorted_vector(v)[j]))
+            << mended.vector_names()[v] << " position " << j << " at step " << step;
+    for (std::size_t i = 0; i < mended.scalars().size(); ++i)
+      ASSERT_TRUE(same(mended.scalars()[i], fresh.scalars()[i])) << mended.scalar_names()[i] << " at step " << step;
+    with_nan += std::isnan(mended.sorted_vector(0)[kDistricts - 1]);
+  }
+  EXPECT_GT(with_nan, 100u);  // empty districts (NaN shares) were among the plans mended
 }
 
 TEST(MeasureEvaluator, NamesInOrderAndSpecsThatDoNotFit) {

@@ -153,7 +153,10 @@ class MeasureEvaluator {
   bool has_geometry_;
   std::vector<std::string> scalar_names_, vector_names_;
   std::vector<double> scalars_;
-  std::vector<double> vectors_;         // vector v at [v * k, (v + 1) * k)
+  std::vector<double> vectors_;         // vector v at [v * k, (v + 1) * k), sorted
+  std::vector<double> last_;            // the same, unsorted (by district), of the last plan
+  std::vector<double> fresh_;           // one vector of this plan, by district
+  bool have_last_ = false;
   std::vector<double> votes_a_, votes_b_;  // per district
   ShareSorter sorter_;
   SplitTally own_counties_, own_municipalities_;
