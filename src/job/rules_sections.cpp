@@ -1,0 +1,119 @@
+// [rules] and [measures] of the job file.
+#include <algorithm>
+#include <cmath>
+#include <sstream>
+
+#include "job/job_file.hpp"
+
+namespace planmill::job_file {
+
+namespace fs = std::filesystem;
+
+void read_rules(Section& top, JobSpec& job) {
+  const toml::table* table = top.table("rules");
+  if (!table) return;
+  Section rules(*table, "rules", job.path);
+  RulesSpec& r = job.rules;
+  if (rules.has("population_deviation"))  // the earlier name, now kept for a plan's measured deviation
+    rules.fail("population_deviation", "is now called population_tolerance",
+               "rename the key; a plan's measured deviation is the observable population_deviation");
+  r.population_tolerance = rules.number("population_tolerance", r.population_tolerance, 0.0, 1.0);
+  r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
+  if (const toml::table* w = rules.table("weights")) {
+    Section weights(*w, "rules.weights", job.path);
+    r.cut_edges_weight = weights.number("cut_edges", 0.0, -1e6, 1e6);
+    r.county_splits_weight = weights.number("county_splits", 0.0, -1e6, 1e6);
+    weights.reject_unknown();
+  }
+  if (const toml::node* node = rules.get("group_share")) {
+    const toml::array* list = node->as_array();
+    if (!list || !list->is_array_of_tables())
+      rules.fail("group_share", "must be a list of tables", "write each term as a [[rules.group_share]] section");
+    for (const toml::node& item : *list) {
+      Section g(*item.as_table(), "rules.group_share", job.path);
+      GroupShareSpec spec;
+      spec.group = g.string("group", "", true);
+      spec.threshold = g.number("threshold", 0.5, 0.0, 1.0);
+      spec.weight = g.number("weight", 0.0, -1e6, 1e6, true);
+      bool listed = false;
+      for (const auto& name : job.map.group_columns) listed |= name == spec.group;
+      if (!listed) g.fail("group", "'" + spec.group + "' is not listed in map.groups", "add it there or fix the name");
+      g.reject_unknown();
+      r.group_share.push_back(spec);
+    }
+  }
+  rules.reject_unknown();
+}
+
+// [measures]: names are checked against [map] here, where the line of each key is known.
+void read_measures(Section& top, JobSpec& job) {
+  const toml::table* table = top.table("measures");
+  if (!table) return;
+  Section s(*table, "measures", job.path);
+  MeasuresSpec& m = job.measures;
+  if (s.has("elections")) {
+    m.elections = s.strings("elections");
+    for (const std::string& name : *m.elections) {
+      const auto e = std::find_if(job.map.elections.begin(), job.map.elections.end(),
+                                  [&](const ElectionSpec& x) { return x.name == name; });
+      if (e == job.map.elections.end())
+        s.fail("elections", "'" + name + "' is not an election of [[map.elections]]", "fix the name or add the election");
+      if (e->parties.size() != 2)
+        s.fail("elections", "'" + name + "' has " + std::to_string(e->parties.size()) +
+                                " parties; the measures compare two",
+               "leave it out, or give it as a two-party election");
+    }
+  }
+  const auto listed = [&](const std::string& name) {
+    return std::find(job.map.group_columns.begin(), job.map.group_columns.end(), name) != job.map.group_columns.end();
+  };
+  if (s.has("competitive")) {
+    const std::vector<double> band = s.numbers("competitive");
+    if (band.size() != 2 || !(band[0] >= 0.0 && band[0] <= band[1] && band[1] <= 1.0))
+      s.fail("competitive", "must be [low, high] with 0 <= low <= high <= 1", "write it as [0.45, 0.55]");
+    m.competitive_low = band[0];
+    m.competitive_high = band[1];
+  }
+  if (s.has("county_splits")) {
+    m.county_splits = s.boolean("county_splits", false);
+    if (*m.county_splits && job.map.county_column.empty())
+      s.fail("county_splits", "county splits need county codes, but [map] names no county column",
+             "set map.county, or write county_splits = false");
+  }
+  if (s.has("municipality_splits")) {
+    m.municipality_splits = s.boolean("municipality_splits", false);
+    if (*m.municipality_splits && job.map.municipality_column.empty())
+      s.fail("municipality_splits", "municipality splits need municipality codes, but [map] names no municipality column",
+             "set map.municipality, or write municipality_splits = false");
+  }
+  if (const toml::node* node = s.get("groups")) {
+    const toml::array* list = node->as_array();
+    // groups = [] measures no group; otherwise one [[measures.groups]] table per group.
+    if (!list || (!list->empty() && !list->is_array_of_tables()))
+      s.fail("groups", "must be a list of tables", "write each group as a [[measures.groups]] section");
+    m.groups.emplace();
+    for (const toml::node& item : *list) {
+      Section g(*item.as_table(), "measures.groups", job.path);
+      GroupMeasuresSpec spec;
+      spec.group = g.string("group", "", true);
+      if (!listed(spec.group)) g.fail("group", "'" + spec.group + "' is not listed in map.groups", "add it there or fix the name");
+      spec.denominator = g.string("denominator", "");
+      if (!spec.denominator.empty() && !listed(spec.denominator))
+        g.fail("denominator", "'" + spec.denominator + "' is not listed in map.groups",
+               "list the count column (e.g. a voting-age population) in map.groups, or leave the key out for total population");
+      if (g.has("thresholds")) {
+        spec.thresholds = g.numbers("thresholds");
+        for (const double t : spec.thresholds)
+          if (!(t >= 0.0 && t <= 1.0)) g.fail("thresholds", "must hold shares in [0, 1]", "write them as fractions, e.g. [0.5, 0.4]");
+      }
+      for (const auto& other : *m.groups)
+        if (other.group == spec.group && other.denominator == spec.denominator)
+          g.fail("group", "'" + spec.group + "' is measured twice with the same denominator", "merge the two sections");
+      g.reject_unknown();
+      m.groups->push_back(std::move(spec));
+    }
+  }
+  s.reject_unknown();
+}
+
+}  // namespace planmill::job_file
