@@ -62,6 +62,23 @@ RunLock::RunLock(const std::filesystem::path& run_dir) {
   }
 }
 
+std::optional<std::string> RunLock::holder(const std::filesystem::path& run_dir) {
+  const std::string path = (run_dir / file_name()).string();
+  const int fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+  if (fd < 0) return std::nullopt;  // no run has ever held it
+  std::optional<std::string> who;
+  if (::flock(fd, LOCK_SH | LOCK_NB) != 0) {
+    if (errno == EWOULDBLOCK) {
+      who = read_all(fd);
+      if (who->empty()) *who = "a planmill run that has not written its name yet";
+    }
+  } else {
+    ::flock(fd, LOCK_UN);
+  }
+  ::close(fd);
+  return who;
+}
+
 RunLock::~RunLock() {
   if (fd_ >= 0) ::close(fd_);  // drops the lock
 }

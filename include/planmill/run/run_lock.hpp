@@ -4,6 +4,7 @@
 // can say who has the folder. The OS drops the lock when the holder ends, however it ends, so a
 // killed run never leaves the folder locked; the file itself stays and is harmless.
 #include <filesystem>
+#include <optional>
 #include <string>
 
 namespace planmill {
@@ -18,6 +19,9 @@ class RunLock {
   RunLock& operator=(const RunLock&) = delete;
 
   [[nodiscard]] static std::string file_name() { return "run.lock"; }
+  // Who holds the folder's lock now ("host H, pid P, started T"), or nothing when no run does.
+  // Probes with a shared lock it drops at once; creates nothing.
+  [[nodiscard]] static std::optional<std::string> holder(const std::filesystem::path& run_dir);
 
  private:
   int fd_ = -1;
