@@ -1,5 +1,5 @@
 // planmill status RUNDIR: where a run stands (docs/running.md "Run status"). Exit status: 0
-// finished, 6 unfinished (resume it), 7 damaged, 2 no run folder; --json prints the same as JSON.
+// finished, 7 unfinished (resume it), 8 damaged, 2 no run folder; --json prints the same as JSON.
 #include <iostream>
 #include <memory>
 #include <string>
@@ -34,7 +34,7 @@ void add_status_command(CLI::App& app, Action& action) {
   sub->add_flag("--json", args->json, "print the status as JSON instead of text");
   sub->add_flag("--skip-checks", args->skip_checks,
                 "do not read the plan files (faster; cannot tell a damaged run)");
-  sub->footer("Exit status: 0 finished, 6 unfinished (resume it), 7 damaged, 2 not a run folder.");
+  sub->footer("Exit status: 0 finished, 7 unfinished (resume it), 8 damaged, 2 not a run folder.");
   sub->callback([&action, args] { action = [args] { return run_status_command(*args); }; });
 }
 

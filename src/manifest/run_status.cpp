@@ -17,8 +17,8 @@ namespace fs = std::filesystem;
 int exit_status_of(RunCondition condition) noexcept {
   switch (condition) {
     case RunCondition::finished: return 0;
-    case RunCondition::unfinished: return 6;
-    case RunCondition::damaged: return 7;
+    case RunCondition::unfinished: return 7;
+    case RunCondition::damaged: return 8;
   }
   return 1;
 }

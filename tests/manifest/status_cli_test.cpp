@@ -72,7 +72,7 @@ TEST(StatusCli, AFinishedRunExitsZeroWithItsChainsAndVerdict) {
     }
   }
   const Status damaged = status_of(dir / "run");
-  EXPECT_EQ(damaged.exit, 7) << damaged.text;
+  EXPECT_EQ(damaged.exit, 8) << damaged.text;
   EXPECT_NE(damaged.text.find("condition    damaged"), std::string::npos) << damaged.text;
   EXPECT_FALSE(damaged.j["problems"].empty());
   const Status unchecked = status_of(dir / "run", "--skip-checks");
@@ -89,13 +89,13 @@ TEST(StatusCli, ARunningThenStoppedRunIsUnfinished) {
                                       out.string() + " --quiet");
   ASSERT_TRUE(test::wait_for([&] { return fs::exists(RunLayout{out}.state_file()); }, pid, 120));
   const Status running = status_of(out, "--skip-checks");
-  EXPECT_EQ(running.exit, 6) << running.text;
+  EXPECT_EQ(running.exit, 7) << running.text;
   EXPECT_NE(running.text.find("running now  host "), std::string::npos) << running.text;
   EXPECT_TRUE(running.j["running_now"].is_string());
   ::kill(pid, SIGTERM);
   ASSERT_EQ(test::wait_exit(pid), 4);
   const Status stopped = status_of(out);
-  EXPECT_EQ(stopped.exit, 6) << stopped.text;
+  EXPECT_EQ(stopped.exit, 7) << stopped.text;
   EXPECT_TRUE(stopped.j["running_now"].is_null());
   EXPECT_NE(stopped.text.find("--resume continues it"), std::string::npos) << stopped.text;
   for (const auto& c : stopped.j["chains"]) EXPECT_LT(c["steps"].get<std::uint64_t>(), 50000000U);
@@ -106,13 +106,13 @@ TEST(StatusCli, NoCheckpointYetBadStateAndNoRunFolder) {
   fs::create_directories(dir / "early");
   std::ofstream(dir / "early" / "job.toml") << "# a run's job copy, no checkpoint yet\n";
   const Status early = status_of(dir / "early");
-  EXPECT_EQ(early.exit, 6) << early.text;
+  EXPECT_EQ(early.exit, 7) << early.text;
   EXPECT_NE(early.text.find("before its first checkpoint"), std::string::npos) << early.text;
 
   fs::create_directories(dir / "broken");
   std::ofstream(dir / "broken" / "run-state.json") << "{ not json";
   const Status broken = status_of(dir / "broken");
-  EXPECT_EQ(broken.exit, 7) << broken.text;
+  EXPECT_EQ(broken.exit, 8) << broken.text;
   EXPECT_NE(broken.text.find("the committed state cannot be read"), std::string::npos) << broken.text;
 
   fs::create_directories(dir / "empty");

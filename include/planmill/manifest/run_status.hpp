@@ -17,7 +17,7 @@ namespace planmill {
 
 enum class RunCondition { finished, unfinished, damaged };
 
-// The exit status `planmill status` ends with: 0 finished, 6 unfinished, 7 damaged (2 is left to
+// The exit status `planmill status` ends with: 0 finished, 7 unfinished, 8 damaged (2 is left to
 // input that is no run folder at all).
 [[nodiscard]] int exit_status_of(RunCondition condition) noexcept;
 [[nodiscard]] const char* condition_name(RunCondition condition) noexcept;
