@@ -122,8 +122,8 @@ TEST_F(ScoreCli, DistrictsBeyondTheJobsCountOrEmptyAreBrokenRules) {
 // Each bad input: exit 2, one line on stderr naming the file (and line), no JSON written.
 TEST_F(ScoreCli, BadPlansAndCrosswalksAreRefusedWithExitTwoAndWriteNothing) {
   const std::string plan_text = test::read_text(plan());
-  const std::string first_id = plan_text.substr(plan_text.find('\n') + 1, plan_text.find(',', plan_text.find('\n')) -
-                                                                               plan_text.find('\n') - 1);
+  const std::size_t first_row = plan_text.find('\n') + 1;
+  const std::string first_id = plan_text.substr(first_row, plan_text.find(',', first_row) - first_row);
   // A crosswalk of one fine unit per unit, with the unit's population, built from the unit table.
   std::ifstream units(*dir_ / "state" / "units.csv");
   std::string line, crosswalk = "fine_unit,unit,population\n", fine_plan = "block,district\n";
@@ -136,10 +136,9 @@ TEST_F(ScoreCli, BadPlansAndCrosswalksAreRefusedWithExitTwoAndWriteNothing) {
     crosswalk += cells[0] + "-b," + cells[0] + "," + cells[pop_column] + "\n";
     if (second_id.empty() && cells[0] != first_id) second_id = cells[0];
   }
-  for (std::size_t at = plan_text.find('\n') + 1; at < plan_text.size(); at = plan_text.find('\n', at) + 1) {
-    const std::string row = plan_text.substr(at, plan_text.find('\n', at) - at);
-    fine_plan += row.substr(0, row.find(',')) + "-b" + row.substr(row.find(',')) + "\n";
-  }
+  std::stringstream rows(plan_text);
+  std::getline(rows, line);
+  while (std::getline(rows, line)) fine_plan += line.substr(0, line.find(',')) + "-b" + line.substr(line.find(',')) + "\n";
   const std::string good_crosswalk = file("good-crosswalk.csv", crosswalk);
   const std::string good_fine = file("good-fine.csv", fine_plan);
   const fs::path json = *dir_ / "refused.json";
@@ -177,8 +176,9 @@ TEST_F(ScoreCli, BadPlansAndCrosswalksAreRefusedWithExitTwoAndWriteNothing) {
     fs::remove(json);
     const std::string extra = (c.crosswalk.empty() ? "" : "--crosswalk " + c.crosswalk) + " --json " + json.string();
     EXPECT_EQ(score(c.plan, extra), 2) << c.what << "\n" << out() << err();
-    EXPECT_EQ(err().rfind("planmill: error: " + c.where, 0), 0u) << c.what << ": " << err();
-    EXPECT_EQ(std::count(err().begin(), err().end(), '\n'), 1) << c.what << ": " << err();
+    const std::string message = err();
+    EXPECT_EQ(message.rfind("planmill: error: " + c.where, 0), 0u) << c.what << ": " << message;
+    EXPECT_EQ(std::count(message.begin(), message.end(), '\n'), 1) << c.what << ": " << message;
     EXPECT_TRUE(out().empty()) << c.what << ": " << out();
     EXPECT_FALSE(fs::exists(json)) << c.what;
   }
