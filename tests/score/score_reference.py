@@ -2,8 +2,9 @@
 
 Run with /usr/bin/python3 (Debian python3-numpy, python3-networkx). Modes:
   break STATE PLAN OUT          a plan with a district above the population band and one not contiguous
-  rules STATE JOB PLAN JSON     the band (exact fractions), each district outside it and each district's
-                                connected pieces (networkx.connected_components) against score's JSON
+  rules STATE JOB PLAN JSON     the band (exact fractions), each district outside it, each district's
+                                connected pieces (networkx.connected_components) and the counties split
+                                (and the job's county cap) against score's JSON
   fine STATE PLAN FPLAN XWALK   fine units made by splitting each unit, a plan on them that splits some
                                 units (with a population tie), and the crosswalk
   carry STATE FPLAN XWALK JSON  each unit's district by the documented rule (numpy), the split units and
@@ -120,9 +121,20 @@ def check_rules(state, job_path, plan_path, json_path):
         fail(f"population breaches {got_pop}, expected {expect_pop}")
     if hard["not_contiguous"] != expect_pieces:
         fail(f"pieces {hard['not_contiguous']}, expected {expect_pieces}")
+    with open(f"{state}/units.csv", newline="") as fh:
+        county = {u["unit"]: u["county"] for u in csv.DictReader(fh)}
+    meets = {}
+    for u in ids:
+        meets.setdefault(county[u], set()).add(plan[u])
+    split = sum(1 for districts in meets.values() if len(districts) > 1)
+    if hard["counties_split"] != split:
+        fail(f"counties split {hard['counties_split']}, expected {split}")
+    cap = job["rules"].get("county_splits_max")
+    if hard["county_cap_broken"] != (cap is not None and split > cap):
+        fail(f"county cap {cap}: broken {hard['county_cap_broken']} with {split} split")
     if not expect_pop or not expect_pieces:
         fail("the plan was meant to break both rules")
-    print(f"ok {len(expect_pop)} outside the band {lo}..{hi}, {len(expect_pieces)} not contiguous")
+    print(f"ok {len(expect_pop)} outside the band {lo}..{hi}, {len(expect_pieces)} not contiguous, {split} counties split")
 
 
 def make_fine(state, plan_path, fine_plan, crosswalk):

@@ -2,12 +2,14 @@
 // run with /usr/bin/python3: Debian python3-networkx and python3-numpy):
 //  - a plan with a district above the population band and one not contiguous: the band in exact
 //    rational arithmetic (fractions.Fraction), each district's population, and each district's
-//    connected pieces by networkx.connected_components on the adjacency;
+//    connected pieces by networkx.connected_components on the adjacency, and the counties split
+//    against a county cap;
 //  - a plan on fine units (each synth unit split in one to three) carried through a crosswalk: each
 //    unit's district by the documented rule, the split units and their population, by numpy sums;
 //    and compare given the same plan and crosswalk says it was carried and how many units split.
 #include <gtest/gtest.h>
 
+#include <fstream>
 #include <nlohmann/json.hpp>
 #include <string>
 
@@ -52,10 +54,15 @@ fs::path* ScoreReference::job_ = nullptr;
 TEST_F(ScoreReference, NamesTheDistrictOutsideTheBandAndTheOneNotContiguousWithTheirNumbers) {
   const std::string broken = (*dir_ / "broken.csv").string(), json = (*dir_ / "broken.json").string(),
                     out = (*dir_ / "broken.out").string();
+  // The same job with a county cap of 1, which the broken plan (it splits more) exceeds.
+  const fs::path capped = *dir_ / "state" / "capped.toml";
+  std::string job_text = test::read_text(*job_);
+  job_text.replace(job_text.find("[rules]\n"), 8, "[rules]\ncounty_splits_max = 1\n");
+  std::ofstream(capped) << job_text;
   ASSERT_EQ(python("break " + state() + " " + plan() + " " + broken).rfind("ok", 0), 0u);
-  EXPECT_EQ(test::shell(bin() + " score " + job_->string() + " " + broken + " --json " + json + " >" + out + " 2>&1"), 6)
+  EXPECT_EQ(test::shell(bin() + " score " + capped.string() + " " + broken + " --json " + json + " >" + out + " 2>&1"), 6)
       << test::read_text(out);
-  const std::string check = python("rules " + state() + " " + job_->string() + " " + broken + " " + json);
+  const std::string check = python("rules " + state() + " " + capped.string() + " " + broken + " " + json);
   EXPECT_EQ(check.rfind("ok", 0), 0u) << check << test::read_text(out);
   const auto j = nlohmann::json::parse(test::read_text(json));
   const std::string text = test::read_text(out);
@@ -68,6 +75,12 @@ TEST_F(ScoreReference, NamesTheDistrictOutsideTheBandAndTheOneNotContiguousWithT
                         std::to_string(n["pieces"].size()) + " pieces"),
               std::string::npos)
         << text;
+  const std::size_t split = j["hard_rules"]["counties_split"];
+  ASSERT_GT(split, 1u);
+  EXPECT_NE(text.find(std::to_string(split) + " counties are split, the limit is 1 (" + std::to_string(split - 1) +
+                      " over)"),
+            std::string::npos)
+      << text;
   // Still measured: the plan has the job's four districts.
   EXPECT_FALSE(j["scalars"].empty());
 }
