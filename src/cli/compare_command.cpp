@@ -42,6 +42,8 @@ void add_compare_command(CLI::App& app, Action& action) {
   auto* sub = app.add_subcommand("compare", "place a plan within an ensemble");
   sub->add_option("RUNDIR", args->options.run_dir, "run folder written by 'planmill run'")->required();
   sub->add_option("PLAN", args->options.plan_file, "plan CSV on the run's units (unit,district)")->required();
+  sub->add_option("--crosswalk", args->options.crosswalk_file,
+                  "PLAN is on finer units: carry it onto the run's units through this crosswalk (docs/score.md)");
   sub->add_option("--json", args->json, "also write the comparison as JSON");
   sub->add_option("--csv", args->csv, "also write the comparison as one CSV table");
   sub->add_option("--drop-records", args->drop_records,

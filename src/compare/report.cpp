@@ -142,6 +142,7 @@ std::vector<std::string> summary(const CompareReport& r) {
 
 void print_report(const CompareReport& r, std::ostream& out) {
   out << "plan " << r.plan_file << " against run " << r.run_dir << "\n";
+  if (!r.plan_reading.empty()) out << "plan: " << r.plan_reading << "\n";
   out << "ensemble: " << r.chains.size() << " chains (";
   for (std::size_t i = 0; i < r.chains.size(); ++i)
     out << (i ? ", " : "") << r.chains[i] << ": " << r.records[i] << " records";
@@ -196,6 +197,7 @@ Json report_json(const CompareReport& r) {
   j["caution"] = caution();
   j["run_dir"] = r.run_dir;
   j["plan_file"] = r.plan_file;
+  j["plan_reading"] = r.plan_reading;
   Json chains = Json::array();
   for (std::size_t i = 0; i < r.chains.size(); ++i) chains.push_back({{"chain", r.chains[i]}, {"records", r.records[i]}});
   j["ensemble"] = {{"chains", chains},

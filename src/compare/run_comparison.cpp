@@ -16,12 +16,16 @@
 #include "planmill/moves/kernel.hpp"
 #include "planmill/run/observables.hpp"
 #include "planmill/seed/plan_csv.hpp"
+#include "planmill/score/plan_values.hpp"
+#include "planmill/score/score.hpp"
 #include "planmill/seed/seed_plan.hpp"
 
 namespace planmill::compare {
 namespace {
 
 namespace fs = std::filesystem;
+using score::measure_plan;
+using score::PlanValues;
 
 JobSpec job_of_run(const RunReader& reader) {
   const fs::path copy = reader.layout().job_copy();
@@ -34,35 +38,6 @@ JobSpec job_of_run(const RunReader& reader) {
   // Relative paths in the job are relative to the job file as it was given to `planmill run`.
   const std::string& given = reader.state().job_path;
   return parse_job_text(text.str(), given.empty() ? copy.string() : given);
-}
-
-// The plan's value of every scalar it can be given, by name: the run's own observables first.
-struct PlanValues {
-  std::map<std::string, double> scalars;
-  std::vector<std::string> scalar_order;
-  std::vector<std::string> vector_names;
-  std::vector<std::vector<double>> vectors;
-};
-
-PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSet& rules,
-                        const MeasureSpec& spec) {
-  PlanValues v;
-  // The same evaluator and observables the runner records (run/observables.hpp).
-  MeasureEvaluator evaluator(graph, plan.district_count(), spec);
-  const std::vector<std::string> observed = observable_names(*graph, rules, evaluator);
-  std::vector<double> values(observed.size());
-  std::vector<double> sorted(evaluator.vector_names().size() * plan.district_count());
-  const ChainState state(plan, rules);
-  compute_observables(state, evaluator, values, sorted);
-  for (std::size_t i = 0; i < observed.size(); ++i) {
-    if (v.scalars.emplace(observed[i], values[i]).second) v.scalar_order.push_back(observed[i]);
-  }
-  v.vector_names = evaluator.vector_names();
-  const std::size_t k = plan.district_count();
-  for (std::size_t i = 0; i < v.vector_names.size(); ++i)
-    v.vectors.emplace_back(sorted.begin() + static_cast<std::ptrdiff_t>(i * k),
-                           sorted.begin() + static_cast<std::ptrdiff_t>((i + 1) * k));
-  return v;
 }
 
 }  // namespace
@@ -120,7 +95,10 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
                      "has " + std::to_string(graph->unit_count()) + " units but the run's plans have " +
                          std::to_string(reader.unit_count()),
                      "the map changed since the run; restore the map the run used");
-  const Plan plan = read_plan_csv(o.plan_file, graph, reader.district_count());
+  score::ReadPlan reading;
+  const Plan plan = score::read_plan(o.plan_file, o.crosswalk_file, graph, reader.district_count(), &reading);
+  if (reading.carried) r.plan_reading = reading.describe(*graph);
+  r.warnings.insert(r.warnings.end(), reading.warnings.begin(), reading.warnings.end());
   const RuleSet rules = make_rule_set(job.rules, *graph, job.path);
   try {
     check_seed_plan(plan, rules, o.plan_file);

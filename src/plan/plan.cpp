@@ -251,6 +251,35 @@ bool Plan::all_connected() const {
   return true;
 }
 
+std::vector<DistrictPiece> Plan::pieces(DistrictIndex d) const {
+  std::vector<DistrictPiece> found;
+  if (size_[d] == 0) return found;
+  const UnitGraph& g = *graph_;
+  std::vector<std::uint8_t> seen(unit_count(), 0);
+  std::vector<UnitIndex> queue;
+  for (UnitIndex start = 0; start < unit_count(); ++start) {
+    if (district_[start] != d || seen[start] != 0) continue;
+    DistrictPiece piece;
+    queue.assign(1, start);
+    seen[start] = 1;
+    for (std::size_t head = 0; head < queue.size(); ++head) {
+      const UnitIndex u = queue[head];
+      ++piece.units;
+      piece.population += g.population(u);
+      for (UnitIndex v : g.neighbors(u))
+        if (district_[v] == d && seen[v] == 0) {
+          seen[v] = 1;
+          queue.push_back(v);
+        }
+    }
+    found.push_back(piece);
+  }
+  std::stable_sort(found.begin(), found.end(), [](const DistrictPiece& a, const DistrictPiece& b) {
+    return a.population != b.population ? a.population > b.population : a.units > b.units;
+  });
+  return found;
+}
+
 bool Plan::tallies_consistent() const {
   Plan fresh(graph_, k_, district_);
   auto close = [](double a, double b) { return std::abs(a - b) <= 1e-6 * (1.0 + std::abs(a) + std::abs(b)); };

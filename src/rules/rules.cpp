@@ -129,6 +129,26 @@ bool RuleTracker::hard_rules_ok(const Plan& plan) const noexcept {
   return !rules_.county_splits_max || counties_.split() <= *rules_.county_splits_max;
 }
 
+std::vector<PopulationBreach> population_breaches(const Plan& plan, PopulationBounds bounds) {
+  std::vector<PopulationBreach> found;
+  for (DistrictIndex d = 0; d < plan.district_count(); ++d) {
+    const std::int64_t p = plan.population(d);
+    if (p < bounds.min) found.push_back({d, p, p - bounds.min});
+    else if (p > bounds.max) found.push_back({d, p, p - bounds.max});
+  }
+  return found;
+}
+
+std::string describe_population_breach(const PopulationBreach& breach, PopulationBounds bounds, double ideal) {
+  const std::int64_t p = breach.population;
+  const std::int64_t people = breach.beyond < 0 ? -breach.beyond : breach.beyond;
+  return "district " + std::to_string(breach.district + 1) + " has population " + with_commas(p) + " (" +
+         percent((static_cast<double>(p) - ideal) / ideal) + " from ideal " + ideal_text(ideal) + "), " +
+         with_commas(people) + " (" + percent(static_cast<double>(people) / ideal).substr(1) + " of ideal) " +
+         (breach.beyond < 0 ? "below the lower bound " + with_commas(bounds.min)
+                            : "above the upper bound " + with_commas(bounds.max));
+}
+
 std::string RuleTracker::describe_violations(const Plan& plan) const {
   std::string text;
   auto add = [&text](const std::string& item) { text += (text.empty() ? "" : "; ") + item; };
@@ -137,19 +157,8 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
     add("no district population can meet the bounds: ideal " + ideal_text(ideal) +
         " with deviation " + percent(rules_.population_tolerance).substr(1) +
         " leaves no whole number between them; allow a larger deviation");
-  for (DistrictIndex d = 0; d < k_; ++d) {
-    const std::int64_t p = plan.population(d);
-    const std::string head = "district " + std::to_string(d + 1) + " has population " +
-                             with_commas(p) + " (" +
-                             percent((static_cast<double>(p) - ideal) / ideal) +
-                             " from ideal " + ideal_text(ideal) + "), ";
-    if (p < bounds_.min)
-      add(head + with_commas(bounds_.min - p) + " below the lower bound " +
-          with_commas(bounds_.min));
-    else if (p > bounds_.max)
-      add(head + with_commas(p - bounds_.max) + " above the upper bound " +
-          with_commas(bounds_.max));
-  }
+  for (const PopulationBreach& breach : population_breaches(plan, bounds_))
+    add(describe_population_breach(breach, bounds_, ideal));
   if (rules_.county_splits_max && counties_.split() > *rules_.county_splits_max)
     add(std::to_string(counties_.split()) + " counties are split, the limit is " +
         std::to_string(*rules_.county_splits_max));

@@ -11,11 +11,10 @@
 namespace planmill {
 namespace {
 
-Plan plan_from_table(const CsvTable& table, const GraphHandle& handle, std::size_t k) {
-  const UnitGraph& graph = *handle;
+PlanRows rows_of_table(const CsvTable& table, std::size_t max_district) {
   const std::string& source = table.source;
-  if (k == 0 || k >= kNoDistrict) {
-    throw InputError({source, 0, {}}, "cannot hold a plan of " + std::to_string(k) + " districts",
+  if (max_district == 0 || max_district >= kNoDistrict) {
+    throw InputError({source, 0, {}}, "cannot hold a plan of " + std::to_string(max_district) + " districts",
                      "the number of districts must be 1 to " + std::to_string(kNoDistrict - 1));
   }
   if (table.header.size() != 2) {
@@ -23,34 +22,46 @@ Plan plan_from_table(const CsvTable& table, const GraphHandle& handle, std::size
                                       std::to_string(table.header.size()),
                      "write one row per unit: unit id, district number");
   }
-  const std::string& id_column = table.header[0];
-  const std::string& district_column = table.header[1];
+  PlanRows out{source, table.header[0], table.header[1], {}};
+  out.rows.reserve(table.rows.size());
+  const std::string range = std::to_string(max_district);
+  for (const CsvRow& row : table.rows) {
+    const std::string& text = row.fields[1];
+    const io::ParsedNumber number = io::parse_number(text);
+    const InputError::Where where{source, row.line, out.district_column};
+    if (number.status != io::NumberStatus::ok || !io::is_whole_decimal(text)) {
+      throw InputError(where, "district '" + text + "' is not a whole number", "number districts 1 to " + range);
+    }
+    if (number.value < 1 || number.value > static_cast<double>(max_district)) {
+      throw InputError(where, "district '" + text + "' is outside 1.." + range,
+                       "number districts 1 to " + range + " (the job's districts.count)");
+    }
+    out.rows.push_back({row.fields[0], static_cast<std::size_t>(number.value), row.line});
+  }
+  return out;
+}
+
+}  // namespace
+
+PlanRows read_plan_rows(const std::string& path, std::size_t max_district) {
+  return rows_of_table(read_csv_file(path), max_district);
+}
+
+std::vector<DistrictIndex> unit_districts(const PlanRows& rows, const UnitGraph& graph) {
   std::vector<DistrictIndex> district(graph.unit_count(), kNoDistrict);
   std::vector<std::size_t> line_of(graph.unit_count(), 0);
-  for (const CsvRow& row : table.rows) {
-    const std::string& id = row.fields[0];
-    const auto unit = graph.find_unit(id);
+  for (const PlanRow& row : rows.rows) {
+    const auto unit = graph.find_unit(row.id);
     if (!unit) {
-      throw InputError({source, row.line, id_column}, "unknown unit id '" + id + "'",
+      throw InputError({rows.source, row.line, rows.id_column}, "unknown unit id '" + row.id + "'",
                        "every unit id must be a unit of the map");
     }
     if (line_of[*unit] != 0) {
-      throw InputError({source, row.line, id_column},
-                       "unit '" + id + "' appears again (first on line " + std::to_string(line_of[*unit]) + ")",
+      throw InputError({rows.source, row.line, rows.id_column},
+                       "unit '" + row.id + "' appears again (first on line " + std::to_string(line_of[*unit]) + ")",
                        "give each unit one district");
     }
-    const std::string& text = row.fields[1];
-    const io::ParsedNumber number = io::parse_number(text);
-    const InputError::Where where{source, row.line, district_column};
-    if (number.status != io::NumberStatus::ok || !io::is_whole_decimal(text)) {
-      throw InputError(where, "district '" + text + "' is not a whole number",
-                       "number districts 1 to " + std::to_string(k));
-    }
-    if (number.value < 1 || number.value > static_cast<double>(k)) {
-      throw InputError(where, "district '" + text + "' is outside 1.." + std::to_string(k),
-                       "number districts 1 to " + std::to_string(k) + " (the job's districts.count)");
-    }
-    district[*unit] = static_cast<DistrictIndex>(number.value - 1);
+    district[*unit] = static_cast<DistrictIndex>(row.district - 1);
     line_of[*unit] = row.line;
   }
   std::size_t missing = 0;
@@ -60,32 +71,37 @@ Plan plan_from_table(const CsvTable& table, const GraphHandle& handle, std::size
     if (missing++ < 5) examples += (missing > 1 ? ", '" : "'") + graph.unit_id(u) + "'";
   }
   if (missing > 0) {
-    throw InputError({source, 0, id_column},
+    throw InputError({rows.source, 0, rows.id_column},
                      std::to_string(missing) + " unit(s) of the map have no district, for example " + examples,
                      "list every unit of the map once");
   }
+  return district;
+}
+
+Plan plan_of_every_district(const PlanRows& rows, const GraphHandle& graph, std::size_t k,
+                            std::vector<DistrictIndex> district) {
   std::vector<std::size_t> used(k, 0);
   for (DistrictIndex d : district) ++used[d];
   for (std::size_t d = 0; d < k; ++d) {
     if (used[d] == 0) {
-      throw InputError({source, 0, district_column},
+      throw InputError({rows.source, 0, rows.district_column},
                        "district " + std::to_string(d + 1) + " has no units, but the job asks for " +
                            std::to_string(k) + " districts",
                        "check districts.count in the job file, or number the plan's districts 1.." +
                            std::to_string(k) + " without gaps");
     }
   }
-  return Plan(handle, k, std::move(district));
+  return Plan(graph, k, std::move(district));
 }
 
-}  // namespace
-
 Plan read_plan_csv(const std::string& path, const GraphHandle& graph, std::size_t k) {
-  return plan_from_table(read_csv_file(path), graph, k);
+  const PlanRows rows = read_plan_rows(path, k);
+  return plan_of_every_district(rows, graph, k, unit_districts(rows, *graph));
 }
 
 Plan parse_plan_csv(std::string_view text, const std::string& source, const GraphHandle& graph, std::size_t k) {
-  return plan_from_table(parse_csv_text(text, source), graph, k);
+  const PlanRows rows = rows_of_table(parse_csv_text(text, source), k);
+  return plan_of_every_district(rows, graph, k, unit_districts(rows, *graph));
 }
 
 std::string plan_csv_text(const Plan& plan) {

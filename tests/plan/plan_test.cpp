@@ -94,6 +94,23 @@ TEST(Plan, Contiguity) {
   EXPECT_FALSE(one.is_connected(2));
 }
 
+TEST(Plan, PiecesSayWhyADistrictIsNotContiguous) {
+  // 3x3 grid with populations 1..9 (unit u has u + 1 people).
+  test::GraphExtras x;
+  x.population = {1, 2, 3, 4, 5, 6, 7, 8, 9};
+  const GraphHandle g = share_graph(test::grid(3, 3, x));
+  // District 0: the left column {0, 3, 6} (12 people) and the right one {2, 5, 8} (18 people).
+  const Plan plan(g, 3, {0, 1, 0, 0, 1, 0, 0, 1, 0});
+  const std::vector<DistrictPiece> pieces = plan.pieces(0);
+  ASSERT_EQ(pieces.size(), 2U);
+  EXPECT_EQ(pieces[0].units, 3U);
+  EXPECT_EQ(pieces[0].population, 18);  // the largest by population first
+  EXPECT_EQ(pieces[1].population, 12);
+  ASSERT_EQ(plan.pieces(1).size(), 1U);  // the middle column: one piece of 15 people
+  EXPECT_EQ(plan.pieces(1)[0].population, 15);
+  EXPECT_TRUE(plan.pieces(2).empty());  // empty district: no piece
+}
+
 // Issue 11, item 17: the flip kernel's contiguity check starts next to the unit that left. Over
 // random single-unit moves between connected districts it must answer as the full search does.
 TEST(Plan, ContiguityWithoutTheUnitThatLeftAgreesWithTheFullSearch) {

@@ -67,9 +67,9 @@ TEST(RuleTracker, PopulationBoundsAndViolationText) {
   EXPECT_FALSE(tracker.hard_rules_ok(plan));
   const std::string text = tracker.describe_violations(plan);
   EXPECT_NE(text.find("district 1 has population 12"), std::string::npos) << text;
-  EXPECT_NE(text.find("4 above the upper bound 8"), std::string::npos) << text;
+  EXPECT_NE(text.find("4 (50.00% of ideal) above the upper bound 8"), std::string::npos) << text;
   EXPECT_NE(text.find("district 2 has population 4"), std::string::npos) << text;
-  EXPECT_NE(text.find("4 below the lower bound 8"), std::string::npos) << text;
+  EXPECT_NE(text.find("4 (50.00% of ideal) below the lower bound 8"), std::string::npos) << text;
   // Move column 2 across: two halves of 8, all rules met.
   for (UnitIndex r = 0; r < 4; ++r) tracker.move(plan, r * 4 + 2, 1);
   EXPECT_TRUE(tracker.hard_rules_ok(plan));

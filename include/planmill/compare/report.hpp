@@ -15,6 +15,7 @@ namespace planmill::compare {
 
 struct CompareReport {
   std::string run_dir, plan_file;
+  std::string plan_reading;  // how a plan on finer units was carried onto the map's (empty: read as given)
   std::vector<std::string> chains;     // chains used, after the verdict left out damaged ones
   std::vector<std::size_t> records;    // their record counts
   std::uint64_t burn_in_steps = 0;     // the job's steps before the first record

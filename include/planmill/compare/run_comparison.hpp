@@ -16,6 +16,7 @@ namespace planmill::compare {
 struct CompareOptions {
   std::string run_dir;
   std::string plan_file;
+  std::string crosswalk_file;  // when set, PLAN is on the crosswalk's fine units (score/crosswalk.hpp)
   std::size_t dropped_records = 0;  // leading records dropped per chain, beyond the job's burn-in
 };
 

@@ -12,6 +12,12 @@
 
 namespace planmill {
 
+// One connected piece of a district (District pieces: Plan::pieces).
+struct DistrictPiece {
+  std::size_t units = 0;
+  std::int64_t population = 0;
+};
+
 class Plan {
  public:
   // district[u] in 0..k-1 for every unit. Throws std::invalid_argument on a wrong size or label or
@@ -70,6 +76,9 @@ class Plan {
   // (each unit of d reached `left` through one of them), so it never scans the map for a start.
   [[nodiscard]] bool is_connected_without(DistrictIndex d, UnitIndex left) const;
   [[nodiscard]] bool all_connected() const;
+  // The connected pieces of district d, the largest first (by population, then units): one piece
+  // when d is contiguous, none when it is empty. Says why is_connected(d) is false; allocates.
+  [[nodiscard]] std::vector<DistrictPiece> pieces(DistrictIndex d) const;
 
   // Recomputes every tally from scratch and compares (for tests and heavy assertions).
   [[nodiscard]] bool tallies_consistent() const;

@@ -45,6 +45,20 @@ struct PopulationBounds {
 [[nodiscard]] PopulationBounds population_bounds(std::int64_t total_population,
                                                  std::size_t district_count, double deviation);
 
+// A district outside its population bounds: `beyond` people below the lower bound (negative) or
+// above the upper bound (positive).
+struct PopulationBreach {
+  DistrictIndex district;
+  std::int64_t population;
+  std::int64_t beyond;
+};
+// Every district of `plan` outside `bounds`, in district order (also an empty one: 0 people).
+[[nodiscard]] std::vector<PopulationBreach> population_breaches(const Plan& plan, PopulationBounds bounds);
+// "district 3 has population 13,500 (+9.35% from ideal 12,345.50), 538 (4.36% of ideal) above the
+// upper bound 12,962", districts numbered 1..k.
+[[nodiscard]] std::string describe_population_breach(const PopulationBreach& breach, PopulationBounds bounds,
+                                                     double ideal);
+
 class RuleTracker {
  public:
   // Throws std::invalid_argument if the rules do not fit the plan's graph (a county rule on a map
