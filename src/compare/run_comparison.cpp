@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "planmill/base/error.hpp"
+#include "planmill/compare/outlier_test.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/job/job_measures.hpp"
@@ -112,7 +113,9 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
                      "run the job longer, or check it with 'planmill diagnose'");
 
   const JobSpec job = job_of_run(reader);
-  r.declared = job.compare.declared;
+  std::vector<DeclaredMeasure> declared;  // a name may carry the tail of the ε-outlier test (":low", ":high")
+  for (const std::string& entry : job.compare.declared) declared.push_back(parse_declared(entry, job.path));
+  for (const DeclaredMeasure& d : declared) r.declared.push_back(d.name);
   LoadReport load;
   const GraphHandle graph = share_graph(load_unit_graph(job.map, &load));
   if (graph->unit_count() != reader.unit_count())
@@ -129,6 +132,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
                          e.what());
   }
   const PlanValues values = measure_plan(plan, graph, rules, make_measure_spec(job.measures, *graph));
+  r.outlier = outlier_test(reader, job, plan, problems, declared, values.scalars);
 
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));
