@@ -54,13 +54,14 @@ class OutlierCli : public ::testing::Test {
   static fs::path plan(const std::string& record) {
     return *dir_ / "a" / "csv" / "plans" / ("chain-0-record-" + record + ".csv");
   }
-  // A synth job in dir/name whose chains all start at plan("59"), with a declared tail.
-  static fs::path started_job(const std::string& name, const std::string& sampler) {
+  // A synth job in dir/name whose chains all start at `start` (plan("59")), with a declared tail.
+  static fs::path started_job(const std::string& name, const std::string& sampler, fs::path start = {}) {
+    if (start.empty()) start = plan("59");
     const fs::path job = test::write_synth_job(*dir_ / name, sampler);
     std::string text = test::read_text(job);
     const std::string anchor = "[districts]\n";
     text.insert(text.find(anchor) + anchor.size(),
-                "start = \"" + plan("59").string() + "\"\nstarts = \"given\"\n");
+                "start = \"" + start.string() + "\"\nstarts = \"given\"\n");
     text += "[compare]\ndeclared = [\"compactness.cut_edges:low\", \"compactness.polsby_popper_min\"]\n";
     std::ofstream(job) << text;
     return job;
@@ -191,6 +192,30 @@ TEST_F(OutlierCli, AnUnrecordedBurnInIsRefused) {
   ASSERT_EQ(run(job, "burn"), 0);
   ASSERT_TRUE(compare("burn", plan("59")) != 2) << out();
   EXPECT_NE(out().find("the run did not record its first steps (burn_in = 10 steps"), std::string::npos) << out();
+}
+
+TEST_F(OutlierCli, ATemperedRunIsRefused) {
+  const fs::path job = started_job("tempered", "kernel = \"flip\"\nchains = 1\nsteps = 40\nseed = 2\n"
+                                               "[tempering]\nrungs = 2\nhottest_beta = 0.2");
+  ASSERT_EQ(run(job, "tempered"), 0);
+  ASSERT_TRUE(compare("tempered", plan("59")) != 2) << out();
+  EXPECT_NE(out().find("epsilon-outlier test not run: the run is tempered: the target rung's trajectory alone is not a "
+                       "Markov chain"),
+            std::string::npos)
+      << out();
+}
+
+TEST_F(OutlierCli, AStartPlanChangedSinceTheRunIsNotTrusted) {
+  const fs::path start = *dir_ / "start-copy.csv";
+  fs::copy_file(plan("59"), start);
+  const fs::path job = started_job("changed", "kernel = \"flip\"\nchains = 1\nsteps = 20\nseed = 2", start);
+  ASSERT_EQ(run(job, "changed"), 0);
+  ASSERT_TRUE(compare("changed", plan("59")) != 2) << out();
+  EXPECT_TRUE(json()["outlier_test"]["ran"].get<bool>()) << out();
+  fs::copy_file(plan("29"), start, fs::copy_options::overwrite_existing);
+  ASSERT_TRUE(compare("changed", plan("59")) != 2) << out();
+  EXPECT_NE(out().find("has changed since the run started"), std::string::npos) << out();
+  EXPECT_FALSE(json()["outlier_test"]["ran"].get<bool>());
 }
 
 }  // namespace
