@@ -4,6 +4,7 @@
 #include <cmath>
 #include <filesystem>
 #include <limits>
+#include <optional>
 
 #include "planmill/base/error.hpp"
 #include "planmill/io/file_hash.hpp"
@@ -30,7 +31,9 @@ bool same_partition(std::span<const DistrictIndex> a, std::span<const DistrictIn
   return true;
 }
 
-std::string why_not_started_at_plan(const RunReader& reader, const JobSpec& job, const Plan& plan) {
+// Why the chains did not start at `plan`, or empty (and `start` set to the run's start plan).
+std::string why_not_started_at_plan(const RunReader& reader, const JobSpec& job, const Plan& plan,
+                                    std::optional<Plan>& start) {
   if (job.start == "random" || job.starts == ChainStarts::random)
     return "the run's chains began at random seed plans, not at the compared plan";
   const auto recorded = std::find_if(reader.state().inputs.begin(), reader.state().inputs.end(),
@@ -41,8 +44,8 @@ std::string why_not_started_at_plan(const RunReader& reader, const JobSpec& job,
     return "the run's start plan " + job.start + " cannot be read to check that it is the compared plan";
   if (sha256_file_hex(job.start) != recorded->sha256)
     return "the run's start plan " + job.start + " has changed since the run started";
-  const Plan start = read_plan_csv(job.start, plan.graph_handle(), plan.district_count());
-  if (!same_partition(start.assignment(), plan.assignment(), plan.district_count()))
+  start.emplace(read_plan_csv(job.start, plan.graph_handle(), plan.district_count()));
+  if (!same_partition(start->assignment(), plan.assignment(), plan.district_count()))
     return "the run's chains began at " + job.start + ", which is another plan than the compared one";
   return {};
 }
@@ -145,13 +148,13 @@ double combine_chains(std::span<const double> p) noexcept {
 
 OutlierSection outlier_test(const RunReader& reader, const JobSpec& job, const Plan& plan,
                             const std::vector<ChainProblem>& problems,
-                            const std::vector<DeclaredMeasure>& declared,
-                            const std::map<std::string, double>& plan_values) {
+                            const std::vector<DeclaredMeasure>& declared, const PlanMeasure& measure) {
   OutlierSection out;
   out.assumptions = assumptions(job);
   const std::string how = "to run it, start the chains at the plan (districts.start = the plan's CSV, starts = "
                           "\"given\" or \"mixed\") with kernel merge-split or flip, burn_in = 0, no [tempering]";
-  if (const std::string why = why_not_started_at_plan(reader, job, plan); !why.empty()) {
+  std::optional<Plan> start;
+  if (const std::string why = why_not_started_at_plan(reader, job, plan, start); !why.empty()) {
     out.status = "epsilon-outlier test not run: " + why + "; " + how + ".";
     return out;
   }
@@ -176,7 +179,11 @@ OutlierSection outlier_test(const RunReader& reader, const JobSpec& job, const P
     const std::vector<std::uint64_t> steps = reader.record_steps(c);
     bool spaced = true;
     for (std::size_t i = 0; i < steps.size(); ++i) spaced = spaced && steps[i] == (i + 1) * every;
-    if (!spaced || steps.empty()) {
+    if (steps.empty()) {
+      out.warnings.push_back("chain " + std::to_string(c) + " left out of the epsilon-outlier test: it has no records");
+      continue;
+    }
+    if (!spaced) {
       out.warnings.push_back("chain " + std::to_string(c) + " left out of the epsilon-outlier test: its records "
                              "are not every " + std::to_string(every) + "-th step from the start");
       continue;
@@ -199,6 +206,7 @@ OutlierSection outlier_test(const RunReader& reader, const JobSpec& job, const P
   out.ran = true;
   out.status = "epsilon-outlier test (no mixing needed): " + std::to_string(used.size()) +
                " chain(s) started at the plan, every record from the start plus the plan itself.";
+  const std::map<std::string, double> plan_values = measure(*start);
   const std::vector<std::string>& names = reader.observable_names();
   std::vector<std::vector<double>> rows;
   for (const std::uint64_t c : used) rows.push_back(reader.read_observables(c));

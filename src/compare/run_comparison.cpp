@@ -115,7 +115,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   const JobSpec job = job_of_run(reader);
   std::vector<DeclaredMeasure> declared;  // a name may carry the tail of the ε-outlier test (":low", ":high")
   for (const std::string& entry : job.compare.declared) declared.push_back(parse_declared(entry, job.path));
-  for (const DeclaredMeasure& d : declared) r.declared.push_back(d.name);
+  for (const DeclaredMeasure& entry : declared) r.declared.push_back(entry.name);
   LoadReport load;
   const GraphHandle graph = share_graph(load_unit_graph(job.map, &load));
   if (graph->unit_count() != reader.unit_count())
@@ -131,8 +131,10 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
     r.warnings.push_back(std::string("the plan breaks a hard rule of the run, so the ensemble holds no plan like it: ") +
                          e.what());
   }
-  const PlanValues values = measure_plan(plan, graph, rules, make_measure_spec(job.measures, *graph));
-  r.outlier = outlier_test(reader, job, plan, problems, declared, values.scalars);
+  const MeasureSpec measure_spec = make_measure_spec(job.measures, *graph);
+  const PlanValues values = measure_plan(plan, graph, rules, measure_spec);
+  r.outlier = outlier_test(reader, job, plan, problems, declared,
+                           [&](const Plan& p) { return measure_plan(p, graph, rules, measure_spec).scalars; });
 
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));

@@ -55,13 +55,14 @@ class OutlierCli : public ::testing::Test {
     return *dir_ / "a" / "csv" / "plans" / ("chain-0-record-" + record + ".csv");
   }
   // A synth job in dir/name whose chains all start at `start` (plan("59")), with a declared tail.
-  static fs::path started_job(const std::string& name, const std::string& sampler, fs::path start = {}) {
+  static fs::path started_job(const std::string& name, const std::string& sampler, fs::path start = {},
+                              const std::string& starts = "given") {
     if (start.empty()) start = plan("59");
     const fs::path job = test::write_synth_job(*dir_ / name, sampler);
     std::string text = test::read_text(job);
     const std::string anchor = "[districts]\n";
     text.insert(text.find(anchor) + anchor.size(),
-                "start = \"" + start.string() + "\"\nstarts = \"given\"\n");
+                "start = \"" + start.string() + "\"\nstarts = \"" + starts + "\"\n");
     text += "[compare]\ndeclared = [\"compactness.cut_edges:low\", \"compactness.polsby_popper_min\"]\n";
     std::ofstream(job) << text;
     return job;
@@ -192,6 +193,18 @@ TEST_F(OutlierCli, AnUnrecordedBurnInIsRefused) {
   ASSERT_EQ(run(job, "burn"), 0);
   ASSERT_TRUE(compare("burn", plan("59")) != 2) << out();
   EXPECT_NE(out().find("the run did not record its first steps (burn_in = 10 steps"), std::string::npos) << out();
+}
+
+TEST_F(OutlierCli, MixedStartsTestChainZeroAlone) {
+  // starts = "mixed": chain 0 begins at the plan, chain 1 at a random seed plan (docs/jobs.md).
+  const fs::path job = started_job("mixed", "kernel = \"flip\"\nchains = 2\nsteps = 20\nseed = 2", {}, "mixed");
+  ASSERT_EQ(run(job, "mixed"), 0);
+  ASSERT_TRUE(compare("mixed", plan("59")) != 2) << out();
+  const auto t = json()["outlier_test"];
+  ASSERT_TRUE(t["ran"].get<bool>()) << out();
+  ASSERT_EQ(t["measures"][0]["chains"].size(), 1u);
+  EXPECT_EQ(t["measures"][0]["chains"][0]["chain"], "0");
+  EXPECT_EQ(t["measures"][0]["chains"][0]["states"], 21);
 }
 
 TEST_F(OutlierCli, ATemperedRunIsRefused) {

@@ -7,6 +7,7 @@
 // the compared plan, per declared measure, both tails; the formula, its assumptions and how
 // chains are combined: docs/compare.md, "The ε-outlier test".
 #include <cstddef>
+#include <functional>
 #include <map>
 #include <span>
 #include <string>
@@ -76,11 +77,13 @@ struct OutlierSection {
 // since the run started), with a reversible kernel (merge-split or flip), no tempering, and every
 // step from the start recorded at the spacing record_every; otherwise `ran` is false and
 // `status` says why. `problems` is reader.verify() (a chain with problems is left out);
-// `plan_values` are the plan's values of the declared measures by name.
+// `measure` gives a plan's value of every scalar by name: X0 is the run's own start plan, measured
+// so (its labels may differ from the compared plan's, and a sum over districts in another order may
+// differ in the last bit).
+using PlanMeasure = std::function<std::map<std::string, double>(const Plan&)>;
 [[nodiscard]] OutlierSection outlier_test(const RunReader& reader, const JobSpec& job, const Plan& plan,
                                           const std::vector<ChainProblem>& problems,
-                                          const std::vector<DeclaredMeasure>& declared,
-                                          const std::map<std::string, double>& plan_values);
+                                          const std::vector<DeclaredMeasure>& declared, const PlanMeasure& measure);
 
 [[nodiscard]] const char* tail_name(OutlierTail tail) noexcept;  // "two-sided", "low", "high"
 
