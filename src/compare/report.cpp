@@ -6,6 +6,7 @@
 #include <ostream>
 #include <sstream>
 
+#include "compare/outlier_report.hpp"
 #include "planmill/io/json_number.hpp"
 
 namespace planmill::compare {
@@ -101,7 +102,7 @@ void csv_scalar_row(std::ostringstream& out, const char* kind, const ScalarCompa
       << csv_num(s.mcse_equal) << ',' << csv_num(s.mcse_above) << ',' << csv_num(s.ess) << ','
       << csv_num(s.bound);
   for (const double p : s.percentiles) out << ',' << csv_num(p);
-  out << ",,\n";
+  out << ",," << outlier_csv_blank() << "\n";
 }
 
 }  // namespace
@@ -189,6 +190,7 @@ void print_report(const CompareReport& r, std::ostream& out) {
   }
   out << "\nsummary (measures declared in advance and the overall statistics only):\n";
   for (const auto& s : summary(r)) out << "  " << s << "\n";
+  print_outlier_section(r.outlier, out);
   out << "\n" << caution() << "\n";
 }
 
@@ -229,15 +231,16 @@ Json report_json(const CompareReport& r) {
     vectors.push_back({{"name", v.name}, {"positions", positions}, {"overall", scalar_json(v.overall)}});
   }
   j["sorted_vectors"] = vectors;
+  j["outlier_test"] = outlier_json(r.outlier);
   return j;
 }
 
 std::string report_csv(const CompareReport& r) {
   std::ostringstream out;
-  out << "# " << caution() << "\n";
+  out << "# " << caution() << "\n" << outlier_csv_status(r.outlier);
   out << "kind,measure,position,plan,below,equal,above,mcse_below,mcse_equal,mcse_above,ess,bound";
   for (const double p : kPercentileProbs) out << ",p" << num(100.0 * p, 3);
-  out << ",outside95,outside99\n";
+  out << ",outside95,outside99" << outlier_csv_columns() << "\n";
   for (const auto& s : r.scalars) csv_scalar_row(out, "scalar", s);
   for (const auto& v : r.vectors) {
     csv_scalar_row(out, "overall", v.overall);
@@ -246,9 +249,10 @@ std::string report_csv(const CompareReport& r) {
       out << "position," << csv_field(v.name) << ',' << i + 1 << ',' << csv_num(p.plan) << ','
           << csv_num(p.below) << ",," << csv_num(p.above) << ",,,,,";
       for (const double q : p.percentiles) out << ',' << csv_num(q);
-      out << ',' << (p.outside95 ? 1 : 0) << ',' << (p.outside99 ? 1 : 0) << "\n";
+      out << ',' << (p.outside95 ? 1 : 0) << ',' << (p.outside99 ? 1 : 0) << outlier_csv_blank() << "\n";
     }
   }
+  out << outlier_csv_rows(r.outlier, kPercentileProbs.size() + 10);
   return out.str();
 }
 

@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "planmill/base/error.hpp"
+#include "planmill/compare/outlier_test.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/job/job_measures.hpp"
@@ -87,7 +88,9 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
                      "run the job longer, or check it with 'planmill diagnose'");
 
   const JobSpec job = job_of_run(reader);
-  r.declared = job.compare.declared;
+  std::vector<DeclaredMeasure> declared;  // a name may carry the tail of the ε-outlier test (":low", ":high")
+  for (const std::string& entry : job.compare.declared) declared.push_back(parse_declared(entry, job.path));
+  for (const DeclaredMeasure& entry : declared) r.declared.push_back(entry.name);
   LoadReport load;
   const GraphHandle graph = share_graph(load_unit_graph(job.map, &load));
   if (graph->unit_count() != reader.unit_count())
@@ -106,7 +109,10 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
     r.warnings.push_back(std::string("the plan breaks a hard rule of the run, so the ensemble holds no plan like it: ") +
                          e.what());
   }
-  const PlanValues values = measure_plan(plan, graph, rules, make_measure_spec(job.measures, *graph));
+  const MeasureSpec measure_spec = make_measure_spec(job.measures, *graph);
+  const PlanValues values = measure_plan(plan, graph, rules, measure_spec);
+  r.outlier = outlier_test(reader, job, plan, problems, declared,
+                           [&](const Plan& p) { return measure_plan(p, graph, rules, measure_spec).scalars; });
 
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));

@@ -118,7 +118,8 @@ TEST_F(CompareCli, APlanFromTheRunIsPlacedInItsEnsemble) {
   std::string line;
   std::getline(table, line);
   EXPECT_EQ(line.rfind("# Caution:", 0), 0u) << line;
-  std::getline(table, line);
+  while (std::getline(table, line) && line.rfind("#", 0) == 0) {  // then the ε-outlier test's status
+  }
   EXPECT_EQ(line.rfind("kind,measure,position,plan,below,equal,above,", 0), 0u) << line;
   const std::size_t columns = split(line).size();
   std::size_t rows = 0;

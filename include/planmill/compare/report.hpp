@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "planmill/compare/comparison.hpp"
+#include "planmill/compare/outlier_test.hpp"
 
 namespace planmill::compare {
 
@@ -28,6 +29,7 @@ struct CompareReport {
   std::vector<std::string> declared;    // [compare] declared, in the job's order
   std::vector<ScalarComparison> scalars;
   std::vector<VectorComparison> vectors;
+  OutlierSection outlier;  // the ε-outlier test, or one line on why it was not run
 };
 
 [[nodiscard]] const std::string& caution();
