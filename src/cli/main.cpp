@@ -22,6 +22,7 @@ int main(int argc, char** argv) {
   cli::add_export_command(app, action);
   cli::add_diagnose_command(app, action);
   cli::add_compare_command(app, action);
+  cli::add_pick_command(app, action);
   cli::add_report_command(app, action);
   cli::add_ingest_command(app, action);
   try {

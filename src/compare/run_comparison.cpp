@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "planmill/base/error.hpp"
+#include "planmill/compare/record_filter.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/job/job_measures.hpp"
@@ -23,6 +24,8 @@ namespace {
 
 namespace fs = std::filesystem;
 
+}  // namespace
+
 JobSpec job_of_run(const RunReader& reader) {
   const fs::path copy = reader.layout().job_copy();
   std::ifstream in(copy, std::ios::binary);
@@ -35,6 +38,8 @@ JobSpec job_of_run(const RunReader& reader) {
   const std::string& given = reader.state().job_path;
   return parse_job_text(text.str(), given.empty() ? copy.string() : given);
 }
+
+namespace {
 
 // The plan's value of every scalar it can be given, by name: the run's own observables first.
 struct PlanValues {
@@ -70,15 +75,26 @@ PlanValues measure_plan(const Plan& plan, const GraphHandle& graph, const RuleSe
 std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
                                              std::size_t first, std::size_t draws, std::size_t positions,
                                              const std::vector<std::string>& names) {
+  std::vector<std::vector<std::size_t>> records(chains.size());
+  for (auto& r : records)
+    for (std::size_t d = 0; d < draws; ++d) r.push_back(first + d);
+  return read_sorted_vectors(reader, chains, records, positions, names);
+}
+
+std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
+                                             const std::vector<std::vector<std::size_t>>& records,
+                                             std::size_t positions, const std::vector<std::string>& names) {
   std::vector<VectorTable> tables;
   const std::vector<std::string>& stored = reader.sorted_names();
+  const std::size_t draws = records.empty() ? 0 : records[0].size();
   for (const std::string& name : names) {
     if (std::find(stored.begin(), stored.end(), name) == stored.end()) continue;
     VectorTable t{name, std::vector<double>(chains.size() * draws * positions), draws, chains.size(), positions};
     for (std::size_t c = 0; c < chains.size(); ++c) {
       const std::vector<double> rows = reader.read_sorted(chains[c], name);  // records x positions
-      std::copy_n(rows.begin() + static_cast<std::ptrdiff_t>(first * positions), draws * positions,
-                  t.values.begin() + static_cast<std::ptrdiff_t>(c * draws * positions));
+      for (std::size_t d = 0; d < draws; ++d)
+        std::copy_n(rows.begin() + static_cast<std::ptrdiff_t>(records[c][d] * positions), positions,
+                    t.values.begin() + static_cast<std::ptrdiff_t>((c * draws + d) * positions));
     }
     tables.push_back(std::move(t));
   }
@@ -133,6 +149,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));
   const std::vector<std::string>& stored = reader.observable_names();
+  check_filter_names(o.filters, stored, o.run_dir);
   std::map<std::string, std::size_t> column;
   for (std::size_t i = 0; i < stored.size(); ++i) column.emplace(stored[i], i);
   std::vector<ScalarTable> tables;
@@ -148,17 +165,20 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   for (const std::string& name : stored)
     if (values.scalars.count(name) == 0)
       r.warnings.push_back("the run stores '" + name + "', which compare cannot compute for a plan; it is not compared");
-  for (std::size_t c = 0; c < chains.size(); ++c) {
-    const std::vector<double> rows = reader.read_observables(chains[c]);
-    for (ScalarTable& t : tables) {
-      const std::size_t col = column.at(t.name);
-      for (std::size_t draw = 0; draw < r.draws; ++draw)
-        t.values[c * r.draws + draw] = rows[(r.dropped_records + draw) * stored.size() + col];
-    }
-  }
+  // Filters (--keep) choose the records before any statistic (docs/pick.md).
+  std::vector<std::vector<double>> rows;
+  for (const std::uint64_t c : chains) rows.push_back(reader.read_observables(c));
+  const FilteredRecords kept = filter_records(o.filters, stored, rows, r.dropped_records, r.draws);
+  r.filters = kept.counts;
+  r.filter_line = describe_filters(kept);
+  r.draws = kept.draws;
+  if (r.draws == 0)
+    throw InputError({o.run_dir, 0, "--keep"}, "the filters leave some chain without records (" + r.filter_line + ")",
+                     "loosen the filters");
+  for (ScalarTable& t : tables) t = kept_scalar_table(t.name, column.at(t.name), stored.size(), rows, kept);
   for (std::size_t i = 0; i < tables.size(); ++i) r.scalars.push_back(compare_scalar(tables[i], plan_values[i]));
 
-  const std::vector<VectorTable> vectors = read_sorted_vectors(reader, chains, r.dropped_records, r.draws,
+  const std::vector<VectorTable> vectors = read_sorted_vectors(reader, chains, used_records(kept),
                                                                reader.district_count(), values.vector_names);
   for (std::size_t v = 0; v < values.vector_names.size(); ++v) {
     const VectorTable* table = nullptr;
