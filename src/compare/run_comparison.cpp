@@ -105,6 +105,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   if (!fs::is_directory(o.run_dir))
     throw InputError({o.run_dir, 0, {}}, "is not a folder", "give the run folder that 'planmill run' wrote");
   const RunReader reader(o.run_dir);
+  check_filter_names(o.filters, reader.observable_names(), o.run_dir);
   const std::vector<ChainProblem> problems = reader.verify();
   const RunVerdictRule rule = verdict_rule_of_run(reader);
   const RunDiagnostics d = diagnose_run(reader, rule.rule, {.dropped_records = o.dropped_records, .problems = problems});
@@ -149,7 +150,6 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   std::vector<std::uint64_t> chains;
   for (const std::string& c : r.chains) chains.push_back(std::stoull(c));
   const std::vector<std::string>& stored = reader.observable_names();
-  check_filter_names(o.filters, stored, o.run_dir);
   std::map<std::string, std::size_t> column;
   for (std::size_t i = 0; i < stored.size(); ++i) column.emplace(stored[i], i);
   std::vector<ScalarTable> tables;

@@ -3,6 +3,7 @@
 #include <cstdio>
 #include <filesystem>
 #include <sstream>
+#include <string>
 #include <unistd.h>
 
 #include "planmill/base/error.hpp"
@@ -73,7 +74,10 @@ std::string picks_summary(const PickResult& r) {
   for (const std::string& c : r.chains) out << " " << c;
   out << "; " << r.candidates << " kept records ranked; places against " << r.records_per_chain
       << " kept records per chain\n";
-  out << r.verdict_line;
+  // The verdict's headline; `planmill diagnose` gives the rest.
+  std::istringstream verdict(r.verdict_line);
+  for (std::string line; std::getline(verdict, line);)
+    if (line.rfind("verdict:", 0) == 0) out << line << " (details: planmill diagnose " << r.run_dir << ")\n";
   if (!r.verdict_pass)
     out << "WARNING: the ensemble has not passed the convergence verdict; the places below may not describe the "
            "distribution the rules define.\n";
