@@ -27,6 +27,7 @@ int run_pick(PickArgs& a) {
   if (!a.drop_records.empty())
     a.options.dropped_records = parse_whole_option(a.drop_records, "--drop-records", 0, UINT64_MAX,
                                                    "the leading records to drop from every chain");
+  pick::check_out_dir(a.options);  // before the work, not after it
   const pick::PickResult result = pick::pick_plans(a.options);
   pick::write_picks(result, a.options);
   std::cout << pick::picks_summary(result);

@@ -104,12 +104,18 @@ std::string picks_summary(const PickResult& r) {
   return out.str();
 }
 
-void write_picks(const PickResult& r, const PickOptions& o) {
+void check_out_dir(const PickOptions& o) {
   const fs::path out(o.out_dir);
   std::error_code ec;
   if (fs::exists(out, ec) && !(fs::is_directory(out, ec) && fs::is_empty(out, ec)) && !o.force)
     throw InputError({o.out_dir, 0, "--out"}, "exists and is not empty",
                      "choose a new folder, or give --force to replace it");
+}
+
+void write_picks(const PickResult& r, const PickOptions& o) {
+  check_out_dir(o);
+  const fs::path out(o.out_dir);
+  std::error_code ec;
   // Everything goes to a sibling staging folder, which then takes the place of out_dir.
   const fs::path parent = out.has_parent_path() ? out.parent_path() : fs::path(".");
   const fs::path staging = parent / ("." + out.filename().string() + ".partial-" + std::to_string(::getpid()));

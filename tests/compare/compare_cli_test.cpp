@@ -119,6 +119,8 @@ TEST_F(CompareCli, APlanFromTheRunIsPlacedInItsEnsemble) {
   std::getline(table, line);
   EXPECT_EQ(line.rfind("# Caution:", 0), 0u) << line;
   std::getline(table, line);
+  EXPECT_EQ(line, "# Filters (--keep): none");
+  std::getline(table, line);
   EXPECT_EQ(line.rfind("kind,measure,position,plan,below,equal,above,", 0), 0u) << line;
   const std::size_t columns = split(line).size();
   std::size_t rows = 0;

@@ -63,6 +63,8 @@ struct PickResult {
 
 [[nodiscard]] std::string picks_table_csv(const PickResult& result);
 [[nodiscard]] std::string picks_summary(const PickResult& result);
+// InputError when out_dir exists and is not empty, unless options.force.
+void check_out_dir(const PickOptions& options);
 // Writes plan-<i>.csv per pick, picks.csv and summary.txt into options.out_dir, all or nothing.
 // InputError when out_dir exists and is not empty, unless options.force (then it is replaced).
 void write_picks(const PickResult& result, const PickOptions& options);
