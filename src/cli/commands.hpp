@@ -18,6 +18,7 @@ void add_export_command(CLI::App& app, Action& action);
 void add_diagnose_command(CLI::App& app, Action& action);
 void add_compare_command(CLI::App& app, Action& action);
 void add_score_command(CLI::App& app, Action& action);
+void add_pick_command(CLI::App& app, Action& action);
 void add_report_command(CLI::App& app, Action& action);
 void add_ingest_command(CLI::App& app, Action& action);
 void add_status_command(CLI::App& app, Action& action);

@@ -4,9 +4,11 @@
 #include <iostream>
 #include <memory>
 #include <string>
+#include <vector>
 
 #include "cli/commands.hpp"
 #include "cli/whole_option.hpp"
+#include "planmill/compare/record_filter.hpp"
 #include "planmill/compare/run_comparison.hpp"
 #include "planmill/io/atomic_file.hpp"
 
@@ -16,12 +18,14 @@ namespace {
 struct CompareArgs {
   compare::CompareOptions options;
   std::string json, csv, drop_records;
+  std::vector<std::string> keep;
 };
 
 int run_compare(CompareArgs& a) {
   if (!a.drop_records.empty())
     a.options.dropped_records = parse_whole_option(a.drop_records, "--drop-records", 0, UINT64_MAX,
                                                    "the leading records to drop from every chain");
+  for (const std::string& k : a.keep) a.options.filters.push_back(compare::parse_record_filter(k));
   const compare::CompareReport report = compare::compare_plan_with_run(a.options);
   compare::print_report(report, std::cout);
   if (!a.json.empty()) {
@@ -48,6 +52,10 @@ void add_compare_command(CLI::App& app, Action& action) {
   sub->add_option("--csv", args->csv, "also write the comparison as one CSV table");
   sub->add_option("--drop-records", args->drop_records,
                   "drop the first N records of every chain beyond the job's burn-in (default 0)");
+  sub->add_option("--keep", args->keep,
+                  "compare only with records where 'OBSERVABLE OP NUMBER' holds (OP < <= == >= >; repeatable, "
+                  "all must hold; docs/pick.md)")
+      ->allow_extra_args(false);
   sub->callback([&action, args] { action = [args] { return run_compare(*args); }; });
 }
 

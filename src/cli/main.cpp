@@ -23,6 +23,7 @@ int main(int argc, char** argv) {
   cli::add_diagnose_command(app, action);
   cli::add_compare_command(app, action);
   cli::add_score_command(app, action);
+  cli::add_pick_command(app, action);
   cli::add_report_command(app, action);
   cli::add_ingest_command(app, action);
   cli::add_status_command(app, action);

@@ -107,6 +107,12 @@ void csv_scalar_row(std::ostringstream& out, const char* kind, const ScalarCompa
 
 }  // namespace
 
+Json filters_json(const std::vector<FilterCount>& filters, const std::string& line) {
+  Json applied = Json::array();
+  for (const FilterCount& f : filters) applied.push_back({{"filter", f.filter}, {"removed", f.removed}});
+  return Json{{"applied", applied}, {"text", line.empty() ? "none" : line}};
+}
+
 const std::string& caution() {
   static const std::string text =
       "Caution: the ensemble is a baseline under the rules this run states, not a finding of intent; "
@@ -149,6 +155,7 @@ void print_report(const CompareReport& r, std::ostream& out) {
     out << (i ? ", " : "") << r.chains[i] << ": " << r.records[i] << " records";
   out << "), " << r.draws << " records used per chain after the job's burn-in of " << r.burn_in_steps
       << " steps and " << r.dropped_records << " dropped records\n";
+  out << "filters (--keep): " << (r.filter_line.empty() ? "none" : r.filter_line) << "\n";
   out << r.verdict_line;
   if (!r.verdict_pass)
     out << "WARNING: the ensemble has not passed the convergence verdict; its shares and percentiles may "
@@ -206,6 +213,7 @@ Json report_json(const CompareReport& r) {
                    {"burn_in_steps", r.burn_in_steps},
                    {"dropped_records", r.dropped_records},
                    {"records_used_per_chain", r.draws}};
+  j["filters"] = filters_json(r.filters, r.filter_line);
   j["verdict"] = {{"pass", r.verdict_pass}, {"text", r.verdict_line}};
   j["warnings"] = r.warnings;
   j["not_stored"] = r.not_stored;
@@ -237,7 +245,9 @@ Json report_json(const CompareReport& r) {
 
 std::string report_csv(const CompareReport& r) {
   std::ostringstream out;
-  out << "# " << caution() << "\n" << outlier_csv_status(r.outlier);
+  out << "# " << caution() << "\n";
+  out << "# Filters (--keep): " << (r.filter_line.empty() ? "none" : r.filter_line) << "\n";
+  out << outlier_csv_status(r.outlier);
   out << "kind,measure,position,plan,below,equal,above,mcse_below,mcse_equal,mcse_above,ess,bound";
   for (const double p : kPercentileProbs) out << ",p" << num(100.0 * p, 3);
   out << ",outside95,outside99" << outlier_csv_columns() << "\n";

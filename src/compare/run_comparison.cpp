@@ -8,6 +8,7 @@
 
 #include "planmill/base/error.hpp"
 #include "planmill/compare/outlier_test.hpp"
+#include "planmill/compare/record_filter.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/job/job_measures.hpp"
@@ -28,6 +29,8 @@ namespace fs = std::filesystem;
 using score::measure_plan;
 using score::PlanValues;
 
+}  // namespace
+
 JobSpec job_of_run(const RunReader& reader) {
   const fs::path copy = reader.layout().job_copy();
   std::ifstream in(copy, std::ios::binary);
@@ -46,15 +49,26 @@ JobSpec job_of_run(const RunReader& reader) {
 std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
                                              std::size_t first, std::size_t draws, std::size_t positions,
                                              const std::vector<std::string>& names) {
+  std::vector<std::vector<std::size_t>> records(chains.size());
+  for (auto& r : records)
+    for (std::size_t d = 0; d < draws; ++d) r.push_back(first + d);
+  return read_sorted_vectors(reader, chains, records, positions, names);
+}
+
+std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
+                                             const std::vector<std::vector<std::size_t>>& records,
+                                             std::size_t positions, const std::vector<std::string>& names) {
   std::vector<VectorTable> tables;
   const std::vector<std::string>& stored = reader.sorted_names();
+  const std::size_t draws = records.empty() ? 0 : records[0].size();
   for (const std::string& name : names) {
     if (std::find(stored.begin(), stored.end(), name) == stored.end()) continue;
     VectorTable t{name, std::vector<double>(chains.size() * draws * positions), draws, chains.size(), positions};
     for (std::size_t c = 0; c < chains.size(); ++c) {
       const std::vector<double> rows = reader.read_sorted(chains[c], name);  // records x positions
-      std::copy_n(rows.begin() + static_cast<std::ptrdiff_t>(first * positions), draws * positions,
-                  t.values.begin() + static_cast<std::ptrdiff_t>(c * draws * positions));
+      for (std::size_t d = 0; d < draws; ++d)
+        std::copy_n(rows.begin() + static_cast<std::ptrdiff_t>(records[c][d] * positions), positions,
+                    t.values.begin() + static_cast<std::ptrdiff_t>((c * draws + d) * positions));
     }
     tables.push_back(std::move(t));
   }
@@ -65,6 +79,7 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   if (!fs::is_directory(o.run_dir))
     throw InputError({o.run_dir, 0, {}}, "is not a folder", "give the run folder that 'planmill run' wrote");
   const RunReader reader(o.run_dir);
+  check_filter_names(o.filters, reader.observable_names(), o.run_dir);
   const std::vector<ChainProblem> problems = reader.verify();
   const RunVerdictRule rule = verdict_rule_of_run(reader);
   const RunDiagnostics d = diagnose_run(reader, rule.rule, {.dropped_records = o.dropped_records, .problems = problems});
@@ -132,17 +147,20 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   for (const std::string& name : stored)
     if (values.scalars.count(name) == 0)
       r.warnings.push_back("the run stores '" + name + "', which compare cannot compute for a plan; it is not compared");
-  for (std::size_t c = 0; c < chains.size(); ++c) {
-    const std::vector<double> rows = reader.read_observables(chains[c]);
-    for (ScalarTable& t : tables) {
-      const std::size_t col = column.at(t.name);
-      for (std::size_t draw = 0; draw < r.draws; ++draw)
-        t.values[c * r.draws + draw] = rows[(r.dropped_records + draw) * stored.size() + col];
-    }
-  }
+  // Filters (--keep) choose the records before any statistic (docs/pick.md).
+  std::vector<std::vector<double>> rows;
+  for (const std::uint64_t c : chains) rows.push_back(reader.read_observables(c));
+  const FilteredRecords kept = filter_records(o.filters, stored, rows, r.dropped_records, r.draws);
+  r.filters = kept.counts;
+  r.filter_line = describe_filters(kept);
+  r.draws = kept.draws;
+  if (r.draws == 0)
+    throw InputError({o.run_dir, 0, "--keep"}, "the filters leave some chain without records (" + r.filter_line + ")",
+                     "loosen the filters");
+  for (ScalarTable& t : tables) t = kept_scalar_table(t.name, column.at(t.name), stored.size(), rows, kept);
   for (std::size_t i = 0; i < tables.size(); ++i) r.scalars.push_back(compare_scalar(tables[i], plan_values[i]));
 
-  const std::vector<VectorTable> vectors = read_sorted_vectors(reader, chains, r.dropped_records, r.draws,
+  const std::vector<VectorTable> vectors = read_sorted_vectors(reader, chains, used_records(kept),
                                                                reader.district_count(), values.vector_names);
   for (std::size_t v = 0; v < values.vector_names.size(); ++v) {
     const VectorTable* table = nullptr;

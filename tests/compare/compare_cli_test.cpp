@@ -118,6 +118,8 @@ TEST_F(CompareCli, APlanFromTheRunIsPlacedInItsEnsemble) {
   std::string line;
   std::getline(table, line);
   EXPECT_EQ(line.rfind("# Caution:", 0), 0u) << line;
+  std::getline(table, line);
+  EXPECT_EQ(line, "# Filters (--keep): none");
   while (std::getline(table, line) && line.rfind("#", 0) == 0) {  // then the ε-outlier test's status
   }
   EXPECT_EQ(line.rfind("kind,measure,position,plan,below,equal,above,", 0), 0u) << line;

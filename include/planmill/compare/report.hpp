@@ -11,6 +11,7 @@
 
 #include "planmill/compare/comparison.hpp"
 #include "planmill/compare/outlier_test.hpp"
+#include "planmill/compare/record_filter.hpp"
 
 namespace planmill::compare {
 
@@ -21,7 +22,9 @@ struct CompareReport {
   std::vector<std::size_t> records;    // their record counts
   std::uint64_t burn_in_steps = 0;     // the job's steps before the first record
   std::size_t dropped_records = 0;     // further leading records dropped per chain
-  std::size_t draws = 0;               // records used per chain
+  std::size_t draws = 0;               // records used per chain (after the filters)
+  std::vector<FilterCount> filters;    // --keep, in order, with the records each removed
+  std::string filter_line;             // compare::describe_filters
   bool verdict_pass = false;
   std::string verdict_line;            // the verdict as `planmill diagnose` words it
   std::vector<std::string> warnings;
@@ -41,5 +44,7 @@ struct CompareReport {
 void print_report(const CompareReport& report, std::ostream& out);
 [[nodiscard]] nlohmann::ordered_json report_json(const CompareReport& report);
 [[nodiscard]] std::string report_csv(const CompareReport& report);
+// {"applied": [{"filter", "removed"}], "text"}: the filters as every JSON output names them.
+[[nodiscard]] nlohmann::ordered_json filters_json(const std::vector<FilterCount>& filters, const std::string& line);
 
 }  // namespace planmill::compare

@@ -8,7 +8,9 @@
 #include <string>
 #include <vector>
 
+#include "planmill/compare/record_filter.hpp"
 #include "planmill/compare/report.hpp"
+#include "planmill/job/job.hpp"
 #include "planmill/run/run_reader.hpp"
 
 namespace planmill::compare {
@@ -18,7 +20,12 @@ struct CompareOptions {
   std::string plan_file;
   std::string crosswalk_file;  // when set, PLAN is on the crosswalk's fine units (score/crosswalk.hpp)
   std::size_t dropped_records = 0;  // leading records dropped per chain, beyond the job's burn-in
+  std::vector<RecordFilter> filters;  // --keep: only records passing all of them are compared
 };
+
+// The job a run was started with (its copy in the run folder), paths as `planmill run` saw them.
+// InputError when the copy is missing.
+[[nodiscard]] JobSpec job_of_run(const RunReader& reader);
 
 // Throws InputError (exit 2 in the CLI) when the run or its job cannot be read, when the plan's
 // units do not match the run's map, or when no chain has records to compare with.
@@ -30,6 +37,12 @@ struct CompareOptions {
 [[nodiscard]] std::vector<VectorTable> read_sorted_vectors(const RunReader& reader,
                                                            const std::vector<std::uint64_t>& chains,
                                                            std::size_t first, std::size_t draws,
+                                                           std::size_t positions,
+                                                           const std::vector<std::string>& names);
+// The same for chosen records: records[c] lists chain c's records, the same count for every chain.
+[[nodiscard]] std::vector<VectorTable> read_sorted_vectors(const RunReader& reader,
+                                                           const std::vector<std::uint64_t>& chains,
+                                                           const std::vector<std::vector<std::size_t>>& records,
                                                            std::size_t positions,
                                                            const std::vector<std::string>& names);
 
