@@ -41,7 +41,8 @@ table { border-collapse: collapse; width: 100%; font-size: 12px; margin: 8px 0 1
 caption { text-align: left; font-size: 12px; color: var(--muted); padding-bottom: 3px; }
 th { text-align: left; border-bottom: 1.5px solid var(--ink); padding: 3px 6px; }
 td { border-bottom: 1px solid var(--rule); padding: 2px 6px; font-variant-numeric: tabular-nums;
-  overflow-wrap: anywhere; }
+  overflow-wrap: break-word; }
+td.digest { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 10px; word-break: break-all; }
 figure { margin: 12px 0 18px; padding: 8px; background: #fff; border: 1px solid var(--rule); }
 figure svg { width: 100%; height: auto; display: block; }
 figcaption { font-size: 12px; color: var(--muted); margin-top: 4px; }
@@ -58,6 +59,20 @@ code { font-family: ui-monospace, "DejaVu Sans Mono", monospace; font-size: 12px
   thead { display: table-header-group; }
 }
 )CSS";
+
+// A SHA-256 digest is set small in monospace and may break anywhere; a name breaks after its dots
+// and underscores (<wbr>), a number never.
+std::string cell_html(const std::string& cell) {
+  const bool digest = cell.size() == 64 && cell.find_first_not_of("0123456789abcdef") == std::string::npos;
+  if (digest) return "<td class=\"digest\">" + cell + "</td>";
+  std::string out = "<td>";
+  const bool name = cell.find_first_of("abcdefghijklmnopqrstuvwxyz") != std::string::npos;
+  for (const char c : cell) {
+    out += escape_html(std::string_view(&c, 1));
+    if (name && (c == '.' || c == '_' || c == '/')) out += "<wbr>";
+  }
+  return out + "</td>";
+}
 
 }  // namespace
 
@@ -79,7 +94,7 @@ std::string table(const std::vector<std::string>& header, const std::vector<std:
   t += "</tr></thead><tbody>\n";
   for (const auto& row : rows) {
     t += "<tr>";
-    for (const auto& cell : row) t += "<td>" + escape_html(cell) + "</td>";
+    for (const auto& cell : row) t += cell_html(cell);
     t += "</tr>\n";
   }
   return t + "</tbody></table>\n";

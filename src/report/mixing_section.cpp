@@ -37,7 +37,7 @@ std::string starts(const JobSpec& j) {
   return "Chain 0 started from the given plan (" + j.start + "), every other chain from its own random seed plan.";
 }
 
-std::string num(double v) { return format_number(v, 5); }
+std::string num(double v) { return format_number(v, 4); }
 
 }  // namespace
 
@@ -58,9 +58,12 @@ Section mixing_section(const RunFacts& f, const ReportOptions& o, std::vector<Fi
             "). Treat every figure and comparison below as provisional.";
   }
   s.body += paragraph(words, "verdict");
-  std::ostringstream line;
-  print_verdict(d, line);
-  s.body += "<p class=\"note\"><code>" + escape_html(line.str()) + "</code></p>\n";
+  // The one verdict line as `planmill diagnose` prints it (the failures it lists follow the table).
+  std::ostringstream printed;
+  print_verdict(d, printed);
+  std::istringstream lines(printed.str());
+  for (std::string line; std::getline(lines, line);)
+    if (line.rfind("verdict:", 0) == 0) s.body += "<p class=\"note\"><code>" + escape_html(line) + "</code></p>\n";
   s.body += paragraph("Thresholds: R-hat < " + num(rule.rhat_max) + ", ESS > " + num(rule.ess_min) + ", at least " +
                           std::to_string(rule.min_records) + " records per chain (" + d.rule_source + "). Chains " +
                           std::to_string(d.chains.size()) + ", records used per chain " + std::to_string(d.draws) +

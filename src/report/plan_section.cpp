@@ -12,7 +12,7 @@
 namespace planmill::report {
 namespace {
 
-std::string num(double v) { return format_number(v, 5); }
+std::string num(double v) { return format_number(v, 4); }
 std::string percent(double share) { return std::isfinite(share) ? format_number(100 * share, 3) + "%" : ""; }
 
 }  // namespace

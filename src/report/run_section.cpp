@@ -71,7 +71,7 @@ Section run_section(const RunFacts& f) {
       {"chains", std::to_string(j.sampler.chains) + (j.tempering.enabled ? " ladders of " + std::to_string(j.tempering.rungs) + " rungs" : "")},
       {"steps per chain (burn-in included)", std::to_string(st.target_steps)},
       {"burn-in steps", std::to_string(st.burn_in)},
-      {"record every", std::to_string(st.record_every) + " steps"},
+      {"steps between records", std::to_string(st.record_every)},
       {"seed", std::to_string(st.seed)},
       {"beta, gamma", number(j.sampler.beta) + ", " + number(j.sampler.gamma)},
       {"units, districts", std::to_string(f.reader->unit_count()) + ", " + std::to_string(f.reader->district_count())},
