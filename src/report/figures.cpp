@@ -252,9 +252,15 @@ Figure map_figure(std::string_view name, std::string_view title, std::span<const
     for (const auto& ring : rings[u]) {
       points.clear();
       for (const auto& [x, y] : ring) {
-        points.emplace_back(pad + (x - x0) * unit_scale, pad + (y1 - y) * unit_scale);
-        if (d < districts) cx[d] += points.back().first, cy[d] += points.back().second, n[d] += 1;
+        const double px = pad + (x - x0) * unit_scale, py = pad + (y1 - y) * unit_scale;
+        if (d < districts) cx[d] += px, cy[d] += py, n[d] += 1;
+        // A point within half a user unit of the last one kept adds nothing visible: dropped, so
+        // that detailed shapes do not swell the file.
+        if (!points.empty() && std::abs(px - points.back().first) < 0.5 && std::abs(py - points.back().second) < 0.5)
+          continue;
+        points.emplace_back(px, py);
       }
+      if (points.size() < 3) continue;  // smaller than a point at this scale
       svg.polygon(points, fill_style(std::string(district_fill(d)), "#ffffff", 0.3));
     }
   }

@@ -139,6 +139,29 @@ TEST(Figures, TheOrderedDistrictChartDrawsABoxPerPositionAndFillsThePlanOutside9
   EXPECT_EQ(count(f.svg, "<polygon points") - count(f.svg, "fill=\"#ffffff\" stroke=\"#000000\""), 2u);
 }
 
+TEST(Figures, AMapFillsEachUnitByDistrictLabelsDistrictsAndDropsInvisiblePoints) {
+  // Two units side by side, the second traced with extra points, and a third unit without a shape.
+  // The map is 2 x 1 map units drawn 540 user units wide: 270 user units per map unit. Along the
+  // bottom edge 100 points 1/100 apart (2.7 user units) all stay; up the right edge 1000 points
+  // 1/1000 apart (0.27) stay only every other one, as each is within 0.5 of the last kept.
+  std::vector<std::vector<Ring>> rings(3);
+  rings[0] = {{{0, 0}, {1, 0}, {1, 1}, {0, 1}, {0, 0}}};
+  Ring dense{{1, 0}};
+  for (int i = 1; i <= 100; ++i) dense.emplace_back(1 + i / 100.0, 0);
+  for (int i = 1; i <= 1000; ++i) dense.emplace_back(2, i / 1000.0);
+  dense.insert(dense.end(), {{1, 1}, {1, 0}});
+  rings[1] = {dense};
+  const std::vector<std::uint16_t> district{0, 1, 1};
+  const Figure f = map_figure("map-x", "Map", rings, district, 2);
+  EXPECT_EQ(count(f.svg, "<polygon"), 2u);
+  EXPECT_EQ(f.csv, "unit_index,district\n0,1\n1,2\n2,2\n");
+  EXPECT_NE(f.caption.find("1 units have no shape"), std::string::npos) << f.caption;
+  EXPECT_NE(f.svg.find(">1</text>"), std::string::npos);
+  EXPECT_NE(f.svg.find(">2</text>"), std::string::npos);
+  // 1 + 100 + 500 + 2 points, one comma each.
+  EXPECT_EQ(count(f.svg.substr(f.svg.rfind("<polygon")), ","), 603u);
+}
+
 TEST(Html, TheDocumentIsSelfContainedAndPrintsOnTheChosenPaper) {
   Document d{"T <1>", "sub", {{"one", "First", paragraph("a & b")}, {"two", "Second", table({"h"}, {{"<x>"}})}}};
   const std::string a4 = render_html(d, Paper::a4), letter = render_html(d, Paper::letter);
