@@ -1,7 +1,8 @@
 // planmill report end to end: a small synth run, its report without a plan (no manifest yet),
 // then with a plan, the manifest and --figures, and a tempered run whose rules read a group column.
 // Checks the sections, honest mixing words, self-containment, and that every standalone SVG parses
-// as XML (Python's xml.etree.ElementTree, an outside parser).
+// as XML (Debian's /usr/bin/python3: xml.etree.ElementTree, an outside parser), and the
+// figures' numbers against numpy.
 #include <gtest/gtest.h>
 
 #include <filesystem>
@@ -120,12 +121,29 @@ TEST_F(ReportCli, WithAPlanAManifestAndFiguresEveryFigureStandsAlone) {
     EXPECT_GT(fs::file_size(csv), 10u) << csv;
   }
   EXPECT_EQ(svgs, in_page);
-  const std::string parse = "python3 -c \"import glob, sys, xml.etree.ElementTree as E\n"
+  const std::string parse = "/usr/bin/python3 -c \"import glob, sys, xml.etree.ElementTree as E\n"
                             "files = glob.glob(sys.argv[1] + '/*.svg')\n"
                             "for f in files: assert E.parse(f).getroot().tag == '{http://www.w3.org/2000/svg}svg', f\n"
                             "print(len(files))\" " + figures.string() + " >" + (*dir_ / "py").string() + " 2>&1";
   EXPECT_EQ(test::shell(parse), 0) << test::read_text(*dir_ / "py");
   EXPECT_EQ(test::read_text(*dir_ / "py"), std::to_string(svgs) + "\n");
+  // The figures' numbers against numpy on planmill export's observables.csv (every record of the
+  // run; the report draws all 220 of each chain): the histogram's bar counts are np.histogram's on
+  // the same edges (half-integers for whole-number cut edges, so the edges are exact), and every
+  // trace point is the exported value of its chain and record.
+  const std::string check =
+      "/usr/bin/python3 -c \"import csv, sys, numpy as np\n"
+      "obs = list(csv.DictReader(open(sys.argv[1] + '/observables.csv')))\n"
+      "x = np.array([float(r['compactness.cut_edges']) for r in obs])\n"
+      "bars = [r for r in csv.reader(open(sys.argv[2] + '/histogram-compactness.cut_edges.csv')) if r[0][0] != '#'][1:]\n"
+      "edges = [float(b[0]) for b in bars] + [float(bars[-1][1])]\n"
+      "counts, _ = np.histogram(x, bins=edges)\n"
+      "assert list(counts) == [int(b[2]) for b in bars], (list(counts), bars)\n"
+      "value = {(r['chain'], r['record']): float(r['compactness.cut_edges']) for r in obs}\n"
+      "trace = list(csv.DictReader(open(sys.argv[2] + '/trace-compactness.cut_edges.csv')))\n"
+      "assert len(trace) == 440 and all(value[(t['chain'], t['draw'])] == float(t['value']) for t in trace)\n"
+      "print('ok')\" " + (*dir_ / "csv").string() + " " + figures.string() + " >" + (*dir_ / "np").string() + " 2>&1";
+  EXPECT_EQ(test::shell(check), 0) << test::read_text(*dir_ / "np");
   // The ordered-district CSV: a header and one row per district (4).
   EXPECT_EQ(count(test::read_text(figures / "ordered-election.gov.sorted_shares.csv"), "\n"), 5u);
 }
