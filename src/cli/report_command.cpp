@@ -26,6 +26,7 @@ int run_report(ReportArgs& a) {
   else
     throw InputError({{}, 0, "--paper"}, "'" + a.paper + "' is not a paper size", "give --paper a4 or --paper letter");
   const report::Report r = report::build_report(a.options);
+  for (const auto& w : r.warnings) std::cerr << "planmill: warning: " << w << "\n";
   const auto files = report::write_report(r, a.out, a.figures);
   std::cout << "report written to " << a.out << " (" << r.html.size() << " bytes, " << r.figures.size()
             << " figures)\n";

@@ -3,6 +3,7 @@
 // plan on the units' shapes (the job's map.geometry).
 #include <cmath>
 
+#include "planmill/base/error.hpp"
 #include "planmill/graph/load.hpp"
 #include "planmill/report/svg.hpp"
 #include "planmill/report/unit_shapes.hpp"
@@ -64,7 +65,7 @@ Section plan_section(const RunFacts& f, std::vector<Figure>& figures) {
   return s;
 }
 
-Section maps_section(const RunFacts& f, std::vector<Figure>& figures) {
+Section maps_section(const RunFacts& f, std::vector<Figure>& figures, std::vector<std::string>& warnings) {
   Section s{"maps", "Maps", {}};
   if (f.job.map.geometry_path.empty()) {
     s.body += paragraph("The job names no geometry (map.geometry), so no map is drawn.");
@@ -77,7 +78,15 @@ Section maps_section(const RunFacts& f, std::vector<Figure>& figures) {
                         ", so no map is drawn.", "verdict");
     return s;
   }
-  const UnitShapes shapes = read_unit_shapes(f.job.map.geometry_path, *graph, f.job.map.id_column);
+  UnitShapes shapes;
+  try {
+    shapes = read_unit_shapes(f.job.map.geometry_path, *graph, f.job.map.id_column);
+  } catch (const InputError& e) {
+    // The rest of the report stands without maps; the reader is told why there are none.
+    warnings.push_back(std::string("no maps: ") + e.what());
+    s.body += paragraph("No map is drawn: " + std::string(e.what()), "verdict");
+    return s;
+  }
   const std::size_t k = f.reader->district_count();
   if (shapes.unknown_features > 0)
     s.body += paragraph(std::to_string(shapes.unknown_features) + " features of " + f.job.map.geometry_path +

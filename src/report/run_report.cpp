@@ -105,7 +105,7 @@ Report build_report(const ReportOptions& o) {
   doc.sections.push_back(mixing_section(f, o, r.figures));
   if (Section s = ladder_section(f); !s.id.empty()) doc.sections.push_back(std::move(s));
   if (f.comparison) doc.sections.push_back(plan_section(f, r.figures));
-  if (Section s = maps_section(f, r.figures); !s.id.empty()) doc.sections.push_back(std::move(s));
+  doc.sections.push_back(maps_section(f, r.figures, r.warnings));
   for (const auto& s : doc.sections) r.section_ids.push_back(s.id);
   r.html = render_html(doc, o.paper);
   return r;

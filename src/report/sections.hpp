@@ -37,8 +37,9 @@ struct RunFacts {
 // Empty id when the run has no ladder.
 [[nodiscard]] Section ladder_section(const RunFacts& facts);
 [[nodiscard]] Section plan_section(const RunFacts& facts, std::vector<Figure>& figures);
-// Empty id when the job names no geometry.
-[[nodiscard]] Section maps_section(const RunFacts& facts, std::vector<Figure>& figures);
+// A geometry that cannot be read leaves the maps out, with why, in the section and in `warnings`.
+[[nodiscard]] Section maps_section(const RunFacts& facts, std::vector<Figure>& figures,
+                                   std::vector<std::string>& warnings);
 
 // The figure inline with its file names when --figures writes it.
 [[nodiscard]] std::string figure_html(const Figure& f);

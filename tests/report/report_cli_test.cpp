@@ -197,9 +197,13 @@ TEST(ReportCliTempered, ShowsTheLadderAndSaysTheRulesReadGroupColumns) {
       "[[rules.group_share]]\ngroup = \"grp\"\nthreshold = 0.5\nweight = 0.5\n");
   const std::string bin = PLANMILL_BINARY;
   ASSERT_EQ(test::shell(bin + " run " + job.string() + " --output " + (dir / "run").string() + " --quiet >/dev/null 2>&1"), 0);
+  // Without its geometry the report leaves out the maps only, and says why.
+  fs::remove(dir / "state" / "units.geojson");
   const fs::path html = dir / "t.html";
   const int status = test::shell(bin + " report " + (dir / "run").string() + " --out " + html.string() + " >" +
                                  (dir / "out").string() + " 2>&1");
+  EXPECT_NE(test::read_text(dir / "out").find("planmill: warning: no maps: "), std::string::npos)
+      << test::read_text(dir / "out");
   ASSERT_TRUE(status == 0 || status == 3) << test::read_text(dir / "out");
   const std::string h = test::read_text(html);
   expect_sections(h, {"cautions", "run", "mixing", "ladder", "maps"});
@@ -212,6 +216,9 @@ TEST(ReportCliTempered, ShowsTheLadderAndSaysTheRulesReadGroupColumns) {
   EXPECT_EQ(std::distance(std::sregex_iterator(h.begin(), h.end(), swaps), std::sregex_iterator()), 4);
   EXPECT_NE(h.find("This ensemble is NOT a race-blind or party-blind baseline"), std::string::npos);
   EXPECT_NE(h.find("group &#39;grp&#39;"), std::string::npos);
+  EXPECT_NE(h.find("No map is drawn: "), std::string::npos);
+  EXPECT_NE(h.find("units.geojson"), std::string::npos);
+  EXPECT_EQ(h.find("<b>One ensemble plan"), std::string::npos);
   EXPECT_NE(h.find("Boundary flip: a Metropolis-Hastings chain whose target is proportional to exp(-beta E(P))"),
             std::string::npos);
   fs::remove_all(dir);

@@ -29,10 +29,12 @@ struct Report {
   std::vector<Figure> figures;
   bool verdict_pass = false;
   std::vector<std::string> section_ids;
+  std::vector<std::string> warnings;  // what the report had to leave out, e.g. maps without geometry
 };
 
-// Throws InputError (exit 2) for a folder that is no run, a run without its job copy, a plan that
-// does not fit the run's map, or a geometry file that is not GeoJSON.
+// Throws InputError (exit 2) for a folder that is no run, a run without its job copy, or a plan that
+// does not fit the run's map. A geometry file that cannot be read leaves out the maps only (a
+// warning, and the maps section says why).
 [[nodiscard]] Report build_report(const ReportOptions& options);
 
 // Writes the HTML to `out` atomically, and with a `figures_dir` every figure as <slug>.svg and
