@@ -55,7 +55,9 @@ void read_draws(RunFacts& f, const std::set<std::string>& names) {
 
 }  // namespace
 
-std::string figure_html(const Figure& f) { return figure(f.svg, f.title, f.caption, f.slug + ".svg / .csv"); }
+std::string figure_html(const Figure& f) {
+  return figure(f.svg, f.title, f.caption, "(--figures: " + f.slug + ".svg, .csv)");
+}
 
 Report build_report(const ReportOptions& o) {
   if (!fs::is_directory(o.run_dir))

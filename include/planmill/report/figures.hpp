@@ -5,9 +5,11 @@
 // also differ by dash pattern, so they stay apart in greyscale print.
 #include <array>
 #include <cstddef>
+#include <cstdint>
 #include <span>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "planmill/compare/comparison.hpp"
