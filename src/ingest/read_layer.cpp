@@ -159,7 +159,7 @@ Layer read_layer(const IngestOptions& o) {
     shape->getEnvelope(&env);
     u.box = {env.MinX, env.MinY, env.MaxX, env.MaxY};
     if (out.metric.is_geodesic()) {
-      const bool inside = std::abs(env.MinX) <= 540 && std::abs(env.MaxX) <= 540 && std::abs(env.MinY) <= 90 && std::abs(env.MaxY) <= 90;
+      const bool inside = env.MinX >= -180 && env.MaxX <= 360 && std::abs(env.MinY) <= 90 && std::abs(env.MaxY) <= 90;
       if (!inside) {
         throw InputError({o.map_path, 0, ""}, unit + " has coordinates outside longitude/latitude, though the layer's CRS is geographic "
                          "(GeoJSON without a crs member is WGS 84 by RFC 7946)", "pass --planar if the coordinates are planar");
