@@ -49,6 +49,19 @@ bool boxes_meet(const Box& a, const Box& b, double margin) {
   return a.min_x <= b.max_x + margin && b.min_x <= a.max_x + margin && a.min_y <= b.max_y + margin && b.min_y <= a.max_y + margin;
 }
 
+// The polygons of an intersection (which may also hold the lines and points where units touch).
+OGRGeometryUniquePtr polygonal(const OGRGeometry& g) {
+  auto multi = std::make_unique<OGRMultiPolygon>();
+  const OGRwkbGeometryType type = wkbFlatten(g.getGeometryType());
+  if (type == wkbPolygon) multi->addGeometry(&g);
+  if (OGR_GT_IsSubClassOf(type, wkbGeometryCollection)) {
+    for (const OGRGeometry* part : *g.toGeometryCollection()) {
+      if (wkbFlatten(part->getGeometryType()) == wkbPolygon) multi->addGeometry(part);
+    }
+  }
+  return OGRGeometryUniquePtr(multi.release());
+}
+
 }  // namespace
 
 std::vector<Edge> find_adjacency(const Layer& layer, const IngestOptions& o, std::vector<std::string>& notes) {
@@ -57,8 +70,8 @@ std::vector<Edge> find_adjacency(const Layer& layer, const IngestOptions& o, std
   Grid grid(units, margin);
   std::vector<Edge> edges;
   std::vector<std::size_t> seen(units.size(), SIZE_MAX);  // seen[b] == a: pair (a, b) already tried
-  std::size_t snapped = 0;
-  std::string snapped_pairs;
+  std::size_t snapped = 0, overlapping = 0;
+  std::string snapped_pairs, overlapping_pairs;
   std::vector<OGRGeometryUniquePtr> grown(units.size());  // boundary buffers, made when first needed
   const auto grown_boundary = [&](std::size_t i) -> const OGRGeometry& {
     if (!grown[i]) grown[i].reset(units[i].boundary->Buffer(o.snap, 4));
@@ -82,6 +95,15 @@ std::vector<Edge> find_adjacency(const Layer& layer, const IngestOptions& o, std
         OGRGeometryUniquePtr common(units[a].boundary->Intersection(units[b].boundary.get()));
         touch = common && !common->IsEmpty();
         if (common) length = layer.metric.length(*common);
+        // Boundaries that meet while the interiors do too: the units overlap.
+        if (!units[a].shape->Touches(units[b].shape.get())) {
+          OGRGeometryUniquePtr both(units[a].shape->Intersection(units[b].shape.get()));
+          double area = 0, ignored = 0;
+          if (both) layer.metric.measure(*polygonal(*both), area, ignored);
+          if (area > 0 && overlapping++ < 10) {
+            overlapping_pairs += (overlapping > 1 ? ", " : "") + units[a].id + "-" + units[b].id + " (area " + std::to_string(area) + ")";
+          }
+        }
       }
       if (o.snap > 0) {
         // The stretch of each boundary within `snap` of the other, averaged. A corner touch gives
@@ -99,6 +121,10 @@ std::vector<Edge> find_adjacency(const Layer& layer, const IngestOptions& o, std
       }
       if (length > 0 || (o.queen && touch)) edges.push_back({a, b, length});
     }
+  }
+  if (overlapping) {
+    notes.push_back(std::to_string(overlapping) + " pair(s) overlap, their areas counting the overlap twice: " + overlapping_pairs +
+                    (overlapping > 10 ? ", ..." : "") + "; fix the layer in a GIS if the overlaps are not slivers");
   }
   if (snapped) {
     notes.push_back(std::to_string(snapped) + " pair(s) joined only by the snapping tolerance " + std::to_string(o.snap) + ": " + snapped_pairs +

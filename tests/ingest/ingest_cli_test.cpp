@@ -125,6 +125,14 @@ TEST(IngestCli, SnapJoinsUnitsAcrossASmallGap) {
   EXPECT_NE(out.find("1 pair(s) joined only by the snapping tolerance 0.050000: a-b"), std::string::npos) << out;
 }
 
+TEST(IngestCli, OverlapsAreReported) {
+  // b overlaps a by the strip 0.9..1 x 0..1 (area 0.1 by hand).
+  const fs::path dir = scratch_dir("ingest", "overlap");
+  const fs::path layer = write_layer(dir / "overlap.geojson", {{"a", box(0, 0, 1, 1)}, {"b", box(0.9, 0, 2, 1)}, {"c", box(2, 0, 3, 1)}});
+  const std::string out = ingest(layer, dir / "out", "--planar");
+  EXPECT_NE(out.find("1 pair(s) overlap, their areas counting the overlap twice: a-b (area 0.100000)"), std::string::npos) << out;
+}
+
 // Issue item 5: synth's own GeoJSON read back gives synth's own tables. Corners lie on a 1/128 km
 // lattice, so every area and length is an exact binary fraction and must agree exactly.
 TEST(IngestCli, SynthStateReadBackEqualsSynthTables) {
