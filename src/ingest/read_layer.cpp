@@ -3,6 +3,7 @@
 #include <cpl_error.h>
 
 #include <algorithm>
+#include <charconv>
 #include <cmath>
 #include <unordered_map>
 
@@ -71,6 +72,15 @@ OGRGeometryUniquePtr polygons_of(OGRGeometryUniquePtr g) {
   return OGRGeometryUniquePtr(multi.release());
 }
 
+// Reals in the shortest form that reads back the same double (GDAL's own text keeps 15 digits).
+std::string field_text(const OGRFeature& feature, int index) {
+  if (!feature.IsFieldSetAndNotNull(index)) return "";
+  if (feature.GetFieldDefnRef(index)->GetType() != OFTReal) return feature.GetFieldAsString(index);
+  char buffer[64];
+  const auto result = std::to_chars(buffer, buffer + sizeof buffer, feature.GetFieldAsDouble(index));
+  return std::string(buffer, result.ptr);
+}
+
 }  // namespace
 
 Layer read_layer(const IngestOptions& o) {
@@ -124,7 +134,7 @@ Layer read_layer(const IngestOptions& o) {
       throw InputError({o.map_path, 0, o.id_field}, "unit " + quoted(u.id) + " appears twice (features " + std::to_string(it->second) + " and " +
                        std::to_string(number) + ")", "make the ids unique, or choose another --id attribute");
     }
-    for (int index : kept) u.values.emplace_back(feature->IsFieldSetAndNotNull(index) ? feature->GetFieldAsString(index) : "");
+    for (int index : kept) u.values.push_back(field_text(*feature, index));
     const OGRGeometry* g = feature->GetGeometryRef();
     if (!g || g->IsEmpty()) {
       throw InputError({o.map_path, 0, ""}, unit + " has an empty geometry", "draw its polygon, or remove the feature");

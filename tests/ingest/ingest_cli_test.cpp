@@ -32,6 +32,13 @@ TEST(IngestCli, RookLeavesCornerPairsOutQueenKeepsThem) {
   const std::string job = read_text(dir / "rook" / "job.toml");
   EXPECT_NE(job.find("population = \"pop\""), std::string::npos) << job;
   EXPECT_NE(job.find("outer_boundary = \"outer\""), std::string::npos) << job;
+  // With the district count filled in, the skeleton passes `planmill check` (the files' formats
+  // are the ones the loader reads).
+  const std::size_t count = job.find("# count = 2");
+  ASSERT_NE(count, std::string::npos) << job;
+  std::ofstream(dir / "rook" / "job.toml") << job.substr(0, count) << "count = 2\n" << job.substr(job.find('\n', count) + 1);
+  const std::string check = command_output(std::string(PLANMILL_BINARY) + " check " + (dir / "rook" / "job.toml").string() + " 2>&1");
+  EXPECT_EQ(check.find("failed"), std::string::npos) << check;
 
   const std::string queen = ingest(layer, dir / "queen", "--planar --queen");
   ASSERT_NE(queen.find("6 adjacencies (queen)"), std::string::npos) << queen;
@@ -128,8 +135,10 @@ TEST(IngestCli, SnapJoinsUnitsAcrossASmallGap) {
 TEST(IngestCli, OverlapsAreReported) {
   // b overlaps a by the strip 0.9..1 x 0..1 (area 0.1 by hand).
   const fs::path dir = scratch_dir("ingest", "overlap");
-  const fs::path layer = write_layer(dir / "overlap.geojson", {{"a", box(0, 0, 1, 1)}, {"b", box(0.9, 0, 2, 1)}, {"c", box(2, 0, 3, 1)}});
-  const std::string out = ingest(layer, dir / "out", "--planar");
+  const fs::path layer = write_layer(dir / "overlap.geojson", {{"a", box(0, 0, 1, 1), ",\"share\":0.30000000000000004"}, {"b", box(0.9, 0, 2, 1), ",\"share\":0.5"}, {"c", box(2, 0, 3, 1), ",\"share\":1"}});
+  const std::string out = ingest(layer, dir / "out", "--planar --keep share");
+  // A real attribute keeps every digit of its double (GDAL's own text would give 0.3).
+  EXPECT_NE(read_text(dir / "out" / "units.csv").find("\na,0.30000000000000004,1,"), std::string::npos) << read_text(dir / "out" / "units.csv");
   EXPECT_NE(out.find("1 pair(s) overlap, their areas counting the overlap twice: a-b (area 0.100000)"), std::string::npos) << out;
 }
 
