@@ -132,6 +132,18 @@ TEST(IngestCli, SnapJoinsUnitsAcrossASmallGap) {
   EXPECT_NE(out.find("1 pair(s) joined only by the snapping tolerance 0.050000: a-b"), std::string::npos) << out;
 }
 
+TEST(IngestCli, ProjectedCrsMeasuresPlanarInItsOwnUnit) {
+  // A 3 x 4 rectangle: area 12, perimeter 14 in the CRS's unit, whatever the unit is.
+  const fs::path dir = scratch_dir("ingest", "projected");
+  for (const auto& [code, unit] : {std::pair{"32633", "metre"}, std::pair{"2263", "US survey foot"}}) {
+    const std::string crs = std::string("\"crs\":{\"type\":\"name\",\"properties\":{\"name\":\"urn:ogc:def:crs:EPSG::") + code + "\"}},";
+    const fs::path layer = write_layer(dir / (std::string(code) + ".geojson"), {{"a", box(0, 0, 3, 4)}}, crs);
+    const std::string out = ingest(layer, dir / code, "");
+    EXPECT_NE(out.find(std::string("measured planar, lengths in ") + unit + ", areas in square " + unit), std::string::npos) << out;
+    EXPECT_EQ(read_text(dir / code / "units.csv"), "unit,area,perimeter,outer\na,12,14,14\n");
+  }
+}
+
 TEST(IngestCli, OverlapsAreReported) {
   // b overlaps a by the strip 0.9..1 x 0..1 (area 0.1 by hand).
   const fs::path dir = scratch_dir("ingest", "overlap");
