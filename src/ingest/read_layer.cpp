@@ -90,7 +90,8 @@ Layer read_layer(const IngestOptions& o) {
   CPLErrorReset();
   GDALDatasetUniquePtr ds(GDALDataset::Open(o.map_path.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY));
   if (!ds) {
-    throw InputError({o.map_path, 0, ""}, std::string("GDAL cannot open it as a vector map (") + CPLGetLastErrorMsg() + ")",
+    const std::string reason = *CPLGetLastErrorMsg() ? std::string(" (") + CPLGetLastErrorMsg() + ")" : "";
+    throw InputError({o.map_path, 0, ""}, "GDAL cannot open it as a vector map" + reason,
                      "give a GeoPackage, Shapefile, GeoJSON or other vector file that GDAL reads");
   }
   if (!OGRGeometryFactory::haveGEOS()) {
@@ -114,7 +115,9 @@ Layer read_layer(const IngestOptions& o) {
     kept.push_back(field_index(defn, name, o, option));
     out.columns.push_back(name);
   };
-  for (const std::string& name : {o.population, o.county, o.municipality}) keep(name, "--population/--county/--municipality");
+  keep(o.population, "--population");
+  keep(o.county, "--county");
+  keep(o.municipality, "--municipality");
   for (const std::string& name : o.keep) keep(name, "--keep");
 
   std::unordered_map<std::string, std::size_t> feature_of;
@@ -139,9 +142,8 @@ Layer read_layer(const IngestOptions& o) {
     if (!g || g->IsEmpty()) {
       throw InputError({o.map_path, 0, ""}, unit + " has an empty geometry", "draw its polygon, or remove the feature");
     }
-    OGRwkbGeometryType type = wkbFlatten(g->getGeometryType());
     OGRGeometryUniquePtr shape(g->hasCurveGeometry() ? g->getLinearGeometry() : g->clone());
-    type = wkbFlatten(shape->getGeometryType());
+    const OGRwkbGeometryType type = wkbFlatten(shape->getGeometryType());
     if (type != wkbPolygon && type != wkbMultiPolygon) {
       throw InputError({o.map_path, 0, ""}, unit + " is a " + OGRGeometryTypeToName(type) + ", not a polygon",
                        "ingest reads polygon layers; pick the polygon layer with --layer");

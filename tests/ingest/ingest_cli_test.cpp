@@ -82,6 +82,14 @@ TEST(IngestCli, FaultsNameTheUnitAndWriteNothing) {
   f[3].extra = ",\"pop\":\"many\"";
   expect_fault(f, "--population pop", "unit 'd' (feature 4) has population 'many', not a number");
   expect_fault(block(), "--keep votes", "no attribute 'votes' in the layer (attributes: 'unit', 'pop')");
+  expect_fault(block(), "--county shire", "'--county': no attribute 'shire'");
+  {
+    const fs::path dir = scratch_dir("ingest", "unreadable");
+    std::ofstream(dir / "not-a-map.geojson") << "this is not GeoJSON";
+    const std::string out = ingest(dir / "not-a-map.geojson", dir / "out", "");
+    EXPECT_NE(out.find("not-a-map.geojson: GDAL cannot open it as a vector map"), std::string::npos) << out;
+    EXPECT_FALSE(fs::exists(dir / "out"));
+  }
   // An island far from the block: its size and population are listed.
   f = block();
   f.push_back({"e", box(5, 5, 6, 6), ",\"pop\":9"});
