@@ -12,6 +12,11 @@ find_package(Eigen3 REQUIRED NO_MODULE)
 find_package(Threads REQUIRED)
 find_package(OpenSSL REQUIRED COMPONENTS Crypto)
 find_path(PCG_INCLUDE_DIR pcg_random.hpp REQUIRED)
+# Map ingest: GDAL/OGR reads the GIS layers (its CMake config gives GDAL::GDAL); GeographicLib
+# measures on the ellipsoid (Debian 12 ships no CMake config for it, only the library).
+find_package(GDAL CONFIG REQUIRED)
+find_path(GEOGRAPHICLIB_INCLUDE_DIR GeographicLib/PolygonArea.hpp REQUIRED)
+find_library(GEOGRAPHICLIB_LIBRARY NAMES GeographicLib Geographic REQUIRED)
 
 # Header-only PCG streams (base/random.hpp).
 add_library(planmill_pcg INTERFACE)
@@ -20,6 +25,9 @@ target_include_directories(planmill_pcg SYSTEM INTERFACE ${PCG_INCLUDE_DIR})
 add_library(planmill_hdf5 INTERFACE)
 target_include_directories(planmill_hdf5 SYSTEM INTERFACE ${HDF5_INCLUDE_DIRS})
 target_link_libraries(planmill_hdf5 INTERFACE HDF5::HDF5 MPI::MPI_C)
+add_library(planmill_geographiclib INTERFACE)
+target_include_directories(planmill_geographiclib SYSTEM INTERFACE ${GEOGRAPHICLIB_INCLUDE_DIR})
+target_link_libraries(planmill_geographiclib INTERFACE ${GEOGRAPHICLIB_LIBRARY})
 # MPI for the runner and the CLI.
 add_library(planmill_mpi INTERFACE)
 target_link_libraries(planmill_mpi INTERFACE MPI::MPI_C MPI::MPI_CXX)
@@ -35,4 +43,5 @@ endif()
 add_library(planmill_deps INTERFACE)
 target_link_libraries(planmill_deps INTERFACE
   planmill_flags planmill_pcg planmill_hdf5 planmill_mpi Boost::boost spdlog::spdlog tomlplusplus::tomlplusplus
-  CLI11::CLI11 nlohmann_json::nlohmann_json Eigen3::Eigen Threads::Threads OpenSSL::Crypto)
+  CLI11::CLI11 nlohmann_json::nlohmann_json Eigen3::Eigen Threads::Threads OpenSSL::Crypto
+  GDAL::GDAL planmill_geographiclib)

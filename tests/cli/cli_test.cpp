@@ -80,14 +80,6 @@ TEST_F(Cli, UnknownSubcommandsAndOptionsExitTwo) {
   EXPECT_EQ(run("check").status, 2);  // the job file is required
 }
 
-TEST_F(Cli, LaterSubcommandsSayNotYetAvailable) {
-  for (const char* sub : {"ingest"}) {  // report is built (docs/report.md)
-    const auto o = run(std::string(sub) + " x");
-    EXPECT_EQ(o.status, 2) << sub;
-    EXPECT_NE(o.err.find("not yet available"), std::string::npos) << sub << ": " << o.err;
-  }
-}
-
 TEST_F(Cli, SynthCitiesOptionReachesTheStateAndIsChecked) {
   const auto o = run("synth --units 400 --districts 3 --seed 3 --cities 2 --out " + path("two"));
   EXPECT_EQ(o.status, 0) << o.err;
