@@ -44,8 +44,6 @@ JobSpec job_of_run(const RunReader& reader) {
   return parse_job_text(text.str(), given.empty() ? copy.string() : given);
 }
 
-}  // namespace
-
 std::vector<VectorTable> read_sorted_vectors(const RunReader& reader, const std::vector<std::uint64_t>& chains,
                                              std::size_t first, std::size_t draws, std::size_t positions,
                                              const std::vector<std::string>& names) {
