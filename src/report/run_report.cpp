@@ -87,7 +87,7 @@ Report build_report(const ReportOptions& o) {
     nlohmann::json m = nlohmann::json::parse(reader.state().measures_json, nullptr, false);
     if (!m.is_discarded()) f.measures = std::move(m);
   }
-  if (!o.plan_file.empty()) f.comparison = compare::compare_plan_with_run({o.run_dir, o.plan_file, 0});
+  if (!o.plan_file.empty()) f.comparison = compare::compare_plan_with_run({.run_dir = o.run_dir, .plan_file = o.plan_file});
 
   std::set<std::string> wanted;
   for (const auto& q : f.diagnostics.verdict().table)
