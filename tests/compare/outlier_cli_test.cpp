@@ -17,12 +17,7 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::vector<std::string> split(const std::string& line) {
-  std::vector<std::string> cells;
-  std::stringstream s(line);
-  for (std::string cell; std::getline(s, cell, ',');) cells.push_back(cell);
-  return cells;
-}
+using test::split_csv_line;
 
 class OutlierCli : public ::testing::Test {
  protected:
@@ -100,14 +95,14 @@ TEST_F(OutlierCli, ChainsStartedAtThePlanGiveTheBoundsOfTheTheorem) {
   std::ifstream in(*dir_ / "flip" / "csv" / "observables.csv");
   std::string line;
   std::getline(in, line);
-  const auto header = split(line);
+  const auto header = split_csv_line(line);
   const std::size_t col =
       static_cast<std::size_t>(std::find(header.begin(), header.end(), "compactness.cut_edges") - header.begin());
   ASSERT_LT(col, header.size()) << line;
   const double x0 = cut["plan"].get<double>();
   std::vector<std::size_t> low(2, 1), high(2, 1), records(2, 0);
   while (std::getline(in, line)) {
-    const auto cells = split(line);
+    const auto cells = split_csv_line(line);
     const std::size_t chain = std::stoul(cells[0]);
     const double x = std::stod(cells[col]);
     ++records.at(chain);
@@ -132,11 +127,11 @@ TEST_F(OutlierCli, ChainsStartedAtThePlanGiveTheBoundsOfTheTheorem) {
   while (std::getline(table, line)) {
     if (line.rfind("#", 0) == 0) continue;
     if (columns == 0) {
-      columns = split(line).size();
+      columns = split_csv_line(line).size();
       EXPECT_NE(line.find(",eps_low,eps_high,bound_low,bound_high,p_bound"), std::string::npos) << line;
       continue;
     }
-    EXPECT_EQ(split(line + "x").size(), columns) << line;
+    EXPECT_EQ(split_csv_line(line + "x").size(), columns) << line;
     chain_rows += line.rfind("outlier,", 0) == 0 ? 1 : 0;
     combined_rows += line.rfind("outlier_combined,", 0) == 0 ? 1 : 0;
   }
@@ -154,7 +149,7 @@ TEST_F(OutlierCli, ARelabelledPlanIsTheSameStart) {
   std::getline(in, line);
   relabelled << line << "\n";
   while (std::getline(in, line)) {
-    const auto cells = split(line);
+    const auto cells = split_csv_line(line);
     relabelled << cells[0] << "," << (std::stoi(cells[1]) % 4) + 1 << "\n";
   }
   relabelled.close();

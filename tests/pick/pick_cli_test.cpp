@@ -20,22 +20,13 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::vector<std::string> split(const std::string& line) {
-  std::vector<std::string> cells;
-  std::stringstream s(line);
-  for (std::string cell; std::getline(s, cell, ',');) cells.push_back(cell);
-  return cells;
-}
+using test::split_csv_line;
 
 class PickCli : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     dir_ = new fs::path(test::scratch_dir("planmill-pick-cli", std::to_string(::getpid())));
-    const fs::path job = test::write_synth_job(*dir_, "chains = 2\nsteps = 300\nseed = 11");
-    ASSERT_EQ(test::shell(bin() + " run " + job.string() + " --output " + run() + " --quiet >/dev/null 2>&1"), 0);
-    ASSERT_EQ(test::shell(bin() + " export " + run() + " --out " + (*dir_ / "csv").string() +
-                          " --every 1 --plan-layout matrix >/dev/null 2>&1"),
-              0);
+    test::run_and_export(*dir_, "chains = 2\nsteps = 300\nseed = 11", "--every 1 --plan-layout matrix");
   }
   static void TearDownTestSuite() {
     fs::remove_all(*dir_);
@@ -53,10 +44,10 @@ class PickCli : public ::testing::Test {
     std::ifstream in(*dir_ / "csv" / "observables.csv");
     std::string line;
     std::getline(in, line);
-    const auto header = split(line);
+    const auto header = split_csv_line(line);
     const auto col = static_cast<std::size_t>(std::find(header.begin(), header.end(), name) - header.begin());
     std::vector<double> values;
-    while (std::getline(in, line)) values.push_back(std::stod(split(line).at(col)));
+    while (std::getline(in, line)) values.push_back(std::stod(split_csv_line(line).at(col)));
     std::nth_element(values.begin(), values.begin() + static_cast<std::ptrdiff_t>(values.size() / 2), values.end());
     std::ostringstream text;
     text << values[values.size() / 2];
@@ -97,12 +88,12 @@ std::pair<std::size_t, std::size_t> count_above(const fs::path& csv, const std::
   std::ifstream in(csv);
   std::string line;
   std::getline(in, line);
-  const auto header = split(line);
+  const auto header = split_csv_line(line);
   const auto col = static_cast<std::size_t>(std::find(header.begin(), header.end(), name) - header.begin());
   std::size_t removed = 0;
   std::map<std::string, std::size_t> kept;
   while (std::getline(in, line)) {
-    const auto cells = split(line);
+    const auto cells = split_csv_line(line);
     if (std::stod(cells.at(col)) > limit) {
       ++removed;
     } else {

@@ -39,11 +39,7 @@ class ReportCli : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     dir_ = new fs::path(test::scratch_dir("planmill-report-cli", std::to_string(::getpid())));
-    const fs::path job = test::write_synth_job(*dir_, "chains = 2\nsteps = 240\nburn_in = 20\nseed = 4");
-    ASSERT_EQ(test::shell(bin() + " run " + job.string() + " --output " + run() + " --quiet >/dev/null 2>&1"), 0);
-    ASSERT_EQ(test::shell(bin() + " export " + run() + " --out " + (*dir_ / "csv").string() +
-                          " --plans 1:37 >/dev/null 2>&1"),
-              0);
+    test::run_and_export(*dir_, "chains = 2\nsteps = 240\nburn_in = 20\nseed = 4", "--plans 1:37");
   }
   static void TearDownTestSuite() {
     fs::remove_all(*dir_);

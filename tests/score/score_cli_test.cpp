@@ -17,24 +17,13 @@ namespace {
 
 namespace fs = std::filesystem;
 
-std::vector<std::string> split(const std::string& line) {
-  std::vector<std::string> cells;
-  std::stringstream s(line);
-  for (std::string cell; std::getline(s, cell, ',');) cells.push_back(cell);
-  return cells;
-}
+using test::split_csv_line;
 
 class ScoreCli : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     dir_ = new fs::path(test::scratch_dir("planmill-score-cli", std::to_string(::getpid())));
-    job_ = new fs::path(test::write_synth_job(*dir_, "chains = 2\nsteps = 120\nburn_in = 20\nseed = 6"));
-    ASSERT_EQ(test::shell(bin() + " run " + job_->string() + " --output " + (*dir_ / "run").string() +
-                          " --quiet >/dev/null 2>&1"),
-              0);
-    ASSERT_EQ(test::shell(bin() + " export " + (*dir_ / "run").string() + " --out " + (*dir_ / "csv").string() +
-                          " --plans 1:50 >/dev/null 2>&1"),
-              0);
+    job_ = new fs::path(test::run_and_export(*dir_, "chains = 2\nsteps = 120\nburn_in = 20\nseed = 6", "--plans 1:50"));
   }
   static void TearDownTestSuite() {
     fs::remove_all(*dir_);
@@ -128,11 +117,11 @@ TEST_F(ScoreCli, BadPlansAndCrosswalksAreRefusedWithExitTwoAndWriteNothing) {
   std::ifstream units(*dir_ / "state" / "units.csv");
   std::string line, crosswalk = "fine_unit,unit,population\n", fine_plan = "block,district\n";
   std::getline(units, line);
-  const std::vector<std::string> header = split(line);
+  const std::vector<std::string> header = split_csv_line(line);
   const std::size_t pop_column = std::find(header.begin(), header.end(), "pop") - header.begin();
   std::string second_id;
   while (std::getline(units, line)) {
-    const std::vector<std::string> cells = split(line);
+    const std::vector<std::string> cells = split_csv_line(line);
     crosswalk += cells[0] + "-b," + cells[0] + "," + cells[pop_column] + "\n";
     if (second_id.empty() && cells[0] != first_id) second_id = cells[0];
   }

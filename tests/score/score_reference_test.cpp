@@ -25,13 +25,7 @@ class ScoreReference : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     dir_ = new fs::path(test::scratch_dir("planmill-score-reference", std::to_string(::getpid())));
-    job_ = new fs::path(test::write_synth_job(*dir_, "chains = 2\nsteps = 100\nburn_in = 20\nseed = 9"));
-    ASSERT_EQ(test::shell(bin() + " run " + job_->string() + " --output " + (*dir_ / "run").string() +
-                          " --quiet >/dev/null 2>&1"),
-              0);
-    ASSERT_EQ(test::shell(bin() + " export " + (*dir_ / "run").string() + " --out " + (*dir_ / "csv").string() +
-                          " --plans 0:40 >/dev/null 2>&1"),
-              0);
+    job_ = new fs::path(test::run_and_export(*dir_, "chains = 2\nsteps = 100\nburn_in = 20\nseed = 9", "--plans 0:40"));
   }
   static void TearDownTestSuite() {
     fs::remove_all(*dir_);

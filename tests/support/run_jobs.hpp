@@ -7,7 +7,9 @@
 #include <filesystem>
 #include <fstream>
 #include <iterator>
+#include <sstream>
 #include <string>
+#include <vector>
 
 #include <gtest/gtest.h>
 
@@ -42,6 +44,27 @@ inline std::filesystem::path write_synth_job(const std::filesystem::path& dir, c
   std::ofstream(job, std::ios::app) << "[sampler]\n"
                                     << sampler << "\n[output]\ncheckpoint_seconds = "
                                     << checkpoint_seconds << "\n";
+  return job;
+}
+
+// A CSV line without quoted fields, split at its commas.
+inline std::vector<std::string> split_csv_line(const std::string& line) {
+  std::vector<std::string> cells;
+  std::stringstream s(line);
+  for (std::string cell; std::getline(s, cell, ',');) cells.push_back(cell);
+  return cells;
+}
+
+// What the command tests start from: write_synth_job(dir, sampler), `planmill run` into dir/run,
+// then `planmill export dir/run --out dir/csv EXPORT_ARGS`. Returns the job file.
+inline std::filesystem::path run_and_export(const std::filesystem::path& dir, const std::string& sampler,
+                                            const std::string& export_args) {
+  const std::filesystem::path job = write_synth_job(dir, sampler);
+  const std::string bin = PLANMILL_BINARY, run = (dir / "run").string();
+  EXPECT_EQ(shell(bin + " run " + job.string() + " --output " + run + " --quiet >/dev/null 2>&1"), 0);
+  EXPECT_EQ(shell(bin + " export " + run + " --out " + (dir / "csv").string() + " " + export_args +
+                  " >/dev/null 2>&1"),
+            0);
   return job;
 }
 
