@@ -10,23 +10,27 @@
 #include "planmill/io/json_number.hpp"
 
 namespace planmill::compare {
-namespace {
 
-using Json = nlohmann::ordered_json;
-
-std::string num(double v, int digits = 4) {
+std::string number_text(double v, int digits) {
   if (std::isnan(v)) return "NA";
   char buffer[40];
   std::snprintf(buffer, sizeof buffer, "%.*g", digits, v);
   return buffer;
 }
 
-std::string percent(double share) {
+std::string percent_text(double share) {
   if (std::isnan(share)) return "NA";
   char buffer[40];
   std::snprintf(buffer, sizeof buffer, "%.2f%%", 100.0 * share);
   return buffer;
 }
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+std::string num(double v, int digits = 4) { return number_text(v, digits); }
+std::string percent(double share) { return percent_text(share); }
 
 const char* tail_word(Tail t) { return t == Tail::upper ? "at or above" : "at or below"; }
 

@@ -23,19 +23,8 @@ std::string csv_num(double v) {
   return buffer;
 }
 
-std::string short_num(double v) {
-  if (std::isnan(v)) return "NA";
-  char buffer[40];
-  std::snprintf(buffer, sizeof buffer, "%.6g", v);
-  return buffer;
-}
-
-std::string percent(double share) {
-  if (std::isnan(share)) return "NA";
-  char buffer[40];
-  std::snprintf(buffer, sizeof buffer, "%.2f%%", 100.0 * share);
-  return buffer;
-}
+std::string short_num(double v) { return compare::number_text(v, 6); }
+std::string percent(double share) { return compare::percent_text(share); }
 
 std::string plan_name(std::size_t i) { return "plan-" + std::to_string(i + 1) + ".csv"; }
 

@@ -42,6 +42,11 @@ struct CompareReport {
 [[nodiscard]] std::vector<std::string> summary(const CompareReport& report);
 
 void print_report(const CompareReport& report, std::ostream& out);
+
+// How compare's and pick's text write numbers: "NA" for NaN, else printf's %.*g, or a
+// percentage with two decimals.
+[[nodiscard]] std::string number_text(double v, int digits = 4);
+[[nodiscard]] std::string percent_text(double share);
 [[nodiscard]] nlohmann::ordered_json report_json(const CompareReport& report);
 [[nodiscard]] std::string report_csv(const CompareReport& report);
 // {"applied": [{"filter", "removed"}], "text"}: the filters as every JSON output names them.
