@@ -4,6 +4,7 @@
 // from outer boundaries and cut shared lengths, splits from county-district pairs, then the
 // formulas of docs/measures.md as the papers write them) and compares with the evaluator.
 #include <gtest/gtest.h>
+#include <unistd.h>
 
 #include <cstdio>
 #include <fstream>
@@ -52,7 +53,7 @@ struct Written {
 // scalar, then every sorted vector as <name>[i]. Even records use the chain's split tallies, odd
 // ones a recount.
 Written write_plans_and_measures(std::size_t plans) {
-  Written w{test::scratch_dir("planmill-measures-reference", "state")};
+  Written w{test::scratch_dir("planmill-measures-reference", "state-" + std::to_string(::getpid()))};
   (void)write_synthetic_state({600, 6, 3, w.dir.string()});
   JobSpec job = load_job((w.dir / "job.toml").string());
   const GraphHandle graph = share_graph(load_unit_graph(job.map));
