@@ -80,7 +80,16 @@ CompareReport compare_plan_with_run(const CompareOptions& o) {
   check_filter_names(o.filters, reader.observable_names(), o.run_dir);
   const std::vector<ChainProblem> problems = reader.verify();
   const RunVerdictRule rule = verdict_rule_of_run(reader);
-  const RunDiagnostics d = diagnose_run(reader, rule.rule, {.dropped_records = o.dropped_records, .problems = problems});
+  const RunDiagnostics d = diagnose_run(
+      reader, rule.rule, {.dropped_records = o.dropped_records, .problems = problems, .judge = rule.judge});
+  return compare_plan_with_run({reader, problems, d}, o);
+}
+
+CompareReport compare_plan_with_run(const DiagnosedRun& run, const CompareOptions& o) {
+  const RunReader& reader = run.reader;
+  const std::vector<ChainProblem>& problems = run.problems;
+  const RunDiagnostics& d = run.diagnostics;
+  check_filter_names(o.filters, reader.observable_names(), o.run_dir);
 
   CompareReport r;
   r.run_dir = o.run_dir;

@@ -43,13 +43,14 @@ void chain_legend(Svg& svg, std::span<const std::string> labels, double x, doubl
 }
 
 // A file name stem: letters, digits, '.', '-' and '_' kept, anything else '_'.
-std::string slug(std::string_view prefix, std::string_view name) {
+
+}  // namespace
+
+std::string figure_slug(std::string_view prefix, std::string_view name) {
   std::string s(prefix);
   for (const char c : name) s += (std::isalnum(static_cast<unsigned char>(c)) || c == '.' || c == '-' || c == '_') ? c : '_';
   return s;
 }
-
-}  // namespace
 
 std::string_view chain_colour(std::size_t chain) { return kChainColours[chain % kChainColours.size()]; }
 std::string_view chain_dash(std::size_t chain) {
@@ -70,7 +71,7 @@ Figure trace_figure(std::string_view observable, std::span<const std::string> la
                     std::span<const std::vector<double>> chains, std::size_t max_points) {
   const std::size_t draws = chains.empty() ? 0 : chains.front().size();
   const std::size_t every = std::max<std::size_t>(1, (draws + max_points - 1) / std::max<std::size_t>(1, max_points));
-  Figure f{slug("trace-", observable), "Trace of " + std::string(observable), {}, {}, "chain,draw,value\n"};
+  Figure f{figure_slug("trace-", observable), "Trace of " + std::string(observable), {}, {}, "chain,draw,value\n"};
   Svg svg(kWidth, kHeight, f.title);
   const auto [lo, hi] = finite_range(chains);
   const Axes a = draw_axes(svg, {}, 0, static_cast<double>(draws > 0 ? draws - 1 : 1), lo, hi,
@@ -95,7 +96,7 @@ Figure trace_figure(std::string_view observable, std::span<const std::string> la
 
 Figure autocorrelation_figure(std::string_view observable, std::span<const std::string> labels,
                               std::span<const std::vector<double>> chains, std::size_t max_lag) {
-  Figure f{slug("autocorrelation-", observable), "Autocorrelation of " + std::string(observable), {}, {},
+  Figure f{figure_slug("autocorrelation-", observable), "Autocorrelation of " + std::string(observable), {}, {},
            "chain,lag,autocorrelation\n"};
   Svg svg(kWidth, kHeight * 0.8, f.title);
   const std::size_t draws = chains.empty() ? 0 : chains.front().size();
@@ -124,7 +125,7 @@ Figure autocorrelation_figure(std::string_view observable, std::span<const std::
 }
 
 Figure ordered_district_figure(const compare::VectorComparison& v) {
-  Figure f{slug("ordered-", v.name), "Ordered districts: " + v.name, {}, {},
+  Figure f{figure_slug("ordered-", v.name), "Ordered districts: " + v.name, {}, {},
            "position,p2.5,p25,p50,p75,p97.5,plan,outside95,outside99\n"};
   const std::size_t k = v.positions.size();
   Svg svg(kWidth, kHeight + 40, f.title);
@@ -177,7 +178,7 @@ Figure ordered_district_figure(const compare::VectorComparison& v) {
 }
 
 Figure histogram_figure(const compare::ScalarComparison& s, std::span<const double> draws) {
-  Figure f{slug("histogram-", s.name), "Distribution of " + s.name, {}, {}, "bin_low,bin_high,draws\n"};
+  Figure f{figure_slug("histogram-", s.name), "Distribution of " + s.name, {}, {}, "bin_low,bin_high,draws\n"};
   double lo = std::numeric_limits<double>::infinity(), hi = -lo;
   bool whole = true;
   for (const double v : draws)
@@ -223,52 +224,6 @@ Figure histogram_figure(const compare::ScalarComparison& s, std::span<const doub
   f.caption = "The ensemble's " + std::to_string(s.finite) + " finite draws of " + s.name +
               (per_value ? " (one bar per value)" : " (40 equal bins)") +
               (std::isfinite(s.plan) ? "; the dashed line is the compared plan." : "; the plan has no value.");
-  f.svg = svg.str();
-  return f;
-}
-
-Figure map_figure(std::string_view name, std::string_view title, std::span<const std::vector<Ring>> rings,
-                  std::span<const std::uint16_t> district, std::size_t districts) {
-  Figure f{slug("", name), std::string(title), {}, {}, "unit_index,district\n"};
-  double x0 = std::numeric_limits<double>::infinity(), x1 = -x0, y0 = x0, y1 = -x0;
-  for (const auto& unit : rings)
-    for (const auto& ring : unit)
-      for (const auto& [x, y] : ring) x0 = std::min(x0, x), x1 = std::max(x1, x), y0 = std::min(y0, y), y1 = std::max(y1, y);
-  const double side = 560, pad = 10;
-  const double span = std::max(x1 - x0, y1 - y0);
-  const double unit_scale = span > 0 ? (side - 2 * pad) / span : 1.0;
-  const double w = (x1 - x0) * unit_scale + 2 * pad, h = (y1 - y0) * unit_scale + 2 * pad;
-  Svg svg(std::max(w, 100.0), std::max(h, 100.0), f.title);
-  std::vector<double> cx(districts, 0), cy(districts, 0), n(districts, 0);
-  std::size_t without = 0;
-  std::vector<std::pair<double, double>> points;
-  for (std::size_t u = 0; u < rings.size(); ++u) {
-    const std::size_t d = district[u];
-    f.csv += std::to_string(u) + "," + std::to_string(d + 1) + "\n";
-    if (rings[u].empty()) {
-      ++without;
-      continue;
-    }
-    for (const auto& ring : rings[u]) {
-      points.clear();
-      for (const auto& [x, y] : ring) {
-        const double px = pad + (x - x0) * unit_scale, py = pad + (y1 - y) * unit_scale;
-        if (d < districts) cx[d] += px, cy[d] += py, n[d] += 1;
-        // A point within half a user unit of the last one kept adds nothing visible: dropped, so
-        // that detailed shapes do not swell the file.
-        if (!points.empty() && std::abs(px - points.back().first) < 0.5 && std::abs(py - points.back().second) < 0.5)
-          continue;
-        points.emplace_back(px, py);
-      }
-      if (points.size() < 3) continue;  // smaller than a point at this scale
-      svg.polygon(points, fill_style(std::string(district_fill(d)), "#ffffff", 0.3));
-    }
-  }
-  for (std::size_t d = 0; d < districts; ++d)
-    if (n[d] > 0) svg.text(cx[d] / n[d], cy[d] / n[d] + 4, std::to_string(d + 1), 12, Anchor::middle, "#000", true);
-  f.caption = "Units filled by district; each district's number sits at the mean of its units' corners. Fills "
-              "repeat after 8 districts, so read the numbers." +
-              (without > 0 ? " " + std::to_string(without) + " units have no shape in the geometry file." : "");
   f.svg = svg.str();
   return f;
 }

@@ -93,7 +93,7 @@ Section maps_section(const RunFacts& f, std::vector<Figure>& figures, std::vecto
                         " name no unit of the map and are not drawn.", "note");
   auto draw = [&](std::string_view name, const std::string& title, std::span<const DistrictIndex> plan) {
     std::vector<std::uint16_t> district(plan.begin(), plan.end());
-    Figure fig = map_figure(name, title, shapes.rings, district, k);
+    Figure fig = map_figure(name, title, shapes.shapes, district, k, graph->adjacency());
     s.body += figure_html(fig);
     figures.push_back(std::move(fig));
   };

@@ -26,17 +26,6 @@ std::string read_whole(const fs::path& path) {
   return text.str();
 }
 
-// The job as the run read it: the copy in the run folder, with relative paths taken from the job
-// file as it was given to `planmill run`.
-JobSpec job_of_run(const RunReader& reader) {
-  const fs::path copy = reader.layout().job_copy();
-  if (!fs::exists(copy))
-    throw InputError({copy.string(), 0, ""}, "the run folder has no copy of its job, so the report cannot say what was run",
-                     "give a run folder written by 'planmill run'");
-  const std::string& given = reader.state().job_path;
-  return parse_job_text(read_whole(copy), given.empty() ? copy.string() : given);
-}
-
 // The verdict's draws of the named observables: records [dropped, dropped + draws) of every
 // diagnosed chain, read once per chain.
 void read_draws(RunFacts& f, const std::set<std::string>& names) {
@@ -66,10 +55,11 @@ Report build_report(const ReportOptions& o) {
   RunFacts f;
   f.reader = &reader;
   f.run_dir = o.run_dir;
-  f.job = job_of_run(reader);
+  f.job = compare::job_of_run(reader);
   f.rule = verdict_rule_of_run(reader);
   RunDiagnosticsOptions how;
-  how.problems = reader.verify();
+  const std::vector<ChainProblem> problems = reader.verify();
+  how.problems = problems;
   how.judge = f.rule.judge;
   f.diagnostics = diagnose_run(reader, f.rule.rule, how);
   f.diagnostics.rule_source = f.rule.source;
@@ -87,7 +77,9 @@ Report build_report(const ReportOptions& o) {
     nlohmann::json m = nlohmann::json::parse(reader.state().measures_json, nullptr, false);
     if (!m.is_discarded()) f.measures = std::move(m);
   }
-  if (!o.plan_file.empty()) f.comparison = compare::compare_plan_with_run({.run_dir = o.run_dir, .plan_file = o.plan_file});
+  if (!o.plan_file.empty())
+    f.comparison = compare::compare_plan_with_run({reader, problems, f.diagnostics},
+                                                  {.run_dir = o.run_dir, .plan_file = o.plan_file});
 
   std::set<std::string> wanted;
   for (const auto& q : f.diagnostics.verdict().table)

@@ -114,6 +114,16 @@ void Svg::polygon(std::span<const std::pair<double, double>> points, const Style
   body_ += style_attributes(style) + "/>";
 }
 
+void Svg::path(std::span<const std::vector<std::pair<double, double>>> pieces, bool closed, const Style& style) {
+  body_ += "<path d=\"";
+  for (const auto& piece : pieces) {
+    for (std::size_t i = 0; i < piece.size(); ++i)
+      body_ += (i == 0 ? "M" : "L") + coord(piece[i].first) + " " + coord(piece[i].second);
+    if (closed && !piece.empty()) body_ += "Z";
+  }
+  body_ += "\" fill-rule=\"evenodd\"" + style_attributes(style) + "/>";
+}
+
 void Svg::circle(double cx, double cy, double r, const Style& style) {
   body_ += "<circle cx=\"" + coord(cx) + "\" cy=\"" + coord(cy) + "\" r=\"" + coord(r) + "\"" +
            style_attributes(style) + "/>";

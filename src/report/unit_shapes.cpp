@@ -23,6 +23,12 @@ Ring read_ring(const json& ring, const std::string& path, const std::string& whe
   return r;
 }
 
+Shape read_polygon(const json& polygon, const std::string& path, const std::string& where) {
+  Shape shape;
+  for (const json& ring : polygon) shape.push_back(read_ring(ring, path, where));
+  return shape;
+}
+
 }  // namespace
 
 UnitShapes read_unit_shapes(const std::string& path, const UnitGraph& graph, const std::string& id_property) {
@@ -37,7 +43,7 @@ UnitShapes read_unit_shapes(const std::string& path, const UnitGraph& graph, con
     throw InputError({path, 0, "map.geometry"}, "is not a GeoJSON FeatureCollection",
                      "give a GeoJSON whose features carry the map's id column as a property");
   UnitShapes shapes;
-  shapes.rings.resize(graph.unit_count());
+  shapes.shapes.resize(graph.unit_count());
   std::size_t index = 0;
   for (const json& feature : doc["features"]) {
     const std::string where = "features[" + std::to_string(index++) + "]";
@@ -59,16 +65,16 @@ UnitShapes read_unit_shapes(const std::string& path, const UnitGraph& graph, con
     const std::string type = geometry.value("type", "");
     const json& coordinates = geometry.value("coordinates", json());
     if (type == "Polygon" && coordinates.is_array() && !coordinates.empty()) {
-      shapes.rings[*u].push_back(read_ring(coordinates[0], path, where));
+      shapes.shapes[*u].push_back(read_polygon(coordinates, path, where));
     } else if (type == "MultiPolygon" && coordinates.is_array()) {
       for (const json& polygon : coordinates)
-        if (polygon.is_array() && !polygon.empty()) shapes.rings[*u].push_back(read_ring(polygon[0], path, where));
+        if (polygon.is_array() && !polygon.empty()) shapes.shapes[*u].push_back(read_polygon(polygon, path, where));
     } else {
       throw InputError({path, 0, where}, "geometry '" + type + "' is not a Polygon or MultiPolygon",
                        "give the units' shapes as polygons");
     }
   }
-  for (const auto& r : shapes.rings) shapes.without_shape += r.empty() ? 1 : 0;
+  for (const auto& r : shapes.shapes) shapes.without_shape += r.empty() ? 1 : 0;
   return shapes;
 }
 

@@ -67,7 +67,7 @@ for paper in a4 letter; do
   probe="$work/probe-$paper.html"
   sed 's#</body>#<script>addEventListener("load",function(){var w=document.documentElement.scrollWidth,bad=[],n=0;'\
 'document.querySelectorAll("figure svg").forEach(function(s,i){n++;var r=s.getBoundingClientRect(),'\
-'b=s.getBBox(),k=s.querySelectorAll("rect,line,polyline,polygon,circle").length;'\
+'b=s.getBBox(),k=s.querySelectorAll("rect,line,polyline,polygon,path,circle").length;'\
 'if(!(r.width>100\&\&r.height>50\&\&r.left>=0\&\&r.right<=w+1\&\&b.width>0\&\&b.height>0\&\&k>3))bad.push(i);});'\
 'console.log("PROBE figures="+n+" empty="+bad.length+" ["+bad.join(",")+"] loads="+'\
 'performance.getEntriesByType("resource").length);});</script></body>#' "$html" >"$probe"

@@ -4,10 +4,12 @@
 
 #include <cmath>
 #include <limits>
+#include <sstream>
 #include <string>
 #include <vector>
 
 #include "planmill/report/figures.hpp"
+#include "planmill/report/map_figure.hpp"
 #include "planmill/report/html.hpp"
 #include "planmill/report/svg.hpp"
 
@@ -144,22 +146,91 @@ TEST(Figures, AMapFillsEachUnitByDistrictLabelsDistrictsAndDropsInvisiblePoints)
   // The map is 2 x 1 map units drawn 540 user units wide: 270 user units per map unit. Along the
   // bottom edge 100 points 1/100 apart (2.7 user units) all stay; up the right edge 1000 points
   // 1/1000 apart (0.27) stay only every other one, as each is within 0.5 of the last kept.
-  std::vector<std::vector<Ring>> rings(3);
-  rings[0] = {{{0, 0}, {1, 0}, {1, 1}, {0, 1}, {0, 0}}};
+  std::vector<std::vector<Shape>> shapes(3);
+  shapes[0] = {{{{0, 0}, {1, 0}, {1, 1}, {0, 1}, {0, 0}}}};
   Ring dense{{1, 0}};
   for (int i = 1; i <= 100; ++i) dense.emplace_back(1 + i / 100.0, 0);
   for (int i = 1; i <= 1000; ++i) dense.emplace_back(2, i / 1000.0);
   dense.insert(dense.end(), {{1, 1}, {1, 0}});
-  rings[1] = {dense};
+  shapes[1] = {{dense}};
   const std::vector<std::uint16_t> district{0, 1, 1};
-  const Figure f = map_figure("map-x", "Map", rings, district, 2);
-  EXPECT_EQ(count(f.svg, "<polygon"), 2u);
+  const Figure f = map_figure("map-x", "Map", shapes, district, 2);
+  EXPECT_EQ(count(f.svg, "<path"), 3u);  // two fills and the outlines
   EXPECT_EQ(f.csv, "unit_index,district\n0,1\n1,2\n2,2\n");
   EXPECT_NE(f.caption.find("1 units have no shape"), std::string::npos) << f.caption;
   EXPECT_NE(f.svg.find(">1</text>"), std::string::npos);
   EXPECT_NE(f.svg.find(">2</text>"), std::string::npos);
-  // 1 + 100 + 500 + 2 points, one comma each.
-  EXPECT_EQ(count(f.svg.substr(f.svg.rfind("<polygon")), ","), 603u);
+  // The second fill: 1 + 100 + 500 + 2 points, one "M" or "L" each.
+  const std::string second = f.svg.substr(f.svg.find("<path", f.svg.find("<path") + 1));
+  const std::string fill = second.substr(0, second.find("/>"));
+  EXPECT_EQ(count(fill, "L") + count(fill, "M"), 603u);
+}
+
+// The total length, in user units, of the pieces of the outline path ("M x y L x y ...").
+double outline_length(const std::string& svg) {
+  const std::size_t g = svg.find("district-outlines");
+  const std::size_t d = svg.find(" d=\"", g) + 4;
+  std::istringstream in(svg.substr(d, svg.find('"', d) - d));
+  double length = 0, x = 0, y = 0;
+  char op = 0;
+  while (in >> op) {
+    double nx = 0, ny = 0;
+    in >> nx >> ny;
+    if (op == 'L') length += std::hypot(nx - x, ny - y);
+    x = nx, y = ny;
+  }
+  return length;
+}
+
+TEST(Figures, AMapOutlinesDistrictsAlongTheirBoundariesAndTheMapsEdgeOnly) {
+  // A 2 x 2 block of unit squares, left column district 1, right column district 2: outlines are
+  // the outer edge (8) and the middle line (2), not the seams inside a district; 270 user units
+  // per map unit, so 2,700 in all (a worked example).
+  std::vector<std::vector<Shape>> shapes(4);
+  const auto square = [](double x, double y) {
+    return std::vector<Shape>{{{{x, y}, {x + 1, y}, {x + 1, y + 1}, {x, y + 1}, {x, y}}}};
+  };
+  shapes[0] = square(0, 0), shapes[1] = square(1, 0), shapes[2] = square(0, 1), shapes[3] = square(1, 1);
+  const std::vector<std::uint16_t> district{0, 1, 0, 1};
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, district, 2).svg), 2700.0, 1e-6);
+  // One district: only the outer edge.
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, std::vector<std::uint16_t>{0, 0, 0, 0}, 1).svg), 2160.0, 1e-6);
+  // Four districts: every edge, shared ones once: 12 unit edges.
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, std::vector<std::uint16_t>{0, 1, 2, 3}, 4).svg), 3240.0, 1e-6);
+}
+
+TEST(Figures, AMapMatchesABoundaryTracedWithMoreVerticesOnOneSide) {
+  // A 2 x 2 unit beside two unit squares stacked on its right (x 2..3): its right edge is one
+  // segment, theirs are two. Districts: the big one and the lower square 1, the upper square 2.
+  // Outlines: the outer edge (10) and the upper square's left and lower edges (1 + 1), 12 map
+  // units at 180 user units each (a worked example). Without the adjacency the big unit's right
+  // edge and the squares' left edges all show (15).
+  std::vector<std::vector<Shape>> shapes(3);
+  shapes[0] = {{{{0, 0}, {2, 0}, {2, 2}, {0, 2}, {0, 0}}}};
+  shapes[1] = {{{{2, 0}, {3, 0}, {3, 1}, {2, 1}, {2, 0}}}};
+  shapes[2] = {{{{2, 1}, {3, 1}, {3, 2}, {2, 2}, {2, 1}}}};
+  const std::vector<std::uint16_t> district{0, 0, 1};
+  const std::vector<AdjacencyView::Offset> offsets{0, 2, 4, 6};
+  const std::vector<AdjacencyView::Vertex> targets{1, 2, 0, 2, 0, 1};
+  const AdjacencyView adjacency(offsets, targets);
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, district, 2, adjacency).svg), 12 * 180.0, 1e-6);
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, district, 2).svg), 15 * 180.0, 1e-6);
+  // All three in one district: the outer edge only.
+  EXPECT_NEAR(outline_length(map_figure("m", "M", shapes, std::vector<std::uint16_t>{0, 0, 0}, 1, adjacency).svg),
+              10 * 180.0, 1e-6);
+}
+
+TEST(Figures, AMapLeavesHolesOpen) {
+  // A square with a square hole: one path of two pieces, filled by the even-odd rule; the hole's
+  // edge is an outline (no unit fills it).
+  std::vector<std::vector<Shape>> shapes(1);
+  shapes[0] = {{{{0, 0}, {4, 0}, {4, 4}, {0, 4}, {0, 0}}, {{1, 1}, {1, 3}, {3, 3}, {3, 1}, {1, 1}}}};
+  const Figure f = map_figure("m", "M", shapes, std::vector<std::uint16_t>{0}, 1);
+  const std::string fill = f.svg.substr(f.svg.find("<path"), f.svg.find("/>", f.svg.find("<path")) - f.svg.find("<path"));
+  EXPECT_EQ(count(fill, "M"), 2u);
+  EXPECT_EQ(count(fill, "Z"), 2u);
+  EXPECT_NE(fill.find("fill-rule=\"evenodd\""), std::string::npos);
+  EXPECT_NEAR(outline_length(f.svg), (16 + 8) * 540.0 / 4, 1e-6);  // 135 user units per map unit
 }
 
 TEST(Html, TheDocumentIsSelfContainedAndPrintsOnTheChosenPaper) {

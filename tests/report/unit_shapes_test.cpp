@@ -40,12 +40,14 @@ TEST(UnitShapes, ReadsPolygonsAndMultipolygonsByTheIdProperty) {
     {"type":"Feature","properties":{"unit":"9"},"geometry":{"type":"Polygon","coordinates":[[[9,9],[9,8],[8,8],[9,9]]]}}
   ]})");
   const UnitShapes s = read_unit_shapes(path, g, "unit");
-  ASSERT_EQ(s.rings.size(), 3u);
-  ASSERT_EQ(s.rings[0].size(), 1u);  // outer ring only, the hole left out
-  EXPECT_EQ(s.rings[0][0].size(), 4u);
-  EXPECT_EQ(s.rings[0][0][1], (std::pair<double, double>{1, 0}));
-  EXPECT_TRUE(s.rings[1].empty());
-  EXPECT_EQ(s.rings[2].size(), 2u);  // a whole-number id is read as its decimal text
+  ASSERT_EQ(s.shapes.size(), 3u);
+  ASSERT_EQ(s.shapes[0].size(), 1u);     // one polygon
+  ASSERT_EQ(s.shapes[0][0].size(), 2u);  // its outer ring and its hole
+  EXPECT_EQ(s.shapes[0][0][0].size(), 4u);
+  EXPECT_EQ(s.shapes[0][0][0][1], (std::pair<double, double>{1, 0}));
+  EXPECT_EQ(s.shapes[0][0][1][1], (std::pair<double, double>{0.3, 0.2}));
+  EXPECT_TRUE(s.shapes[1].empty());
+  EXPECT_EQ(s.shapes[2].size(), 2u);  // a whole-number id is read as its decimal text
   EXPECT_EQ(s.without_shape, 1u);
   EXPECT_EQ(s.unknown_features, 1u);
   fs::remove_all(dir);

@@ -11,6 +11,7 @@
 #include "planmill/compare/record_filter.hpp"
 #include "planmill/compare/report.hpp"
 #include "planmill/job/job.hpp"
+#include "planmill/manifest/run_diagnostics.hpp"
 #include "planmill/run/run_reader.hpp"
 
 namespace planmill::compare {
@@ -30,6 +31,15 @@ struct CompareOptions {
 // Throws InputError (exit 2 in the CLI) when the run or its job cannot be read, when the plan's
 // units do not match the run's map, or when no chain has records to compare with.
 [[nodiscard]] CompareReport compare_plan_with_run(const CompareOptions& options);
+
+// A run its caller has already opened, verified and diagnosed (with the job's verdict rule and
+// judged list, and options.dropped_records), so that nothing is read or judged twice (the report).
+struct DiagnosedRun {
+  const RunReader& reader;
+  const std::vector<ChainProblem>& problems;
+  const RunDiagnostics& diagnostics;
+};
+[[nodiscard]] CompareReport compare_plan_with_run(const DiagnosedRun& run, const CompareOptions& options);
 
 // THE ONE PLACE that reads sorted-position vectors from a run: for each name (the
 // MeasureEvaluator's vector_names()) that the run stores, chains' records [first, first + draws)

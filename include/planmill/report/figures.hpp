@@ -50,12 +50,9 @@ inline constexpr std::string_view kEnsembleBox = "#9fb8d6";  // the ensemble's c
 // Whole-number draws with few distinct values get one bar per value.
 [[nodiscard]] Figure histogram_figure(const compare::ScalarComparison& comparison, std::span<const double> draws);
 
-// A plan drawn on the units' shapes: rings[u] are unit u's outer rings (x, y), district[u] its
-// district (0-based); units without a shape are skipped (the caption counts them).
-using Ring = std::vector<std::pair<double, double>>;
-[[nodiscard]] Figure map_figure(std::string_view name, std::string_view title,
-                                std::span<const std::vector<Ring>> rings, std::span<const std::uint16_t> district,
-                                std::size_t districts);
+// The file name stem of a figure: `prefix` and `name`, with anything but letters, digits, '.', '-'
+// and '_' as '_'.
+[[nodiscard]] std::string figure_slug(std::string_view prefix, std::string_view name);
 
 // CSV cell for a number (empty for NaN) and for text (quoted when it must be).
 [[nodiscard]] std::string csv_number(double v);

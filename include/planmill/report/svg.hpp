@@ -59,6 +59,9 @@ class Svg {
   void line(double x1, double y1, double x2, double y2, const Style& style);
   void polyline(std::span<const std::pair<double, double>> points, const Style& style);
   void polygon(std::span<const std::pair<double, double>> points, const Style& style);
+  // One <path> of several pieces, each a run of points (a ring closed with Z when `closed`);
+  // filled with the even-odd rule, so that a polygon's holes (its later rings) stay open.
+  void path(std::span<const std::vector<std::pair<double, double>>> pieces, bool closed, const Style& style);
   void circle(double cx, double cy, double r, const Style& style);
   void text(double x, double y, std::string_view text, double size = 11.0, Anchor anchor = Anchor::start,
             std::string_view fill = "#222", bool bold = false, double rotate = 0.0);
