@@ -183,3 +183,30 @@ TEST(CompareCliTempered, UsesTheTargetRungOfEachLadder) {
 
 }  // namespace
 }  // namespace planmill
+
+namespace planmill {
+namespace {
+
+TEST(CompareCliVerdict, JudgesTheObservablesTheJobNamesAsDiagnoseDoes) {
+  // A job whose [verdict] judges one observable: compare's verdict is diagnose's, word for word,
+  // over that one observable (before, compare judged every observable whatever the job said).
+  const fs::path dir = test::scratch_dir("planmill-compare-judge", std::to_string(::getpid()));
+  const fs::path job = test::write_synth_job(dir, "chains = 2\nsteps = 240\nseed = 4");
+  std::ofstream(job, std::ios::app) << "[verdict]\njudge = [\"compactness.cut_edges\"]\n";
+  const std::string bin = PLANMILL_BINARY, run = (dir / "run").string();
+  ASSERT_EQ(test::shell(bin + " run " + job.string() + " --output " + run + " --quiet >/dev/null 2>&1"), 0);
+  ASSERT_EQ(test::shell(bin + " export " + run + " --out " + (dir / "csv").string() + " --plans 1:37 >/dev/null 2>&1"), 0);
+  const int compared = test::shell(bin + " compare " + run + " " + (dir / "csv" / "plans" / "chain-1-record-37.csv").string() +
+                                   " --json " + (dir / "c.json").string() + " >/dev/null 2>&1");
+  ASSERT_TRUE(compared == 0 || compared == 3) << compared;
+  const int diagnosed = test::shell(bin + " diagnose " + run + " >" + (dir / "d.txt").string() + " 2>/dev/null");
+  ASSERT_TRUE(diagnosed == 0 || diagnosed == 3) << diagnosed;
+  const auto c = nlohmann::json::parse(test::read_text(dir / "c.json"));
+  const std::string text = c["verdict"]["text"];
+  EXPECT_NE(text.find(" of 1 observables"), std::string::npos) << text;
+  EXPECT_NE(test::read_text(dir / "d.txt").find(text), std::string::npos) << text;
+  fs::remove_all(dir);
+}
+
+}  // namespace
+}  // namespace planmill
