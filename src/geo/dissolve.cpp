@@ -18,7 +18,8 @@ DistrictShapes::DistrictShapes(const UnitShapes& units, std::span<const District
   for (std::size_t u = 0; u < shapes.size(); ++u) {
     const DistrictIndex d = district_of_unit[u];
     if (d >= k) throw std::invalid_argument("DistrictShapes: a district label beyond k");
-    for (const OGRPolygon* p : *polygons_only(*shapes[u])) members[d].addGeometry(p);
+    const std::unique_ptr<OGRMultiPolygon> pieces = polygons_only(*shapes[u]);
+    for (const OGRPolygon* p : *pieces) members[d].addGeometry(p);
   }
   impl_->districts.reserve(k);
   for (OGRMultiPolygon& m : members) {

@@ -26,7 +26,8 @@ std::unique_ptr<OGRMultiPolygon> polygons_only(const OGRGeometry& g) {
     multi->addGeometry(&g);
   } else if (OGR_GT_IsSubClassOf(type, wkbGeometryCollection)) {
     for (const OGRGeometry* part : *g.toGeometryCollection()) {
-      for (const OGRPolygon* p : *polygons_only(*part)) multi->addGeometry(p);
+      const std::unique_ptr<OGRMultiPolygon> pieces = polygons_only(*part);
+      for (const OGRPolygon* p : *pieces) multi->addGeometry(p);
     }
   }
   return multi;

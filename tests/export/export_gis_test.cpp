@@ -200,7 +200,7 @@ TEST_F(ExportGis, BadInputIsOneLineExitTwoAndLeavesNoFile) {
       {"--plans 0:0" + gis + " --geometry " + (bad / "fewer.geojson").string(), "1 unit(s) of the map have no shape in the layer"},
       {"--plans 0:0" + gis + " --geometry " + (bad / "missing.geojson").string(), "the units' shapes are not there"},
       {"--plans 0:0" + gis + " --geometry " + (bad / "lines.geojson").string(), "have no shape in the layer"},
-      {"--plans 0:0" + gis + " --geometry-id town", "no attribute 'town' in the layer"},
+      {"--plans 0:0" + gis + " --geometry-id nosuch", "no attribute 'nosuch' in the layer"},
       {"--plans 0:0 --gis " + (bad / "out.shp").string(), "cannot tell the GIS format from the file name"},
       {"--plans 0:0" + gis + " --gis-format kml", "unknown format 'kml'"},
       {gis, "a GIS layer of districts needs plans"},
@@ -210,8 +210,9 @@ TEST_F(ExportGis, BadInputIsOneLineExitTwoAndLeavesNoFile) {
   const std::vector<std::string> before = files_in(bad);
   for (const auto& [args, message] : cases) {
     EXPECT_EQ(export_run("bad/out", args), 2) << args << "\n" << err();
-    EXPECT_NE(err().find(message), std::string::npos) << args << "\n" << err();
-    EXPECT_EQ(std::count(err().begin(), err().end(), '\n'), 1) << err();
+    const std::string e = err();
+    EXPECT_NE(e.find(message), std::string::npos) << args << "\n" << e;
+    EXPECT_EQ(std::count(e.begin(), e.end(), '\n'), 1) << e;
     EXPECT_EQ(files_in(bad), before) << args;  // no layer, no partial file, no output folder
   }
 }
