@@ -8,18 +8,23 @@
 //   1.7 mm); ingest runs without --snap: shared sides must coincide. The layer's shared sides are
 //   drawn with the same vertices on both sides, so the two criteria meet; a difference would show.
 // - Planar measures: the layer projected by GDAL's ogr2ogr (Debian gdal-bin) to an Albers equal-
-//   area projection on NAD27 itself (no datum shift), as GeoJSON with 17 significant digits;
-//   ingest --planar on that file against Python's shapely (Debian python3-shapely) on the same
-//   file (tests/ingest/planar_check.py): areas, perimeters, outer boundaries and every shared
+//   area projection on NAD27 itself (no datum shift), as GeoJSON with 17 significant digits; ingest --planar on that file against Python's shapely (Debian python3-shapely) on the
+//   same file (tests/ingest/planar_check.py): areas, perimeters, outer boundaries and every shared
 //   boundary length to 1e-9 relative, the rook pairs exactly.
 // - Lon/lat against projected: ingest's geodesic areas on the Clarke 1866 ellipsoid against the
-//   planar areas of the equal-area projection. The projection keeps areas exactly for the true
-//   shapes; the two differ only in how edges between vertices are drawn (geodesics vs straight
-//   projected lines), which on county boundaries with vertices about 1 km apart changes areas by
-//   far less than the 1e-5 relative tolerance used. Lengths are not kept by Albers: its scale along
-//   parallels is k = n rho / (a m) and 1/k along meridians (Snyder, Map Projections - A Working
-//   Manual, 1987, ch. 14; from memory), within about 0.3% over NC for standard parallels 34.33 and
-//   36.17 (our estimate), so perimeters and shared lengths must agree to 5e-3 relative.
+//   planar areas of the equal-area projection of the same vertices. The projection keeps areas of
+//   the true shapes; the two differ in how an edge between vertices is drawn (a geodesic, or a
+//   straight line in the projection), by about L * sagitta per edge of length L. On nc.shp as
+//   shipped (edges up to tens of km along the state lines) that gave 3e-5 of a county's area, too
+//   coarse to tell Clarke 1866 from WGS 84 (2e-5 apart in area), so for areas both sides measure
+//   the layer densified by ogr2ogr -segmentize 0.002 (degrees; GDAL interpolates in lon/lat),
+//   where they agree to 6e-10; the tolerance is 1e-8. (Densified, two sides of one border are
+//   interpolated from opposite ends and no longer coincide to the last bit, so neighbours and
+//   lengths are compared on the layer as shipped.) Lengths are not kept by Albers: its scale is k along parallels and 1/k
+//   along meridians (Snyder, Map Projections - A Working Manual, 1987, ch. 14; from memory),
+//   |k - 1| of the order of 1e-4 over NC between standard parallels 34.33 and 36.17, so perimeters
+//   and shared lengths must agree to 5e-3 relative and differ by more than 1e-5 (the projection
+//   bends lengths, and the comparison must see that).
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -112,10 +117,12 @@ TEST_F(NcCounties, RookAndQueenNeighboursAreThoseOfSpdepPoly2nb) {
 
 TEST_F(NcCounties, ProjectedMeasuresAreShapelysAndAgreeWithTheEllipsoid) {
   ASSERT_TRUE(fs::is_regular_file(*layer_)) << "no shape/nc.shp: install r-cran-sf (scripts/install-deps test)";
-  const fs::path projected = *dir_ / "nc-albers.geojson";
-  ASSERT_EQ(command_output("ogr2ogr -f GeoJSON -lco SIGNIFICANT_FIGURES=17 -t_srs '" + std::string(kAlbersOnNad27) + "' " +
-                           projected.string() + " " + *layer_ + " 2>&1"),
-            "");
+  const fs::path dense = *dir_ / "nc-dense.geojson", projected = *dir_ / "nc-albers.geojson",
+                 dense_projected = *dir_ / "nc-dense-albers.geojson";
+  const std::string to_albers = "ogr2ogr -f GeoJSON -lco SIGNIFICANT_FIGURES=17 -t_srs '" + std::string(kAlbersOnNad27) + "' ";
+  ASSERT_EQ(command_output(to_albers + projected.string() + " " + *layer_ + " 2>&1"), "");
+  ASSERT_EQ(command_output("ogr2ogr -f GeoJSON -lco SIGNIFICANT_FIGURES=17 -segmentize 0.002 " + dense.string() + " " + *layer_ + " 2>&1"), "");
+  ASSERT_EQ(command_output(to_albers + dense_projected.string() + " " + dense.string() + " 2>&1"), "");
   // ogr2ogr's GeoJSON keeps no crs member for a projection without an EPSG code: --planar says
   // what the coordinates are (metres of the projection).
   const std::string run = nc_ingest(projected, "albers", "--planar");
@@ -125,14 +132,16 @@ TEST_F(NcCounties, ProjectedMeasuresAreShapelysAndAgreeWithTheEllipsoid) {
   EXPECT_EQ(check.rfind("ok ", 0), 0u) << check;
 
   const std::string lonlat = nc_ingest(*layer_, "lonlat", "");
-  ASSERT_NE(lonlat.find("Clarke"), std::string::npos) << lonlat;  // measured on NAD27's own ellipsoid
+  ASSERT_NE(nc_ingest(dense, "dense-lonlat", "").find("ingest: 100 units"), std::string::npos);
+  ASSERT_NE(nc_ingest(dense_projected, "dense-albers", "--planar").find("ingest: 100 units"), std::string::npos);
+  ASSERT_NE(lonlat.find("geodesic on the ellipsoid of North_American_Datum_1927"), std::string::npos) << lonlat;  // Clarke 1866
   const auto geodesic = units_of(*dir_ / "lonlat"), planar = units_of(*dir_ / "albers");
+  const auto dense_geodesic = units_of(*dir_ / "dense-lonlat"), dense_planar = units_of(*dir_ / "dense-albers");
   ASSERT_EQ(geodesic.size(), 100u);
   double worst_area = 0, worst_length = 0;
   for (const auto& [fips, g] : geodesic) {
-    const auto& p = planar.at(fips);
-    worst_area = std::max(worst_area, std::abs(g.at("area") / p.at("area") - 1));
-    worst_length = std::max(worst_length, std::abs(g.at("perimeter") / p.at("perimeter") - 1));
+    worst_area = std::max(worst_area, std::abs(dense_geodesic.at(fips).at("area") / dense_planar.at(fips).at("area") - 1));
+    worst_length = std::max(worst_length, std::abs(g.at("perimeter") / planar.at(fips).at("perimeter") - 1));
   }
   const auto g_lengths = lengths_of(*dir_ / "lonlat"), p_lengths = lengths_of(*dir_ / "albers");
   ASSERT_EQ(g_lengths.size(), p_lengths.size());  // the same rook pairs, projected or not
@@ -140,7 +149,7 @@ TEST_F(NcCounties, ProjectedMeasuresAreShapelysAndAgreeWithTheEllipsoid) {
     ASSERT_TRUE(p_lengths.count(pair)) << pair.first << "," << pair.second;
     worst_length = std::max(worst_length, std::abs(length / p_lengths.at(pair) - 1));
   }
-  EXPECT_LT(worst_area, 1e-5);
+  EXPECT_LT(worst_area, 1e-8);
   EXPECT_LT(worst_length, 5e-3);
   EXPECT_GT(worst_length, 1e-5);  // Albers does bend lengths: the comparison sees the projection
   std::cout << "NC: largest relative difference, ellipsoid vs Albers: areas " << worst_area << ", lengths " << worst_length << "\n";
