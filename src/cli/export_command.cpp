@@ -1,5 +1,5 @@
-// planmill export RUNDIR --out DIR: observables and chosen plans as CSV, district tallies and a
-// dense HDF5 plan matrix (docs/export.md).
+// planmill export RUNDIR --out DIR: observables and chosen plans as CSV, district tallies, a
+// dense HDF5 plan matrix, and plans as a GIS layer of dissolved districts (docs/export.md).
 // Exit status: 0 done, 2 bad input (nothing written), 3 some chains damaged and left out.
 #include <iostream>
 #include <string>
@@ -34,6 +34,9 @@ int run_export(ExportArgs& args) {
             << " plans";
   if (o.rung > 0) std::cout << " of rung " << o.rung;
   std::cout << " to " << o.out_dir << "\n";
+  if (!o.gis_path.empty()) {
+    std::cout << "wrote the districts of " << result.gis_plans << " plan(s) to " << o.gis_path << "\n";
+  }
   for (const ChainProblem& p : result.left_out) {
     std::cerr << "planmill: chain " << p.chain_index << ", records " << p.first_record << "-";
     if (p.last_record == UINT64_MAX) {
@@ -75,6 +78,22 @@ void add_export_command(CLI::App& app, Action& action) {
                   "adjacency file of the map, for --tallies (default: the one the job names)");
   sub->add_option("--map-id-column", args->options.id_column,
                   "id column of the unit table (default: the job's map.id)");
+  sub->add_option("--gis", args->options.gis_path,
+                  "also write the chosen plans (and --plan-file plans) as a GIS layer, one dissolved "
+                  "polygon per district with its tallies: FILE.gpkg (GeoPackage) or FILE.geojson");
+  sub->add_option("--gis-format", args->options.gis_format,
+                  "format of the --gis file whatever its name: gpkg or geojson");
+  sub->add_option("--geometry", args->options.geometry_path,
+                  "the units' polygons for --gis, any vector file GDAL reads (default: the job's "
+                  "map.geometry)");
+  sub->add_option("--geometry-id", args->options.geometry_id,
+                  "attribute of --geometry holding the unit ids (default: the map's id column)");
+  sub->add_option("--plan-file", args->options.plan_files,
+                  "a plan CSV on the run's units (unit,district) to add to the --gis layer; repeatable")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  sub->add_option("--crosswalk", args->options.crosswalk_path,
+                  "read the --plan-file plans on finer units through this crosswalk (as score does)");
   sub->callback([&action, args] { action = [args] { return run_export(*args); }; });
 }
 

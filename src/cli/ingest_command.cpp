@@ -24,6 +24,8 @@ void add_ingest_command(CLI::App& app, Action& action) {
   sub->add_flag("--planar", o->planar, "measure coordinates as planar whatever the CRS says");
   sub->add_option("--bridges", o->bridges, "CSV of extra edges (id,id) joining separate parts");
   sub->add_flag("--join-islands", o->join_islands, "join each separate part to its nearest unit");
+  sub->add_flag("--source-order", o->source_order,
+                "keep the layer's feature order (default: units along a Hilbert curve of their centroids)");
   sub->callback([o, &action] {
     action = [o] {
       const IngestSummary s = ingest_map(*o);

@@ -26,6 +26,13 @@ bool perimeters_known(const UnitGraph& g) { return g.has_outer_boundary() && g.h
 
 }  // namespace
 
+double tally_area(const Plan& plan, DistrictIndex d) {
+  return plan.graph().has_areas() ? plan.area(d) : std::nan("");
+}
+double tally_perimeter(const Plan& plan, DistrictIndex d) {
+  return perimeters_known(plan.graph()) ? plan.perimeter(d) : std::nan("");
+}
+
 std::string tallies_header(const UnitGraph& graph, const std::string& units_path) {
   std::set<std::string> taken{"chain",      "record", "step",     "district",
                               "population", "area",   "perimeter"};
@@ -57,9 +64,9 @@ void append_tally_rows(std::string& table, std::uint64_t chain, std::uint64_t re
       table += count_text(plan.count(district, c));
     }
     table += ',';
-    table += g.has_areas() ? csv_number(plan.area(district)) : "NA";
+    table += csv_number(tally_area(plan, district));
     table += ',';
-    table += perimeters_known(g) ? csv_number(plan.perimeter(district)) : "NA";
+    table += csv_number(tally_perimeter(plan, district));
     table += '\n';
   }
 }

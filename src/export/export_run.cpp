@@ -11,6 +11,7 @@
 
 #include <unistd.h>
 
+#include "export/gis_export.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/export/export.hpp"
 #include "planmill/export/district_tallies.hpp"
@@ -41,6 +42,8 @@ struct RunMap {
   std::vector<std::string> ids;
   GraphHandle graph;  // null unless the whole map was loaded
   std::string units_path;
+  std::string id_column;
+  std::string geometry_path;  // the job's map.geometry (when the job was read)
 };
 
 JobSpec run_job(const RunReader& run) {
@@ -67,12 +70,13 @@ void check_job_names_file(const RunReader& run, const std::string& path, const c
 }
 
 RunMap run_map(const RunReader& run, const ExportOptions& o, bool whole, ExportResult& result) {
-  RunMap map{{}, nullptr, o.units_path};
-  std::string id_column = o.id_column;
+  RunMap map{{}, nullptr, o.units_path, o.id_column, {}};
+  std::string& id_column = map.id_column;
   MapSpec spec;
   if (map.units_path.empty() || id_column.empty() || whole) {
     const JobSpec job = run_job(run);
     spec = job.map;
+    map.geometry_path = job.map.geometry_path;
     if (map.units_path.empty()) {
       map.units_path = job.map.units_path;
       check_job_names_file(run, map.units_path, "map.units", "unit table", "--map-units");
@@ -192,6 +196,16 @@ ExportResult export_run(const ExportOptions& o) {
   // Everything that can be the user's mistake is checked before anything is written.
   check_rung_recorded(run, rung);
   const std::vector<RecordRef> chosen = choose_records(run, o.plans);
+  const bool gis = !o.gis_path.empty();
+  if (!gis && (!o.plan_files.empty() || !o.geometry_path.empty())) {
+    throw InputError({"", 0, o.plan_files.empty() ? "--geometry" : "--plan-file"},
+                     "plan files and unit shapes are for the GIS layer, and none is asked for",
+                     "name the layer to write with --gis FILE.gpkg or FILE.geojson");
+  }
+  if (gis && chosen.empty() && o.plan_files.empty()) {
+    throw InputError({"", 0, "--gis"}, "a GIS layer of districts needs plans, and none are chosen",
+                     "choose plans with --plans, --every or --chains, or give plan files with --plan-file");
+  }
   if (chosen.empty() && (o.tallies || o.layout.matrix)) {
     throw InputError({"", 0, o.tallies ? "--tallies" : "--plan-layout"},
                      std::string(o.tallies ? "district tallies" : "a plan matrix") +
@@ -199,17 +213,24 @@ ExportResult export_run(const ExportOptions& o) {
                      "choose plans with --plans, --every or --chains");
   }
   RunMap map;
-  if (!chosen.empty()) map = run_map(run, o, o.tallies, result);
+  const bool whole = o.tallies || gis;
+  if (!chosen.empty() || gis) map = run_map(run, o, whole, result);
   const std::vector<std::string>& ids = map.ids;
   std::string tallies;
-  if (o.tallies) {
+  if (whole) {
     if (map.graph->unit_count() != run.unit_count()) {
       throw InputError({map.units_path, 0, ""}, "the map has " +
                            std::to_string(map.graph->unit_count()) +
                            " units but the run's plans have " + std::to_string(run.unit_count()),
                        "give the map the run used with --map-units and --map-adjacency");
     }
-    tallies = tallies_header(*map.graph, map.units_path);
+    if (o.tallies) tallies = tallies_header(*map.graph, map.units_path);
+  }
+  std::unique_ptr<GisExport> gis_layer;
+  if (gis) {
+    const GisSource source{o.geometry_path.empty() ? map.geometry_path : o.geometry_path, map.units_path,
+                           map.id_column, run.layout().job_copy().string()};
+    gis_layer = std::make_unique<GisExport>(o, map.graph, ids, source, run.district_count(), result.warnings);
   }
 
   // Only damage to the rung exported leaves a chain out.
@@ -270,6 +291,7 @@ ExportResult export_run(const ExportOptions& o) {
     result.written.push_back(name);
   };
   std::unique_ptr<PlanMatrixWriter> matrix;
+  if (gis_layer) gis_layer->start();
   if (o.layout.matrix) {
     matrix = std::make_unique<PlanMatrixWriter>(
         (staging.dir / matrix_file_name(rung)).string(),
@@ -313,10 +335,11 @@ ExportResult export_run(const ExportOptions& o) {
               if (o.layout.wide) {
                 wide_labels.emplace(ref, std::vector<DistrictIndex>(labels.begin(), labels.end()));
               }
-              if (o.tallies) {
+              if (whole) {
                 const Plan plan(map.graph, run.district_count(),
                                 std::vector<DistrictIndex>(labels.begin(), labels.end()));
-                append_tally_rows(chain_tallies, chain, record, steps.at(record), plan);
+                if (o.tallies) append_tally_rows(chain_tallies, chain, record, steps.at(record), plan);
+                if (gis_layer) gis_layer->add_record(ref, steps.at(record), plan);
               }
               if (matrix) matrix->add(chain, record, steps.at(record), labels);
             },
@@ -324,8 +347,10 @@ ExportResult export_run(const ExportOptions& o) {
         begin = end;
       }
       tallies += chain_tallies;
+      if (gis_layer) gis_layer->keep_chain();
     } catch (const StoreError& e) {
       if (matrix) matrix->drop_rows_from(matrix_rows);
+      if (gis_layer) gis_layer->drop_chain();
       leave_out(result, bad, chain, run.record_count(chain), e.what());
     }
   }
@@ -375,10 +400,15 @@ ExportResult export_run(const ExportOptions& o) {
     write(wide_file_name(rung), wide);
   }
   if (o.tallies) write(tallies_file_name(rung), tallies);
+  if (gis_layer) gis_layer->finish();
   for (const RecordRef& ref : chosen) result.plans += left_out(bad, ref.chain) ? 0 : 1;
   for (const std::string& name : result.written) {  // renames within one file system: no new space
     fs::create_directories((out / name).parent_path());
     fs::rename(staging.dir / name, out / name);
+  }
+  if (gis_layer) {
+    result.written.push_back(gis_layer->move_into_place());
+    result.gis_plans = gis_layer->plans();
   }
   return result;
 }

@@ -174,21 +174,31 @@ IngestSummary ingest_map(const IngestOptions& o) {
                      std::to_string(parts.front().size()) + " units): " + describe_parts(layer, parts, population),
                      "list the links that exist on the ground (ferries, bridges) as id,id rows in a --bridges CSV, or pass --join-islands");
   }
-  std::sort(edges.begin(), edges.end(), [](const Edge& x, const Edge& y) { return x.a != y.a ? x.a < y.a : x.b < y.b; });
-
   std::vector<double> shared(layer.units.size(), 0);
   for (const Edge& e : edges) shared[e.a] += e.length, shared[e.b] += e.length;
+  // Units are written in unit order; edges name their ends by position in it, lower first.
+  const std::vector<std::size_t> order = ingest::unit_order(layer, o.source_order);
+  std::vector<std::size_t> position(order.size());
+  for (std::size_t i = 0; i < order.size(); ++i) position[order[i]] = i;
+  for (Edge& e : edges) {
+    const std::size_t a = position[e.a], b = position[e.b];
+    e.a = std::min(a, b), e.b = std::max(a, b);
+  }
+  std::sort(edges.begin(), edges.end(), [](const Edge& x, const Edge& y) { return x.a != y.a ? x.a < y.a : x.b < y.b; });
   std::string units = csv_field(o.id_field);
   for (const std::string& c : layer.columns) units += "," + csv_field(c);
-  units += ",area,perimeter,outer\n";
-  for (std::size_t i = 0; i < layer.units.size(); ++i) {
+  units += ",area,perimeter,outer,feature\n";
+  for (const std::size_t i : order) {
     const ingest::LayerUnit& u = layer.units[i];
     units += csv_field(u.id);
     for (const std::string& v : u.values) units += "," + csv_field(v);
-    units += "," + number_text(u.area) + "," + number_text(u.perimeter) + "," + number_text(std::max(0.0, u.perimeter - shared[i])) + "\n";
+    units += "," + number_text(u.area) + "," + number_text(u.perimeter) + "," + number_text(std::max(0.0, u.perimeter - shared[i])) + "," +
+             std::to_string(u.feature) + "\n";
   }
   std::string adjacency = "a,b,length\n";
-  for (const Edge& e : edges) adjacency += csv_field(layer.units[e.a].id) + "," + csv_field(layer.units[e.b].id) + "," + number_text(e.length) + "\n";
+  for (const Edge& e : edges) {
+    adjacency += csv_field(layer.units[order[e.a]].id) + "," + csv_field(layer.units[order[e.b]].id) + "," + number_text(e.length) + "\n";
+  }
 
   // Staged in a hidden folder inside the output folder, moved into place only when all are written.
   namespace fs = std::filesystem;

@@ -1,7 +1,7 @@
 #pragma once
 // The pieces of ingest (docs/ingest.md): read_layer.cpp reads and checks the features,
 // measure.cpp measures lengths and areas (geodesic or planar), adjacency.cpp finds the neighbours
-// through a grid index, ingest.cpp joins the parts of the map and writes the files.
+// through a grid index, unit_order.cpp numbers the units along a Hilbert curve, ingest.cpp joins the parts of the map and writes the files.
 #include <ogrsf_frmts.h>
 
 #include <GeographicLib/Geodesic.hpp>
@@ -58,6 +58,11 @@ struct Layer {
 };
 
 [[nodiscard]] Layer read_layer(const IngestOptions& options);
+
+// The order units are written in: order[i] is the layer index of the i-th unit. The layer's
+// feature order when `source_order`, else along a Hilbert curve of the units' centroids
+// (unit_order.cpp; ties keep feature order).
+[[nodiscard]] std::vector<std::size_t> unit_order(const Layer& layer, bool source_order);
 
 struct Edge {
   std::size_t a, b;                  // a < b

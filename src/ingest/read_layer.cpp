@@ -106,7 +106,7 @@ Layer read_layer(const IngestOptions& o) {
   std::vector<int> kept;
   const auto keep = [&](const std::string& name, const char* option) {
     if (name.empty() || name == o.id_field || std::count(out.columns.begin(), out.columns.end(), name)) return;
-    for (const char* ours : {"area", "perimeter", "outer"}) {
+    for (const char* ours : {"area", "perimeter", "outer", "feature"}) {
       if (name == ours) {
         throw InputError({o.map_path, 0, option}, "the attribute " + quoted(name) + " has the name of a column ingest computes",
                          "rename the attribute in the map, or leave it out");

@@ -21,13 +21,15 @@ std::vector<Feature> block() {
 TEST(IngestCli, RookLeavesCornerPairsOutQueenKeepsThem) {
   const fs::path dir = scratch_dir("ingest", "corner");
   const fs::path layer = write_layer(dir / "block.geojson", block());
-  const std::string rook = ingest(layer, dir / "rook", "--planar --population pop");
+  // In the layer's order, so that the tables read as written by hand (ingest_order_test.cpp
+  // checks the default order).
+  const std::string rook = ingest(layer, dir / "rook", "--planar --source-order --population pop");
   ASSERT_NE(rook.find("4 adjacencies (rook)"), std::string::npos) << rook;
   // By hand: the four sides of length 1; a-d and b-c meet at the centre point only.
   EXPECT_EQ(read_text(dir / "rook" / "adjacency.csv"), "a,b,length\na,b,1\na,c,1\nb,d,1\nc,d,1\n");
   // Each square: area 1, perimeter 4, two sides on the block's outline.
   EXPECT_EQ(read_text(dir / "rook" / "units.csv"),
-            "unit,pop,area,perimeter,outer\na,5,1,4,2\nb,6,1,4,2\nc,7,1,4,2\nd,0,1,4,2\n");
+            "unit,pop,area,perimeter,outer,feature\na,5,1,4,2,1\nb,6,1,4,2,2\nc,7,1,4,2,3\nd,0,1,4,2,4\n");
   EXPECT_NE(rook.find("1 unit(s) have population 0: 'd'"), std::string::npos) << rook;
   const std::string job = read_text(dir / "rook" / "job.toml");
   EXPECT_NE(job.find("population = \"pop\""), std::string::npos) << job;
@@ -40,7 +42,7 @@ TEST(IngestCli, RookLeavesCornerPairsOutQueenKeepsThem) {
   const std::string check = command_output(std::string(PLANMILL_BINARY) + " check " + (dir / "rook" / "job.toml").string() + " 2>&1");
   EXPECT_EQ(check.find("failed"), std::string::npos) << check;
 
-  const std::string queen = ingest(layer, dir / "queen", "--planar --queen");
+  const std::string queen = ingest(layer, dir / "queen", "--planar --queen --source-order");
   ASSERT_NE(queen.find("6 adjacencies (queen)"), std::string::npos) << queen;
   EXPECT_EQ(read_text(dir / "queen" / "adjacency.csv"),
             "a,b,length\na,b,1\na,c,1\na,d,0\nb,c,0\nb,d,1\nc,d,1\n");
@@ -148,7 +150,7 @@ TEST(IngestCli, ProjectedCrsMeasuresPlanarInItsOwnUnit) {
     const fs::path layer = write_layer(dir / (std::string(code) + ".geojson"), {{"a", box(0, 0, 3, 4)}}, crs);
     const std::string out = ingest(layer, dir / code, "");
     EXPECT_NE(out.find(std::string("measured planar, lengths in ") + unit + ", areas in square " + unit), std::string::npos) << out;
-    EXPECT_EQ(read_text(dir / code / "units.csv"), "unit,area,perimeter,outer\na,12,14,14\n");
+    EXPECT_EQ(read_text(dir / code / "units.csv"), "unit,area,perimeter,outer,feature\na,12,14,14,1\n");
   }
 }
 
@@ -169,7 +171,7 @@ TEST(IngestCli, SynthStateReadBackEqualsSynthTables) {
   ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " synth --units 400 --districts 4 --seed 11 --out " + (dir / "state").string() +
                   " >/dev/null"),
             0);
-  const std::string out = ingest(dir / "state" / "units.geojson", dir / "read", "--planar --county county --municipality town");
+  const std::string out = ingest(dir / "state" / "units.geojson", dir / "read", "--planar --source-order --county county --municipality town");
   ASSERT_NE(out.find("ingest: 400 units"), std::string::npos) << out;
   const CsvTable theirs = read_csv_file((dir / "state" / "units.csv").string());
   const CsvTable ours = read_csv_file((dir / "read" / "units.csv").string());

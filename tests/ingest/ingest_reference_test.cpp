@@ -1,8 +1,9 @@
 // planmill ingest against outside references on layers the test writes:
 // - planar: a jittered 8 x 8 tiling with a hole (and a unit filling it), checked with Python's
-//   shapely (Debian python3-shapely): areas, perimeters (`length`, holes included), every pair's
-//   boundary intersection (rook: positive length; queen: not empty) and its length, and each unit's
-//   outer boundary as the length of its boundary on the boundary of the union of all units;
+//   shapely (Debian python3-shapely) by tests/ingest/planar_check.py: areas, perimeters (`length`,
+//   holes included), every pair's boundary intersection (rook: positive length; queen: not empty)
+//   and its length, and each unit's outer boundary as the length of its boundary on the boundary
+//   of the union of all units;
 // - geographic: a 3 x 3 grid of 0.5 degree lon/lat cells on WGS 84, against the ellipsoid's
 //   area element M N cos(phi) dphi dlambda and meridian arc M dphi integrated numerically
 //   (textbook ellipsoid geometry; M = a(1-e^2)/W^3, N = a/W, W = sqrt(1 - e^2 sin^2 phi)) and the
@@ -22,39 +23,6 @@ namespace planmill::test {
 namespace {
 
 namespace fs = std::filesystem;
-
-const char* const kPlanarCheck = R"PY(
-import csv, json, sys, warnings
-warnings.filterwarnings("ignore")
-from shapely.geometry import shape
-from shapely.ops import unary_union
-layer, out, queen = sys.argv[1], sys.argv[2], sys.argv[3] == "queen"
-polys = {f["properties"]["unit"]: shape(f["geometry"]) for f in json.load(open(layer))["features"]}
-rows = {r["unit"]: r for r in csv.DictReader(open(out + "/units.csv"))}
-edges = {}
-for r in list(csv.reader(open(out + "/adjacency.csv")))[1:]:
-    edges[frozenset(r[:2])] = float(r[2])
-bad = []
-def near(x, y): return abs(x - y) <= 1e-9 * max(1.0, abs(y))
-outline = unary_union(list(polys.values())).boundary
-for u, p in polys.items():
-    r = rows[u]
-    for name, want in (("area", p.area), ("perimeter", p.length), ("outer", p.boundary.intersection(outline).length)):
-        if not near(float(r[name]), want): bad.append("%s %s %s != %s" % (u, name, r[name], want))
-ids = sorted(polys)
-count = 0
-for i, a in enumerate(ids):
-    for b in ids[i + 1:]:
-        common = polys[a].boundary.intersection(polys[b].boundary)
-        joined = common.length > 1e-12 or (queen and not common.is_empty)
-        got = edges.get(frozenset((a, b)))
-        if joined != (got is not None): bad.append("pair %s %s: shapely %s, ingest %s" % (a, b, joined, got))
-        elif joined:
-            count += 1
-            if not near(got, common.length): bad.append("pair %s %s length %s != %s" % (a, b, got, common.length))
-if count != len(edges): bad.append("ingest lists %d edges, shapely %d" % (len(edges), count))
-print("\n".join(bad[:10]) if bad else "ok %d" % count)
-)PY";
 
 // Lattice point (i, j) moved by up to 0.3 in each direction (a fixed LCG, so the layer is the same
 // on every run); the outline's points stay on the square's sides.
@@ -87,11 +55,10 @@ fs::path write_jittered_tiling(const fs::path& path) {
 TEST(IngestReference, PlanarTilingAgainstShapely) {
   const fs::path dir = scratch_dir("ingest-ref", "planar");
   const fs::path layer = write_jittered_tiling(dir / "tiling.geojson");
-  std::ofstream(dir / "check.py") << kPlanarCheck;
   for (const std::string mode : {"rook", "queen"}) {
     const std::string run = ingest(layer, dir / mode, "--planar" + std::string(mode == "queen" ? " --queen" : ""));
     ASSERT_NE(run.find("ingest: 65 units"), std::string::npos) << run;
-    const std::string check = command_output("/usr/bin/python3 " + (dir / "check.py").string() + " " + layer.string() + " " + (dir / mode).string() +
+    const std::string check = command_output(std::string("/usr/bin/python3 ") + PLANMILL_SOURCE_DIR + "/tests/ingest/planar_check.py " + layer.string() + " " + (dir / mode).string() +
                                              " " + mode + " 2>&1");
     EXPECT_EQ(check.rfind("ok ", 0), 0u) << mode << ": " << check;
   }

@@ -49,6 +49,14 @@ struct ExportOptions {
   // Rung of each chain's ladder to export: 0 = the chains (the ensemble); R > 0 needs every chain
   // of the run to have recorded rung R ([tempering] record = "all"), else InputError.
   std::uint64_t rung = 0;
+  // The chosen plans and plan_files as one GIS layer, a feature per district (docs/export.md,
+  // "Plans back to GIS"). Empty gis_path: none.
+  std::string gis_path;
+  std::string gis_format;     // "gpkg", "geojson"; empty: from gis_path's extension
+  std::string geometry_path;  // the units' shapes; empty: the job's map.geometry
+  std::string geometry_id;    // their id attribute; empty: the map's id column
+  std::vector<std::string> plan_files;  // plan CSVs on the run's units (or through crosswalk_path)
+  std::string crosswalk_path;
 };
 
 struct ExportResult {
@@ -57,6 +65,7 @@ struct ExportResult {
   std::vector<std::string> warnings;   // one line each
   std::uint64_t observable_rows = 0;
   std::uint64_t plans = 0;
+  std::uint64_t gis_plans = 0;  // plans in the GIS layer (k features each)
 };
 
 // "3:120,0:5" -> {{3,120},{0,5}}. InputError (key `option`) on anything else.

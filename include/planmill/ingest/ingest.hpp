@@ -20,6 +20,7 @@ struct IngestOptions {
   bool planar = false;                // take coordinates as planar whatever the layer's CRS says
   std::string bridges;                // CSV of extra edges (id,id) joining separate parts
   bool join_islands = false;          // join each separate part to its nearest unit
+  bool source_order = false;          // units in feature order, not along a Hilbert curve
 };
 
 struct IngestSummary {
