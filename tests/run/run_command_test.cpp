@@ -166,6 +166,25 @@ TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterrup
   EXPECT_EQ(run(2, job, out, "--resume"), 0) << "resuming a finished run has nothing to do";
 }
 
+// What a batch script does with the scheduler's warning: SIGUSR2 to mpiexec itself, which passes
+// it on to every rank and, unlike SIGTERM, lets them end by themselves, so the 4 reaches the script.
+TEST(Run, SigusrTwoToMpiexecCheckpointsAndTheLauncherExitsWithFour) {
+  const auto dir = scratch("sigusr2");
+  const auto job = write_job(dir, kLongSampler, 300.0);
+  const auto out = dir / "stopped";
+  const pid_t launcher = spawn_run(2, job, out);
+  ASSERT_TRUE(wait_for([&] { return fs::exists(RunLayout{out}.state_file()); }, launcher, 120));
+  std::this_thread::sleep_for(std::chrono::milliseconds(1000));
+  ::kill(launcher, SIGUSR2);
+  EXPECT_EQ(wait_exit(launcher), 4) << "mpiexec passes the ranks' status 4 on";
+  const RunState stopped = read_run_state(RunLayout{out});
+  ASSERT_FALSE(stopped.finished);
+  EXPECT_EQ(stopped.stop_reason, "checkpointed on signal");
+  ASSERT_EQ(run(2, job, out, "--resume"), 0);
+  ASSERT_EQ(run(1, job, dir / "straight"), 0);
+  expect_same_records(dir / "straight", out);
+}
+
 TEST(Run, RefusesToOverwriteARunAndToResumeWithAChangedJob) {
   const auto dir = scratch("refuse");
   const auto job = write_job(dir, "chains = 2\nsteps = 100");
