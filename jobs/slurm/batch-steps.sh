@@ -15,6 +15,8 @@
 #                     reads the allocation from Slurm) works as well
 #   PLANMILL_ROUNDS   most submissions of one run, this one included     (default: 20)
 #   PLANMILL_ROUND    which submission this is (set by pm_next)          (default: 1)
+#   PLANMILL_NEXT_TIME  time limit of the resubmissions, as sbatch --time takes it
+#                     (default: this job's own)
 #
 # Why SIGUSR2: the templates ask Slurm for `--signal=B:USR2@SECONDS`, a SIGUSR2 to this script
 # that many seconds before the time limit. The script passes it to the launcher; srun and OpenMPI's
@@ -69,7 +71,7 @@ pm_next() {
   # limit, and only this task of an array. --signal comes from the script's #SBATCH lines.
   local script limit
   script=$(scontrol show job "$SLURM_JOB_ID" | sed -n 's/^ *Command=//p' | head -n 1)
-  limit=$(squeue -h -j "$SLURM_JOB_ID" -o %l | head -n 1)
+  limit=${PLANMILL_NEXT_TIME:-$(squeue -h -j "$SLURM_JOB_ID" -o %l | head -n 1)}
   local again=(--ntasks="$SLURM_NTASKS" --time="$limit" --export=ALL,PLANMILL_ROUND=$((PLANMILL_ROUND + 1)))
   [ -n "${SLURM_ARRAY_TASK_ID:-}" ] && again+=(--array="$SLURM_ARRAY_TASK_ID")
   local id

@@ -43,9 +43,16 @@ slurm_start 2
 
 "$bin" synth --units 200 --districts 4 --seed 5 --out "$work/state" >/dev/null
 base=$(cat "$work/state/job.toml")
-# Long enough that the one-minute limit cannot be met (about 90 s straight through here).
-printf '%s\n[sampler]\nchains = 2\nsteps = %s\nburn_in = 100\nrecord_every = 500\nseed = 8\n[output]\ncheckpoint_seconds = 600\n' \
-  "$base" "${PLANMILL_SLURM_TEST_STEPS:-600000}" >"$work/state/chains.toml"
+# The stopped run must outlast the warning, which comes 15 to 45 s into a one-minute job (Slurm
+# looks at time limits every 30 s): steps for about 75 s at the speed measured here and now.
+printf '%s\n[sampler]\nchains = 1\nsteps = 100000\nseed = 1\n' "$base" >"$work/state/speed.toml"
+t0=$(date +%s%N)
+"$bin" run "$work/state/speed.toml" --output "$work/speed" --quiet >/dev/null
+t1=$(date +%s%N)
+steps=$((100000 * 75 * 1000000000 / (t1 - t0)))
+echo "slurm test: $((100000 * 1000000000 / (t1 - t0))) steps/s here; the stopped run takes $steps steps per chain"
+printf '%s\n[sampler]\nchains = 2\nsteps = %s\nburn_in = 100\nrecord_every = %s\nseed = 8\n[output]\ncheckpoint_seconds = 600\n' \
+  "$base" "$steps" "$((steps / 1000))" >"$work/state/chains.toml"
 printf '%s\n[sampler]\nkernel = "flip"\nchains = 1\nsteps = 4000\nburn_in = 200\nrecord_every = 20\nseed = 9\n[tempering]\nrungs = 2\nhottest_beta = 0.5\n[output]\ncheckpoint_seconds = 600\n' \
   "$base" >"$work/state/ladder.toml"
 printf '%s\n[sampler]\nchains = 1\nsteps = 2000\nburn_in = 100\nrecord_every = 20\nseed = 30\n[output]\ncheckpoint_seconds = 600\n' \
@@ -55,7 +62,9 @@ cd "$work"
 common=(--export=ALL,PLANMILL=$bin,PLANMILL_BATCH_STEPS=$templates/batch-steps.sh)
 # 1. A run the time limit stops; the warning 45 s before it; the resubmission finishes.
 # SBATCH_SIGNAL, not --signal: the resubmissions inherit it (the template's own asks 300 s early).
-first=$(PLANMILL_JOB=state/chains.toml PLANMILL_OUT=runs/chains PLANMILL_ROUNDS=6 SBATCH_SIGNAL=B:USR2@45 \
+# PLANMILL_NEXT_TIME: the resubmission may take 10 minutes, so that the test ends.
+first=$(PLANMILL_JOB=state/chains.toml PLANMILL_OUT=runs/chains PLANMILL_ROUNDS=4 SBATCH_SIGNAL=B:USR2@45 \
+  PLANMILL_NEXT_TIME=10 \
   sbatch --parsable "${common[@]}" --ntasks=2 --time=1 --output="$work/chains-%j.out" \
   "$templates/independent-chains.sbatch")
 # 2. and 3. queue behind it (the node has 2 CPUs).
@@ -66,8 +75,6 @@ pieces=$(PLANMILL_JOB=state/pieces.toml PLANMILL_OUT=runs/pieces \
   sbatch --parsable "${common[@]}" --array=0-1 --ntasks=1 --time=5 --output="$work/pieces-%A-%a.out" \
   "$templates/pooled-array.sbatch")
 
-# The straight run, outside Slurm, while the first job holds the node (both share the cores).
-"$bin" run state/chains.toml --output runs/straight --quiet >straight.log 2>&1 || fail "the straight run failed"
 
 # Every submission has ended once the queue is empty (a resubmission enters before its parent ends).
 for _ in $(seq 900); do
@@ -76,6 +83,9 @@ for _ in $(seq 900); do
 done
 [ -z "$(squeue -h -o %i)" ] || fail "jobs still queued after the wait: $(squeue -h)"
 
+# The straight run, outside Slurm, once the node is free again.
+mpiexec --oversubscribe -n 2 "$bin" run state/chains.toml --output runs/straight --quiet >straight.log 2>&1 ||
+  fail "the straight run failed"
 status=0
 "$bin" status runs/chains >chains-status.txt || status=$?
 [ $status -eq 0 ] || fail "planmill status says $status for the resubmitted run: $(cat chains-status.txt)"
