@@ -15,7 +15,7 @@ base=$(cat "$work/state/job.toml")
 
 # job NAME SAMPLER [EXTRA]: a job file on the benchmark state.
 job() { printf '%s\n[sampler]\n%s\n%s\n' "$base" "$2" "${3:-[output]
-checkpoint_seconds = 600}" >"$work/$1.toml"; }
+checkpoint_seconds = 600}" >"$work/state/$1.toml"; }
 # median wall seconds of `mpiexec -n RANKS planmill run JOB`
 timed() {
   local ranks=$1 name=$2 times=()
@@ -23,14 +23,16 @@ timed() {
     rm -rf "$work/out"
     local t0 t1
     t0=$(date +%s.%N)
-    mpiexec --oversubscribe -n "$ranks" "$bin" run "$work/$name.toml" --output "$work/out" --quiet >/dev/null 2>&1
+    mpiexec --oversubscribe -n "$ranks" "$bin" run "$work/state/$name.toml" --output "$work/out" --quiet >"$work/log" 2>&1 ||
+      { echo "planmill run $name failed:" >&2; cat "$work/log" >&2; exit 1; }
     t1=$(date +%s.%N)
     times+=("$(echo "$t1 - $t0" | bc)")
   done
   printf '%s\n' "${times[@]}" | sort -g | sed -n "$(((repeats + 1) / 2))p"
 }
 
-steps=4000
+steps=40000
+ladder_steps=10000
 echo "# recombination, 2,000 units, 20 districts; $steps steps per chain; median of $repeats"
 job one "kernel = \"recombination\"
 chains = 1
@@ -71,7 +73,7 @@ steps = $steps
 burn_in = 0
 record_every = 100
 seed = 1" "[output]
-checkpoint_seconds = 0.05"
+checkpoint_seconds = 1"
 tck=$(timed 2 ckpt)
 ck=$(python3 -c 'import json,sys; print(json.load(open(sys.argv[1]))["checkpoints"])' "$work/out/run-state.json")
 state_bytes=$(stat -c %s "$work/out/run-state.json")
@@ -83,7 +85,7 @@ echo "per checkpoint (2 ranks, $ck checkpoints vs 1): $(echo "scale=2; ($tck - $
 for every in 1 1000; do
   job "swap$every" "kernel = \"merge-split\"
 chains = 1
-steps = $steps
+steps = $ladder_steps
 burn_in = 0
 record_every = 100
 seed = 1
@@ -93,10 +95,10 @@ hottest_beta = 0.5
 swap_every = $every"
 done
 ts1=$(timed 2 swap1); ts1000=$(timed 2 swap1000)
-echo "per swap round (a ladder over 2 ranks): $(echo "scale=1; ($ts1 - $ts1000) * 1000000 / ($steps - $steps / 1000)" | bc) us"
+echo "per swap round (a ladder over 2 ranks): $(echo "scale=1; ($ts1 - $ts1000) * 1000000 / ($ladder_steps - $ladder_steps / 1000)" | bc) us"
 job ladder1 "kernel = \"merge-split\"
 chains = 1
-steps = $steps
+steps = $ladder_steps
 burn_in = 0
 record_every = 100
 seed = 1
@@ -106,7 +108,7 @@ hottest_beta = 0.5
 swap_every = 10"
 job ladder2 "kernel = \"merge-split\"
 chains = 2
-steps = $steps
+steps = $ladder_steps
 burn_in = 0
 record_every = 100
 seed = 1

@@ -133,10 +133,10 @@ TEST_F(PoolCli, PiecesBecomeOneEnsembleWhoseChainsAreThePiecesChains) {
   ASSERT_EQ(test::shell(kBin + " export " + (dir_ / "b").string() + " --out " + (dir_ / "b-plan").string() +
                         " --plans 0:0 >/dev/null"), 0);
   const fs::path cmp = dir_ / "pool-compare.json";
-  ASSERT_EQ(test::shell(kBin + " compare " + p.string() + " " +
-                        (dir_ / "b-plan" / "plans" / "chain-0-record-0.csv").string() + " --json " + cmp.string() +
-                        " >/dev/null 2>&1"),
-            0);
+  const int c = test::shell(kBin + " compare " + p.string() + " " +
+                            (dir_ / "b-plan" / "plans" / "chain-0-record-0.csv").string() + " --json " +
+                            cmp.string() + " >/dev/null 2>&1");
+  ASSERT_TRUE(c == 0 || c == 3) << c;  // 3: the verdict fails on so short a run
   EXPECT_EQ(json::parse(test::read_text(cmp))["ensemble"]["chains"].size(), 4U);
   const fs::path html = dir_ / "pool-report.html";
   const int r = test::shell(kBin + " report " + p.string() + " --plan " +
