@@ -20,11 +20,6 @@ namespace fs = std::filesystem;
 using nlohmann::json;
 const std::string kBin = PLANMILL_BINARY;
 
-struct Pieces {
-  fs::path dir;
-  fs::path run(const std::string& name) const { return dir / name; }
-};
-
 // The job of write_synth_job with `from` replaced by `to`, as dir/state/<name>.toml.
 fs::path variant(const fs::path& job, const std::string& name, const std::string& from, const std::string& to) {
   std::string text = test::read_text(job);
