@@ -1,4 +1,5 @@
 #include "planmill/manifest/manifest.hpp"
+#include "planmill/manifest/pool.hpp"
 
 #include <algorithm>
 #include <filesystem>
@@ -204,6 +205,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
          {"problems", chain_problems.count(c.index) ? chain_problems[c.index] : json::array()}});
     // With tempering: the frozen ladder and its swap statistics (temper/ladder_summary.hpp).
     if (!c.ladder.empty()) chains.back()["ladder"] = json::parse(c.ladder);
+    // In a pool: the chain's index in its own run (pool.json says which piece).
+    if (c.stored_as) chains.back()["index_in_piece"] = *c.stored_as;
     // With [tempering] record = "all": how many rungs were recorded, and damage to rungs 1..R-1.
     if (c.recorded_rungs > 1 || chain_rung_problems.count(c.index)) {
       chains.back()["recorded_rungs"] = c.recorded_rungs;
@@ -252,6 +255,8 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
                  {"rung_problems", all_rung_problems.size()},
                  {"inputs_not_matching", inputs_changed}};
   m["diagnostics"] = diagnostics_to_json(diagnostics);
+  // A pool of runs: its pieces, their checksums and what was dropped (docs/manifest.md, "Pools").
+  if (s.pooled) m["pool"] = read_pool_record(layout.root.string());
   return m;
 }
 

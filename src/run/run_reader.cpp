@@ -77,11 +77,15 @@ const EnsembleReader& RunReader::reader_of(const Span& span) const {
   return *span.reader;
 }
 
-std::uint64_t RunReader::recorded_rungs(std::uint64_t chain) const {
+const ChainEntry& RunReader::entry_of(std::uint64_t chain) const {
   for (const auto& c : state_.chains) {
-    if (c.index == chain) return c.recorded_rungs;
+    if (c.index == chain) return c;
   }
   throw std::out_of_range("the run has no chain " + std::to_string(chain));
+}
+
+std::uint64_t RunReader::recorded_rungs(std::uint64_t chain) const {
+  return entry_of(chain).recorded_rungs;
 }
 
 std::uint64_t RunReader::store_index(std::uint64_t chain, std::uint64_t rung) const {
@@ -90,7 +94,7 @@ std::uint64_t RunReader::store_index(std::uint64_t chain, std::uint64_t rung) co
     throw std::out_of_range("chain " + std::to_string(chain) + " has no recorded rung " +
                             std::to_string(rung) + " (" + std::to_string(rungs) + " recorded)");
   }
-  return rung_record_index(chain, rung);
+  return rung_record_index(entry_of(chain).index_in_files(), rung);
 }
 
 std::uint64_t RunReader::record_count(std::uint64_t chain) const {
@@ -222,7 +226,7 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
           continue;
         }
         // A group the file lacks holds no records; an unreadable index is left to verify() below.
-        const std::uint64_t index = rung_record_index(c.index, rung);
+        const std::uint64_t index = rung_record_index(c.index_in_files(), rung);
         const auto held = s.reader->chains();
         std::uint64_t in_file = 0;
         if (std::binary_search(held.begin(), held.end(), index)) {
@@ -252,11 +256,17 @@ std::vector<ChainProblem> RunReader::verify_records(bool rungs) const {
     for (auto p : checks) {
       if (is_rung_record_index(p.chain_index) != rungs) continue;
       const std::uint64_t offset = rungs ? p.chain_index - kRungRecordBase : 0;
-      const std::uint64_t chain = rungs ? offset / kMaxRungs : p.chain_index;
-      // Records the state does not list (a chain or rung it does not know) are not the run's.
-      const auto state_chain = std::find_if(state_.chains.begin(), state_.chains.end(),
-                                            [&](const ChainEntry& c) { return c.index == chain; });
+      const std::uint64_t in_files = rungs ? offset / kMaxRungs : p.chain_index;
+      // Records the state does not list (a chain or rung it does not know) are not the run's. In
+      // a pool the chain is the one whose spans name this file and that it stores as in_files.
+      const auto state_chain = std::find_if(
+          state_.chains.begin(), state_.chains.end(), [&](const ChainEntry& c) {
+            return c.index_in_files() == in_files &&
+                   std::any_of(c.spans.begin(), c.spans.end(),
+                               [&](const ChainFileSpan& sp) { return sp.file == name; });
+          });
       if (state_chain == state_.chains.end()) continue;
+      const std::uint64_t chain = state_chain->index;
       if (rungs && offset % kMaxRungs >= state_chain->recorded_rungs) continue;
       bool listed = false;
       for (const auto& s : spans_of(chain)) {

@@ -70,6 +70,7 @@ json to_json(const RunState& s) {
     if (!f.sha256.empty()) entry["sha256"] = f.sha256;
     j["files"].push_back(std::move(entry));
   }
+  if (s.pooled) j["pooled"] = true;
   j["chains"] = json::array();
   for (const auto& c : s.chains) {
     json spans = json::array();
@@ -83,6 +84,7 @@ json to_json(const RunState& s) {
                            {"snapshot", c.snapshot}};
     if (!c.ladder.empty()) entry["ladder"] = json::parse(c.ladder);
     if (c.recorded_rungs != 1) entry["recorded_rungs"] = c.recorded_rungs;
+    if (c.stored_as) entry["stored_as"] = *c.stored_as;
     j["chains"].push_back(std::move(entry));
   }
   return j;
@@ -132,6 +134,7 @@ RunState from_json(const json& j) {
                        f.at("rank").get<int>(), f.at("host").get<std::string>(),
                        f.contains("sha256") ? f.at("sha256").get<std::string>() : std::string()});
   }
+  s.pooled = j.contains("pooled") && j.at("pooled").get<bool>();
   for (const auto& c : j.at("chains")) {
     ChainEntry e;
     e.index = c.at("index").get<std::uint64_t>();
@@ -141,6 +144,7 @@ RunState from_json(const json& j) {
     e.last_checkpoint = c.at("last_checkpoint").get<std::string>();
     e.snapshot = c.at("snapshot").get<std::string>();
     if (c.contains("ladder")) e.ladder = c.at("ladder").dump();
+    if (c.contains("stored_as")) e.stored_as = c.at("stored_as").get<std::uint64_t>();
     if (c.contains("recorded_rungs")) e.recorded_rungs = c.at("recorded_rungs").get<std::uint64_t>();
     if (e.recorded_rungs < 1 || e.recorded_rungs > kMaxRungs) {
       throw std::invalid_argument("chain " + std::to_string(e.index) + " has recorded_rungs " +

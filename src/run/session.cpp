@@ -178,6 +178,11 @@ RunState ChainRunner::new_state() {
 
 RunState ChainRunner::resumed_state() {
   RunState s = read_run_state(layout_);
+  if (s.pooled) {
+    throw InputError({layout_.state_file().string(), 0, "pooled"},
+                     "is a pool of runs (planmill pool), which is read, never resumed",
+                     "resume the piece that needs it; pool the pieces again afterwards");
+  }
   if (s.job_sha256 != sha256_hex(loaded_->job.text)) {
     throw InputError({options_.job_path, 0, ""},
                      "differs from the job this run started with (" +

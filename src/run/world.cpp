@@ -26,6 +26,10 @@ void install_run_signal_handlers() {
   sigemptyset(&stop.sa_mask);
   sigaction(SIGTERM, &stop, nullptr);
   sigaction(SIGINT, &stop, nullptr);
+  // OpenMPI's mpiexec and Slurm's srun pass SIGUSR2 on to every rank and leave the ranks to end
+  // by themselves, so the exit status 4 reaches the batch script; sent SIGTERM, mpiexec kills the
+  // ranks a second later and exits 1 whatever they did.
+  sigaction(SIGUSR2, &stop, nullptr);
   struct sigaction checkpoint {};
   checkpoint.sa_handler = on_checkpoint_signal;
   sigemptyset(&checkpoint.sa_mask);

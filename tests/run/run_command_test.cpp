@@ -145,14 +145,28 @@ TEST(Run, ResumeAfterSigkillOfOneRankEqualsAnUninterruptedRun) {
   expect_same_records(dir / "straight", out);
 }
 
-TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterruptedRun) {
-  const auto dir = scratch("sigterm");
-  const auto job = write_job(dir, kLongSampler, 300.0);
-  const auto out = dir / "stopped";
-  const pid_t launcher = spawn_run(2, job, out);
-  // The run state appears once every chain is built; a second later the chains are under way.
-  ASSERT_TRUE(wait_for([&] { return fs::exists(RunLayout{out}.state_file()); }, launcher, 120));
+// A long 2-rank run in a fresh scratch folder, started and under way: the run state appears once
+// every chain is built, and a second later the chains are stepping. launcher is -1 if no state
+// appeared.
+struct LongRun {
+  fs::path dir, job, out;
+  pid_t launcher = -1;
+};
+LongRun start_long_run(const std::string& name) {
+  LongRun r;
+  r.dir = scratch(name);
+  r.job = write_job(r.dir, kLongSampler, 300.0);
+  r.out = r.dir / "stopped";
+  const pid_t launcher = spawn_run(2, r.job, r.out);
+  if (!wait_for([&] { return fs::exists(RunLayout{r.out}.state_file()); }, launcher, 120)) return r;
   std::this_thread::sleep_for(std::chrono::milliseconds(1000));
+  r.launcher = launcher;
+  return r;
+}
+
+TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterruptedRun) {
+  const auto [dir, job, out, launcher] = start_long_run("sigterm");
+  ASSERT_GT(launcher, 0);
   for (const pid_t rank : children_of(launcher)) ::kill(rank, SIGTERM);
   EXPECT_EQ(wait_exit(launcher), 4) << "a rank stopped on SIGTERM exits with 4 (resumable)";
   const RunState stopped = read_run_state(RunLayout{out});
@@ -164,6 +178,21 @@ TEST(Run, SigtermCheckpointsAndStopsAndResumeOnOtherRankCountsEqualsAnUninterrup
   ASSERT_EQ(run(1, job, dir / "straight"), 0);
   expect_same_records(dir / "straight", out);
   EXPECT_EQ(run(2, job, out, "--resume"), 0) << "resuming a finished run has nothing to do";
+}
+
+// What a batch script does with the scheduler's warning: SIGUSR2 to mpiexec itself, which passes
+// it on to every rank and, unlike SIGTERM, lets them end by themselves, so the 4 reaches the script.
+TEST(Run, SigusrTwoToMpiexecCheckpointsAndTheLauncherExitsWithFour) {
+  const auto [dir, job, out, launcher] = start_long_run("sigusr2");
+  ASSERT_GT(launcher, 0);
+  ::kill(launcher, SIGUSR2);
+  EXPECT_EQ(wait_exit(launcher), 4) << "mpiexec passes the ranks' status 4 on";
+  const RunState stopped = read_run_state(RunLayout{out});
+  ASSERT_FALSE(stopped.finished);
+  EXPECT_EQ(stopped.stop_reason, "checkpointed on signal");
+  ASSERT_EQ(run(2, job, out, "--resume"), 0);
+  ASSERT_EQ(run(1, job, dir / "straight"), 0);
+  expect_same_records(dir / "straight", out);
 }
 
 TEST(Run, RefusesToOverwriteARunAndToResumeWithAChangedJob) {

@@ -77,6 +77,7 @@ class RunReader {
     std::uint64_t records;
   };
   [[nodiscard]] const std::vector<Span>& spans_of(std::uint64_t chain) const;
+  [[nodiscard]] const ChainEntry& entry_of(std::uint64_t chain) const;  // out_of_range if none
   [[nodiscard]] const EnsembleReader& reader_of(const Span& span) const;  // StoreError if unreadable
   [[nodiscard]] std::uint64_t store_index(std::uint64_t chain, std::uint64_t rung) const;
   [[nodiscard]] std::vector<ChainProblem> verify_records(bool rungs) const;

@@ -65,6 +65,11 @@ struct ChainEntry {
   std::string last_checkpoint;       // UTC, ISO 8601
   std::vector<ChainFileSpan> spans;  // where its records are
   std::uint64_t recorded_rungs = 1;  // 1: the chain (a ladder's target rung); R: every rung
+  // The chain's index inside its plan files when that is not `index`: in a pool of runs
+  // (manifest/pool.hpp) chains are numbered anew and keep, in their files, the index their own
+  // run gave them.
+  std::optional<std::uint64_t> stored_as;
+  [[nodiscard]] std::uint64_t index_in_files() const { return stored_as.value_or(index); }
 };
 
 struct PlanFileEntry {
@@ -130,6 +135,9 @@ struct RunState {
   std::vector<RunSession> sessions;
   std::vector<ChainEntry> chains;  // ascending by index
   std::vector<PlanFileEntry> files;
+  // A pool of runs (`planmill pool`): readable as one run, never run or resumed; its plan files
+  // are the pieces' own, named relative to the pool's folder.
+  bool pooled = false;
 };
 
 // Throws InputError naming the file (and the key) when it is missing or malformed.

@@ -2,7 +2,7 @@
 // `planmill run`: the job's chains spread over MPI ranks (chain c on rank c % R; a rank steps its
 // chains in turn), plans recorded after burn-in every record_every steps into one ensemble file
 // per rank and checkpoint interval (run/run_state.hpp), a checkpoint every checkpoint_seconds and
-// on SIGTERM/SIGINT (checkpoint, then stop) or SIGUSR1 (checkpoint, go on), resume from the last
+// on SIGTERM/SIGINT/SIGUSR2 (checkpoint, then stop) or SIGUSR1 (checkpoint, go on), resume from the last
 // committed state, progress on rank 0. Recorded plans depend only on the job (seed, chain
 // index): never on R, on round sizes, or on where a run was stopped and resumed.
 #include <cstdint>
@@ -26,7 +26,7 @@ enum class RunEnd {
   finished,           // every chain reached its steps
   converged,          // --until-converged: the verdict passed
   budget_spent,       // --until-converged: max_steps reached without a passing verdict
-  stopped_on_signal,  // checkpointed on SIGTERM/SIGINT; resume to go on
+  stopped_on_signal,  // checkpointed on SIGTERM/SIGINT/SIGUSR2; resume to go on
   nothing_to_do,      // --resume of a run that had finished
 };
 
@@ -47,7 +47,7 @@ struct RunFailedElsewhere {
 // bad input (on the rank that saw it; the others throw RunFailedElsewhere).
 [[nodiscard]] RunOutcome run_job(const RunOptions& options);
 
-// SIGTERM, SIGINT -> checkpoint and stop; SIGUSR1 -> checkpoint and go on.
+// SIGTERM, SIGINT, SIGUSR2 -> checkpoint and stop; SIGUSR1 -> checkpoint and go on.
 void install_run_signal_handlers();
 
 }  // namespace planmill
