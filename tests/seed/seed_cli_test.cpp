@@ -6,7 +6,10 @@
 
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <regex>
+#include <set>
+#include <sstream>
 #include <string>
 
 #include "planmill/graph/load.hpp"
@@ -42,18 +45,39 @@ int run(const fs::path& job, const fs::path& dir) {
 
 TEST(SeedCli, ACountyCapBelowTheDistrictCountFindsAFirstPlan) {
   const fs::path dir = test::scratch_dir("planmill_seed_cli", "cap");
-  const fs::path job = capped_job(dir, 2000, kReachableCap);
+  // 2000 units in 21 counties; a cap of 20 (well below 29) is met by county-favoured trees.
+  const fs::path job = capped_job(dir, 2000, 20);
   ASSERT_EQ(run(job, dir), 0) << read_text(dir / "log");
-  // The first recorded plan meets the cap (and so the seed did): export and recount.
+  // The first recorded plan meets the cap (and so the seed did): export it and recount the splits
+  // from the unit table's county column.
   ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " export " + (dir / "run").string() + " --out " +
-                  (dir / "csv").string() + " --plans >/dev/null 2>&1"),
+                  (dir / "csv").string() + " --plans 1:1 >/dev/null 2>&1"),
             0);
-  EXPECT_TRUE(fs::exists(dir / "csv"));
+  std::map<std::string, std::string> county_of;
+  std::istringstream units(read_text(dir / "state" / "units.csv"));
+  std::string line;
+  std::getline(units, line);
+  while (std::getline(units, line)) {
+    const auto cells = test::split_csv_line(line);
+    county_of[cells.at(0)] = cells.at(1);
+  }
+  std::map<std::string, std::set<std::string>> districts_of;
+  std::istringstream plan(read_text(dir / "csv" / "plans" / "chain-1-record-1.csv"));
+  std::getline(plan, line);
+  while (std::getline(plan, line)) {
+    const auto cells = test::split_csv_line(line);
+    districts_of[county_of.at(cells.at(0))].insert(cells.at(1));
+  }
+  std::size_t split = 0;
+  for (const auto& [county, districts] : districts_of) split += districts.size() > 1;
+  EXPECT_EQ(districts_of.size(), 21U);
+  EXPECT_LE(split, 20U);
 }
 
 TEST(SeedCli, AnImpossibleCountyCapNamesTheRuleAndHowCloseItCame) {
   const fs::path dir = test::scratch_dir("planmill_seed_cli", "impossible");
-  const fs::path job = capped_job(dir, 2000, 0);
+  // 300 units (3 counties) cannot hold 30 districts without splitting a county.
+  const fs::path job = capped_job(dir, 300, 0);
   EXPECT_EQ(run(job, dir), 2);
   const std::string log = read_text(dir / "log");
   EXPECT_NE(log.find("met the population band"), std::string::npos) << log;
