@@ -1,7 +1,8 @@
 // The weighted matrix-tree count against networkx and numpy (Debian python3-networkx 2.8.8,
-// python3-numpy, run with /usr/bin/python3): networkx.laplacian_matrix(G, weight="weight") builds
-// the weighted Laplacian and numpy.linalg.slogdet gives the log-determinant of its minor without
-// the first node. (networkx 2.8 has no number_of_spanning_trees; that came later.) The regions are
+// python3-numpy, run with /usr/bin/python3): networkx.to_numpy_array(G, weight="weight") gives the
+// weighted adjacency, L = diag(row sums) - A the weighted Laplacian, and numpy.linalg.slogdet the
+// log-determinant of its minor without the first node. (networkx 2.8 has no
+// number_of_spanning_trees, that came later, and its laplacian_matrix needs scipy.) The regions are
 // random planar grids with random counties and municipalities, so the weights are ours to choose
 // but the counting is theirs.
 #include <gtest/gtest.h>
@@ -35,7 +36,8 @@ with open(sys.argv[1]) as f:
     for line in f:
         a, b, w = line.split()
         g.add_edge(int(a), int(b), weight=float(w))
-laplacian = nx.laplacian_matrix(g, nodelist=range(n), weight="weight").toarray()
+adjacency = nx.to_numpy_array(g, nodelist=range(n), weight="weight")
+laplacian = np.diag(adjacency.sum(axis=1)) - adjacency
 sign, logdet = np.linalg.slogdet(laplacian[1:, 1:])
 print(repr(float(logdet)) if sign > 0 else "-inf")
 )PY";
