@@ -35,6 +35,9 @@ std::vector<SelftestCase> cases_from_job(const SelftestOptions& options) {
   c.seed = options.seed;
   c.thin = c.kernel.kind == KernelKind::flip ? 40 : 10;
   c.graph = loaded->graph;
+  // Frozen districts are those of the start plan: the exact law is over the plans keeping them.
+  if (!c.kernel.frozen.empty() && loaded->start)
+    c.start.assign(loaded->start->assignment().begin(), loaded->start->assignment().end());
   return {c};
 }
 

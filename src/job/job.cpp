@@ -1,5 +1,6 @@
 #include "planmill/job/job.hpp"
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
@@ -13,6 +14,36 @@ namespace planmill {
 namespace fs = std::filesystem;
 using job_file::Section;
 using job_file::resolve;
+namespace {
+
+// districts.frozen: district numbers of the start plan (1..k) kept as given while the rest are
+// drawn. Needs a plan file; every chain then starts from it.
+void read_frozen(job_file::Section& d, const toml::node& node, JobSpec& job) {
+  const toml::array* array = node.as_array();
+  const std::string range = "1.." + std::to_string(job.districts);
+  if (!array) d.fail("frozen", "must be a list of district numbers", "write it as [3, 7]");
+  for (const toml::node& item : *array) {
+    if (!item.is_integer()) d.fail("frozen", "must hold whole district numbers", "write it as [3, 7]");
+    const std::int64_t v = **item.as_integer();
+    if (v < 1 || v > static_cast<std::int64_t>(job.districts))
+      d.fail("frozen", "district " + std::to_string(v) + " is outside " + range, "name districts " + range);
+    const auto number = static_cast<std::size_t>(v);
+    if (std::find(job.frozen.begin(), job.frozen.end(), number) != job.frozen.end())
+      d.fail("frozen", "names district " + std::to_string(v) + " twice", "name each district once");
+    job.frozen.push_back(number);
+  }
+  if (job.frozen.size() + 2 > job.districts)
+    d.fail("frozen", "leaves fewer than two districts to draw", "freeze at most districts.count - 2 districts");
+  if (job.start == "random")
+    d.fail("frozen", "needs the districts as given, but districts.start gives no plan",
+           "name a plan CSV in districts.start");
+  if (job.starts != ChainStarts::given)
+    d.fail("frozen", "every chain must start from the given plan to keep its frozen districts",
+           "set districts.starts = \"given\"");
+}
+
+}  // namespace
+
 using job_file::read_map, job_file::read_rules, job_file::read_measures, job_file::read_sampler,
     job_file::read_tempering;
 
@@ -49,6 +80,7 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
   if (start == "random" && job.starts != ChainStarts::random)
     d.fail("starts", "is \"" + starts + "\" but districts.start gives no plan",
            "name a plan CSV in districts.start, or leave districts.starts out");
+  if (const toml::node* frozen = d.get("frozen")) read_frozen(d, *frozen, job);
   d.reject_unknown();
 
   read_rules(top, job);

@@ -14,6 +14,14 @@ LoadedJob load_and_check_job(const std::string& job_path) {
   loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
   check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_tolerance, job_path);
   const RuleSet rules = make_rule_set(loaded.job.rules, *loaded.graph, job_path);
+  if (loaded.job.sampler.tree_weight_county != 1.0 && !loaded.graph->has_counties())
+    throw InputError({job_path, 0, "sampler.tree_weight_county"},
+                     "county tree weights need county codes, but the map has none",
+                     "name the county column as map.county, or remove the key");
+  if (loaded.job.sampler.tree_weight_municipality != 1.0 && !loaded.graph->has_municipalities())
+    throw InputError({job_path, 0, "sampler.tree_weight_municipality"},
+                     "municipality tree weights need municipality codes, but the map has none",
+                     "name the municipality column as map.municipality, or remove the key");
   loaded.measures = make_measure_spec(loaded.job.measures, *loaded.graph);
   try {
     (void)MeasureEvaluator(loaded.graph, loaded.job.districts, loaded.measures);

@@ -29,6 +29,13 @@ void read_sampler(Section& top, JobSpec& job) {
   spec.gamma = s.number("gamma", 0.0, 0.0, 10.0);
   spec.beta = s.number("beta", 1.0, 0.0, 1e6);
   spec.balanced_cut_bound = static_cast<std::size_t>(s.integer("balanced_cut_bound", 0, 0, 1'000'000));
+  spec.tree_weight_county = s.number("tree_weight_county", 1.0, 1.0, 1e6);
+  spec.tree_weight_municipality = s.number("tree_weight_municipality", 1.0, 1.0, 1e6);
+  if (spec.kernel == KernelKind::flip)
+    for (const char* key : {"tree_weight_county", "tree_weight_municipality"})
+      if (s.has(key))
+        s.fail(key, "the flip kernel draws no spanning trees, so it has no tree weights",
+               "use kernel = \"recombination\" or \"merge-split\", or remove the key");
   if (spec.burn_in >= spec.steps)
     s.fail("burn_in", "burn_in (" + std::to_string(spec.burn_in) + ") must be below steps (" +
                           std::to_string(spec.steps) + ")", "lower burn_in or raise steps");

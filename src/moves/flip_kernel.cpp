@@ -69,6 +69,7 @@ StepResult FlipKernel::step(ChainState& state, Rng& rng) {
   const DistrictIndex from = plan.district_of(v);
   const std::size_t choices_before = collect_other_districts(plan, v, from);
   const DistrictIndex to = neighbours_[uniform_below(rng, static_cast<std::uint32_t>(choices_before))];
+  if (is_frozen(settings_, from) || is_frozen(settings_, to)) return StepResult::no_cut;
   const std::int64_t pop = plan.graph().population(v);
   if (plan.population(from) - pop < state.rules.population_min() ||
       plan.population(to) + pop > state.rules.population_max())

@@ -5,10 +5,40 @@
 #include <string>
 
 #include "planmill/base/error.hpp"
+#include "planmill/tree/tree_weights.hpp"
 
 namespace planmill {
 
-TreeProposal::TreeProposal(const UnitGraph& graph) : side_(graph.unit_count()), before_(graph.unit_count()) {}
+namespace {
+
+TreeWeights tree_weights(const KernelSettings& settings) {
+  return {settings.county_tree_weight, settings.municipality_tree_weight};
+}
+
+}  // namespace
+
+TreeProposal::TreeProposal(const KernelSettings& settings, const UnitGraph& graph)
+    : side_(graph.unit_count()), before_(graph.unit_count()) {
+  frozen_.frozen = settings.frozen;
+  region_.set_weights(tree_weights(settings));
+}
+
+void TreeProposal::pair_boundary(const Plan& plan, double& edges, double& weight) const noexcept {
+  edges = weight = 0.0;
+  const AdjacencyView adjacency = region_.adjacency();
+  const std::span<const double> w = region_.weights();
+  for (std::uint32_t i = 0; i < region_.size(); ++i) {
+    const DistrictIndex d = plan.district_of(region_.global(i));
+    const auto first = adjacency.offsets()[i];
+    const std::span<const std::uint32_t> neighbors = adjacency.neighbors(i);
+    for (std::size_t t = 0; t < neighbors.size(); ++t) {
+      const std::uint32_t j = neighbors[t];
+      if (j < i || plan.district_of(region_.global(j)) == d) continue;
+      edges += 1.0;
+      weight += w.empty() ? 1.0 : w[first + t];
+    }
+  }
+}
 
 bool TreeProposal::draw(const Plan& plan, Rng& rng) {
   const UnitGraph& g = plan.graph();
@@ -16,6 +46,7 @@ bool TreeProposal::draw(const Plan& plan, Rng& rng) {
   if (e == kNoEdge) return false;
   a_ = plan.district_of(g.edge_first(e));
   b_ = plan.district_of(g.edge_second(e));
+  if (is_frozen(frozen_, a_) || is_frozen(frozen_, b_)) return false;
   if (a_ > b_) std::swap(a_, b_);
   region_.build_from_seeds(plan, g.edge_first(e), g.edge_second(e));
   sampler_.sample(region_, rng);
@@ -46,8 +77,8 @@ void TreeProposal::revert(ChainState& state) {
   }
 }
 
-RecombinationKernel::RecombinationKernel(const KernelSettings&, const UnitGraph& graph, std::size_t)
-    : proposal_(graph) {}
+RecombinationKernel::RecombinationKernel(const KernelSettings& settings, const UnitGraph& graph, std::size_t)
+    : proposal_(settings, graph) {}
 
 StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
   if (!proposal_.draw(state.plan, rng)) return StepResult::no_cut;
@@ -63,7 +94,9 @@ StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
 
 MergeSplitKernel::MergeSplitKernel(const KernelSettings& settings, const UnitGraph& graph,
                                    std::size_t district_count)
-    : settings_(settings), proposal_(graph), log_tau_(district_count, 0.0) {}
+    : settings_(settings), proposal_(settings, graph), log_tau_(district_count, 0.0) {
+  count_region_.set_weights(tree_weights(settings));
+}
 
 UnitIndex TreeProposal::smallest_unit_of(const Plan& plan, DistrictIndex d) const noexcept {
   UnitIndex smallest = static_cast<UnitIndex>(-1);
@@ -104,6 +137,8 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
                          " (with room to spare) and start the run anew");
   const std::uint32_t pick = uniform_below(rng, static_cast<std::uint32_t>(bound));
   if (pick >= cuts.size()) return StepResult::no_cut;
+  double edges_before = 0, weight_before = 0;
+  if (proposal_.weighted()) proposal_.pair_boundary(state.plan, edges_before, weight_before);
   proposal_.apply(state, cuts[pick], rng);
   if (!within_county_limit(state.rules)) {
     proposal_.revert(state);
@@ -112,6 +147,14 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   double log_ratio = -settings_.beta * (state.rules.energy(state.plan) - energy_before);
   if (!settings_.drop_hastings_factor)
     log_ratio += std::log(cut_before) - std::log(static_cast<double>(state.plan.cut_edge_count()));
+  if (proposal_.weighted() && !settings_.drop_hastings_factor && !settings_.drop_tree_weight_factor) {
+    // Weighted trees: the split (A', B') is drawn with chance ∝ w(E(A',B')) τ_w(A')τ_w(B'), and
+    // the pair by a uniform cut edge with chance ∝ |E(A,B)|, so the two no longer cancel:
+    // factor |E(A',B')| w(E(A,B)) / (|E(A,B)| w(E(A',B'))) (docs/kernels.md, "County weights").
+    double edges_after = 0, weight_after = 0;
+    proposal_.pair_boundary(state.plan, edges_after, weight_after);
+    log_ratio += std::log(edges_after) + std::log(weight_before) - std::log(edges_before) - std::log(weight_after);
+  }
   const DistrictIndex a = proposal_.first(), b = proposal_.second();
   double tau_a = 0, tau_b = 0;
   if (settings_.gamma != 1.0) {

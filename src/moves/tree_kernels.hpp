@@ -12,9 +12,12 @@ namespace planmill {
 
 class TreeProposal {
  public:
-  explicit TreeProposal(const UnitGraph& graph);
-  // Merges the districts at a uniform cut edge and draws a uniform spanning tree of their union;
-  // false (and nothing drawn) if the plan has no cut edge.
+  TreeProposal(const KernelSettings& settings, const UnitGraph& graph);
+  // Merges the districts at a uniform cut edge and draws a spanning tree of their union (uniform,
+  // or weighted by the settings' tree weights); false (and nothing drawn) if the plan has no cut
+  // edge.
+  // A pair with a frozen district is not drawn either (false): the step is then a no_cut, which
+  // leaves the kernel's law on the plans with the frozen districts fixed as stated.
   bool draw(const Plan& plan, Rng& rng);
   [[nodiscard]] std::span<const std::uint32_t> balanced_cuts(const RuleTracker& rules);
   // Relabels the merged region: the subtree below `child` gets one of the two labels (by a fair
@@ -27,8 +30,12 @@ class TreeProposal {
   [[nodiscard]] std::size_t region_size() const noexcept { return region_.size(); }
   // The smallest unit of district d within the merged region (d must be one of its two labels).
   [[nodiscard]] UnitIndex smallest_unit_of(const Plan& plan, DistrictIndex d) const noexcept;
+  [[nodiscard]] bool weighted() const noexcept { return !region_.weights().empty(); }
+  // Edges of the merged region whose ends have different labels now, and their total tree weight.
+  void pair_boundary(const Plan& plan, double& edges, double& weight) const noexcept;
 
  private:
+  KernelSettings frozen_;  // only its frozen districts are read
   Region region_;
   SpanningTreeSampler sampler_;
   std::vector<std::uint8_t> side_;

@@ -1,11 +1,13 @@
 #include "planmill/seed/seed_plan.hpp"
 
+#include <algorithm>
 #include <numeric>
 #include <sstream>
 
 #include "planmill/base/error.hpp"
 #include "planmill/tree/region.hpp"
 #include "planmill/tree/spanning_tree.hpp"
+#include "planmill/tree/tree_weights.hpp"
 
 namespace planmill {
 namespace {
@@ -14,6 +16,49 @@ struct Candidate {
   std::uint32_t child;
   bool child_is_district;  // else the side away from the child becomes the district
 };
+
+// Attempt a's tree weights: the first attempt draws uniform trees (so a job whose first plan came
+// that way before still gets it); later ones favour edges inside counties and municipalities more
+// and more, so that districts are cut along their lines and county and town caps can be met.
+TreeWeights attempt_weights(const UnitGraph& graph, std::size_t attempt) {
+  static constexpr double kFactor[] = {1.0, 4.0, 30.0, 300.0};
+  const double f = kFactor[attempt % 4];
+  return {graph.has_counties() ? f : 1.0, graph.has_municipalities() ? f : 1.0};
+}
+
+// Counties (or municipalities) that keep units on both sides when `marks` (the district side when
+// in_district) is cut off the region: how many the cut splits.
+std::size_t codes_cut(const Region& region, const UnitCodes& codes, std::span<const std::uint8_t> marks,
+                      bool in_district, std::vector<std::uint32_t>& inside, std::vector<std::uint32_t>& outside) {
+  std::fill(inside.begin(), inside.end(), 0U);
+  std::fill(outside.begin(), outside.end(), 0U);
+  for (std::uint32_t i = 0; i < region.size(); ++i) {
+    const std::uint32_t c = codes.code[region.global(i)];
+    if (c == UnitCodes::kNone) continue;
+    ++((marks[i] != 0) == in_district ? inside : outside)[c];
+  }
+  std::size_t cut = 0;
+  for (std::size_t c = 0; c < inside.size(); ++c) cut += inside[c] > 0 && outside[c] > 0;
+  return cut;
+}
+
+// Rank of a finished plan that breaks a hard rule: fewer broken rules first, then fewer county
+// splits over the limit.
+struct Miss {
+  std::size_t rules = 0, excess = 0;
+  std::string what;
+  [[nodiscard]] bool better_than(const Miss& o) const { return rules != o.rules ? rules < o.rules : excess < o.excess; }
+};
+
+Miss describe_miss(const Plan& plan, const RuleTracker& tracker) {
+  Miss m;
+  m.what = tracker.describe_violations(plan);
+  m.rules = 1;
+  for (std::size_t at = m.what.find("; "); at != std::string::npos; at = m.what.find("; ", at + 2)) ++m.rules;
+  const auto& limit = tracker.rules().county_splits_max;
+  if (limit && tracker.county_splits() > *limit) m.excess = tracker.county_splits() - *limit;
+  return m;
+}
 
 }  // namespace
 
@@ -32,9 +77,14 @@ Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const Ru
   std::vector<UnitIndex> remaining(n), next;
   std::vector<std::uint8_t> side(n);
   std::vector<Candidate> candidates;
+  std::vector<std::uint32_t> inside(graph.has_counties() ? graph.counties().names.size() : 0), outside(inside);
+  std::size_t balanced_plans = 0;
+  Miss closest;
   for (std::size_t attempt = 0; attempt < effort.restarts; ++attempt) {
     remaining.resize(n);  // a failed attempt may have left it holding only the unsplit rest
     std::iota(remaining.begin(), remaining.end(), UnitIndex{0});
+    const TreeWeights weights = attempt_weights(graph, attempt);
+    region.set_weights(weights);
     bool failed = false;
     for (std::size_t m = districts; m >= 2 && !failed; --m) {
       region.build(graph, remaining);
@@ -55,8 +105,22 @@ Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const Ru
         failed = true;
         break;
       }
-      const Candidate pick = candidates[uniform_below(rng, static_cast<std::uint32_t>(candidates.size()))];
       const std::span<std::uint8_t> marks(side.data(), region.size());
+      Candidate pick = candidates[uniform_below(rng, static_cast<std::uint32_t>(candidates.size()))];
+      if (!weights.trivial() && graph.has_counties()) {
+        // Of a few candidates, the one that cuts the fewest counties (a seed needs no stated law).
+        sampler.mark_side(pick.child, marks);
+        std::size_t fewest = codes_cut(region, graph.counties(), marks, pick.child_is_district, inside, outside);
+        for (int tries = 0; tries < 8 && fewest > 0; ++tries) {
+          const Candidate other = candidates[uniform_below(rng, static_cast<std::uint32_t>(candidates.size()))];
+          sampler.mark_side(other.child, marks);
+          const std::size_t cut = codes_cut(region, graph.counties(), marks, other.child_is_district, inside, outside);
+          if (cut < fewest) {
+            fewest = cut;
+            pick = other;
+          }
+        }
+      }
       sampler.mark_side(pick.child, marks);
       next.clear();
       const auto district = static_cast<DistrictIndex>(districts - m);
@@ -72,12 +136,22 @@ Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const Ru
     Plan plan(handle, districts, label);
     const RuleTracker tracker(plan, rules);
     if (tracker.hard_rules_ok(plan)) return plan;
+    // Every district is connected and within the population bounds: another hard rule failed.
+    const Miss miss = describe_miss(plan, tracker);
+    if (balanced_plans++ == 0 || miss.better_than(closest)) closest = miss;
   }
   std::ostringstream message;
-  message << "no valid starting plan found for " << districts << " districts within +/-"
-          << 100.0 * rules.population_tolerance << "% after " << effort.restarts << " attempts of up to "
-          << effort.trees_per_split << " spanning trees per split; loosen rules.population_tolerance or "
-          << "county_splits_max, or give a plan file as districts.start";
+  message << "no valid starting plan found for " << districts << " districts after " << effort.restarts
+          << " attempts of up to " << effort.trees_per_split << " spanning trees per split: ";
+  if (balanced_plans == 0) {
+    message << "no attempt could cut every district within +/-" << 100.0 * rules.population_tolerance
+            << "% of the ideal population; loosen rules.population_tolerance";
+  } else {
+    message << balanced_plans << " of them met the population band (+/-" << 100.0 * rules.population_tolerance
+            << "%) but broke another hard rule; the closest: " << closest.what
+            << "; loosen that rule";
+  }
+  message << ", or give a plan file as districts.start";
   throw InfeasibleError(message.str());
 }
 

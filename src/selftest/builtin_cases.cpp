@@ -18,7 +18,8 @@ std::shared_ptr<const UnitGraph> grid(std::size_t width, std::size_t height) {
 }
 
 // Eleven units of unequal population: a 3x3 block with one diagonal, a pendant pair and a
-// triangle, and two counties, so that county splits and unequal sizes matter.
+// triangle, two counties and three municipalities (two units in none), so that county splits,
+// tree weights and unequal sizes matter.
 std::shared_ptr<const UnitGraph> irregular() {
   UnitGraphBuilder b;
   const std::int64_t pop[] = {3, 1, 2, 2, 4, 1, 1, 2, 3, 2, 1};
@@ -30,6 +31,11 @@ std::shared_ptr<const UnitGraph> irregular() {
   counties.names = {"west", "east"};
   counties.code = {0, 0, 1, 0, 0, 1, 0, 1, 1, 1, 1};
   b.set_counties(counties);
+  UnitCodes towns;
+  towns.names = {"north", "south", "harbour"};
+  constexpr std::uint32_t none = UnitCodes::kNone;
+  towns.code = {0, 0, 1, 0, none, 1, 2, 2, 1, none, 1};
+  b.set_municipalities(towns);
   return std::make_shared<const UnitGraph>(std::move(b).build());
 }
 
@@ -67,6 +73,22 @@ std::vector<SelftestCase> builtin_selftest_cases(bool quick) {
   counties.rules.county_splits_weight = 0.7;
   counties.rules.county_splits_max = 2;
   cases.push_back(counties);
+  // County-weighted trees: gamma 0 checks the Hastings factor alone (the target stays uniform,
+  // the proposal does not), gamma 1 the weighted spanning-tree law prod tau_w(P_i).
+  auto county_trees = make("irregular into 3, county trees x3, uniform", odd, 3, 0.35, KernelKind::merge_split,
+                           0.0, 0.0, 0);
+  county_trees.kernel.county_tree_weight = 3.0;
+  cases.push_back(county_trees);
+  auto county_law = make("irregular into 3, county trees x4, weighted tree law", odd, 3, 0.35,
+                         KernelKind::merge_split, 1.0, 0.5, 0);
+  county_law.kernel.county_tree_weight = 4.0;
+  county_law.rules.county_splits_weight = 0.5;
+  cases.push_back(county_law);
+  auto town_law = make("irregular into 3, county x2 and town x3 trees, gamma 0.5", odd, 3, 0.35,
+                       KernelKind::merge_split, 0.5, 0.0, 0);
+  town_law.kernel.county_tree_weight = 2.0;
+  town_law.kernel.municipality_tree_weight = 3.0;
+  cases.push_back(town_law);
   cases.push_back(make("4x4 grid into 2 of 7-9, uniform", g4, 2, 0.125, KernelKind::flip, 0.0, 0.0, 0));
   auto flip_cut = make("3x4 grid into 3, cut edges", g3x4, 3, 0.25, KernelKind::flip, 0.0, 0.5, 0);
   flip_cut.rules.cut_edges_weight = 1.0;
@@ -76,6 +98,29 @@ std::vector<SelftestCase> builtin_selftest_cases(bool quick) {
   cases.push_back(flip_odd);
   cases.push_back(make("4x4 grid into 4", g4, 4, 0.0, KernelKind::recombination, 0.0, 0.0, 2));
   cases.push_back(make("irregular into 3", odd, 3, 0.35, KernelKind::recombination, 0.0, 0.0, 2));
+  auto county_recom = make("irregular into 3, county trees x4", odd, 3, 0.35, KernelKind::recombination, 0.0, 0.0, 2);
+  county_recom.kernel.county_tree_weight = 4.0;
+  cases.push_back(county_recom);
+  // Frozen districts: the law of the rest, with the frozen district's units fixed as in the start.
+  std::vector<DistrictIndex> squares(16), rows(12);  // rows: units 0-3, 4-7, 8-11 (grid 3 wide)
+  for (UnitIndex u = 0; u < 16; ++u) squares[u] = static_cast<DistrictIndex>((u / 8) * 2 + (u % 4) / 2);
+  for (UnitIndex u = 0; u < 12; ++u) rows[u] = static_cast<DistrictIndex>(u / 4);
+  auto frozen_tree = make("4x4 grid into 4, top-left square frozen, spanning-tree law", g4, 4, 0.0,
+                          KernelKind::merge_split, 1.0, 0.0, 0);
+  frozen_tree.kernel.balanced_cut_bound = 1;
+  frozen_tree.kernel.frozen = {1, 0, 0, 0};
+  frozen_tree.start = squares;
+  cases.push_back(frozen_tree);
+  auto frozen_flip = make("3x4 grid into 3, first four units frozen, cut edges", g3x4, 3, 0.25, KernelKind::flip, 0.0, 0.5, 0);
+  frozen_flip.rules.cut_edges_weight = 1.0;
+  frozen_flip.kernel.frozen = {1, 0, 0};
+  frozen_flip.start = rows;
+  cases.push_back(frozen_flip);
+  auto frozen_recom = make("4x4 grid into 4, top-left square frozen", g4, 4, 0.0, KernelKind::recombination, 0.0,
+                           0.0, 2);
+  frozen_recom.kernel.frozen = {1, 0, 0, 0};
+  frozen_recom.start = squares;
+  cases.push_back(frozen_recom);
   for (auto& c : cases) c.samples = quick ? 10000 : 100000;
   return cases;
 }

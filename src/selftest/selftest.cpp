@@ -1,6 +1,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <stdexcept>
 #include <unordered_map>
 
 #include "planmill/base/error.hpp"
@@ -28,6 +29,7 @@ void canonical_key(std::span<const DistrictIndex> labels, std::vector<DistrictIn
 
 double log_target(const Plan& plan, const RuleTracker& rules, const KernelSettings& kernel, TreeCounter& counter,
                   Region& region) {
+  // Region carries the kernel's tree weights (set once in run_selftest), so tau is tau_w.
   double log_weight = 0.0;
   if (kernel.kind == KernelKind::merge_split && kernel.gamma != 0.0)
     for (DistrictIndex d = 0; d < plan.district_count(); ++d) {
@@ -49,11 +51,31 @@ Plan start_plan(const GraphHandle& graph, std::size_t k, const RuleSet& rules, R
   }
 }
 
+// True when every frozen district of `start` is a district of `labels`, unit for unit.
+bool keeps_frozen(std::span<const DistrictIndex> labels, const SelftestCase& test) {
+  for (DistrictIndex d = 0; d < test.kernel.frozen.size(); ++d) {
+    if (!test.kernel.frozen[d]) continue;
+    DistrictIndex as = kNoDistrict;
+    std::size_t inside = 0, labelled = 0;
+    for (std::size_t u = 0; u < labels.size(); ++u) {
+      if (test.start[u] != d) continue;
+      if (as == kNoDistrict) as = labels[u];
+      if (labels[u] != as) return false;
+      ++inside;
+    }
+    for (const DistrictIndex l : labels) labelled += l == as;
+    if (labelled != inside) return false;
+  }
+  return true;
+}
+
 }  // namespace
 
 SelftestResult run_selftest(const SelftestCase& test) {
   const UnitGraph& graph = *test.graph;
   const std::size_t k = test.districts;
+  if (!test.kernel.frozen.empty() && test.start.size() != graph.unit_count())
+    throw std::invalid_argument("run_selftest: frozen districts need a start plan of every unit");
   SelftestResult result;
   result.name = test.name;
   result.kernel = kernel_name(test.kernel.kind);
@@ -74,10 +96,11 @@ SelftestResult run_selftest(const SelftestCase& test) {
   std::string key;
   TreeCounter counter;
   Region region;
+  region.set_weights({test.kernel.county_tree_weight, test.kernel.municipality_tree_weight});
   for_each_plan(graph, k, bounds.population_min(), bounds.population_max(), [&](std::span<const DistrictIndex> labels) {
     Plan plan(test.graph, k, std::vector<DistrictIndex>(labels.begin(), labels.end()));
     const RuleTracker rules(plan, test.rules);
-    if (!rules.hard_rules_ok(plan)) return;
+    if (!rules.hard_rules_ok(plan) || !keeps_frozen(labels, test)) return;
     if (log_weights.size() == kSelftestMaxPlans)
       throw InputError({test.name, 0, ""},
                        "more than " + std::to_string(kSelftestMaxPlans) +
@@ -104,7 +127,8 @@ SelftestResult run_selftest(const SelftestCase& test) {
   // run that picks the interval is part of the burn-in).
   Rng seed_rng = make_stream(test.seed, 1'000'003);
   ChainSetup setup{test.graph, test.rules, test.kernel, test.seed, 0};
-  Chain chain(setup, start_plan(test.graph, k, test.rules, seed_rng, result.plans.front().plan));
+  Chain chain(setup, test.start.empty() ? start_plan(test.graph, k, test.rules, seed_rng, result.plans.front().plan)
+                                       : Plan(test.graph, k, test.start));
   std::uint64_t thin = test.thin;
   if (thin == 0) {
     constexpr std::uint64_t pilot = 20000;

@@ -68,12 +68,16 @@ void Region::fill_adjacency(const UnitGraph& graph) {
   offsets_.clear();
   adjacency_.clear();
   population_.clear();
+  weight_.clear();
+  const bool weighted = !tree_weights_.trivial();
   total_population_ = 0;
   offsets_.push_back(0);
   for (const UnitIndex u : global_) {
     for (const UnitIndex w : graph.neighbors(u)) {
       const std::uint32_t local = local_[w];
-      if (local != kNotInRegion) adjacency_.push_back(local);
+      if (local == kNotInRegion) continue;
+      adjacency_.push_back(local);
+      if (weighted) weight_.push_back(tree_weights_.weight(graph, u, w));
     }
     offsets_.push_back(adjacency_.size());
     const std::int64_t pop = graph.population(u);
@@ -86,7 +90,7 @@ std::size_t Region::capacity_bytes() const noexcept {
   return local_.capacity() * sizeof(std::uint32_t) + global_.capacity() * sizeof(UnitIndex) +
          offsets_.capacity() * sizeof(AdjacencyView::Offset) +
          adjacency_.capacity() * sizeof(std::uint32_t) +
-         population_.capacity() * sizeof(std::int64_t);
+         population_.capacity() * sizeof(std::int64_t) + weight_.capacity() * sizeof(double);
 }
 
 }  // namespace planmill

@@ -27,6 +27,17 @@ bool connected(AdjacencyView graph, std::vector<std::uint8_t>& seen,
   return queue.size() == n;
 }
 
+// Index k with probability w[k] / sum(w): one uniform draw scanned against the running sum (the
+// last entry takes what rounding leaves over).
+std::size_t weighted_pick(std::span<const double> w, Rng& rng) {
+  double total = 0.0;
+  for (const double x : w) total += x;
+  double r = uniform01(rng) * total;
+  std::size_t k = 0;
+  while (k + 1 < w.size() && r >= w[k]) r -= w[k++];
+  return k;
+}
+
 }  // namespace
 
 void SpanningTreeSampler::sample(const Region& region, Rng& rng) {
@@ -35,15 +46,17 @@ void SpanningTreeSampler::sample(const Region& region, Rng& rng) {
 }
 
 void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t root) {
-  sample(region.adjacency(), region.populations(), rng, root);
+  sample(region.adjacency(), region.populations(), rng, root, region.weights());
 }
 
 void SpanningTreeSampler::sample(AdjacencyView graph, std::span<const std::int64_t> population,
-                                 Rng& rng, std::uint32_t root) {
+                                 Rng& rng, std::uint32_t root, std::span<const double> weights) {
   const auto n = static_cast<std::uint32_t>(graph.vertex_count());
   if (population.size() != n)
     throw std::invalid_argument("SpanningTreeSampler: not one population per vertex");
   if (root >= n) throw std::invalid_argument("SpanningTreeSampler: root outside the region");
+  if (!weights.empty() && weights.size() != graph.entry_count())
+    throw std::invalid_argument("SpanningTreeSampler: not one weight per adjacency entry");
   // A walk on a disconnected region would never end; the check costs one BFS.
   if (!connected(graph, in_tree_, queue_)) {
     throw std::invalid_argument("SpanningTreeSampler: region is not connected");
@@ -62,8 +75,9 @@ void SpanningTreeSampler::sample(AdjacencyView graph, std::span<const std::int64
     std::uint32_t u = start;
     while (!in_tree_[u]) {
       const std::span<const std::uint32_t> neighbors = graph.neighbors(u);
-      const std::uint32_t step =
-          neighbors[uniform_below(rng, static_cast<std::uint32_t>(neighbors.size()))];
+      const std::uint32_t step = weights.empty()
+          ? neighbors[uniform_below(rng, static_cast<std::uint32_t>(neighbors.size()))]
+          : neighbors[weighted_pick(weights.subspan(graph.offsets()[u], neighbors.size()), rng)];
       next_[u] = step;
       u = step;
       ++steps;

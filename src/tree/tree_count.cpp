@@ -12,6 +12,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <stdexcept>
 
 namespace planmill {
 namespace {
@@ -36,7 +37,7 @@ void grow_with_headroom(std::vector<T>& v, std::size_t size) {
 
 std::size_t TreeCounter::capacity_bytes() const noexcept {
   return bytes(order_) + bytes(position_) + bytes(queue_) + bytes(level_) + bytes(upper_start_) +
-         bytes(upper_row_) + bytes(parent_) + bytes(ancestor_) + bytes(mark_) + bytes(stack_) +
+         bytes(upper_row_) + bytes(upper_weight_) + bytes(degree_) + bytes(parent_) + bytes(ancestor_) + bytes(mark_) + bytes(stack_) +
          bytes(row_start_) + bytes(row_pattern_) + bytes(column_start_) + bytes(column_next_) +
          bytes(l_row_) + bytes(l_value_) + bytes(work_);
 }
@@ -108,7 +109,7 @@ bool TreeCounter::order_vertices(AdjacencyView graph) {
   return true;
 }
 
-double TreeCounter::log_count(AdjacencyView graph) {
+double TreeCounter::log_count(AdjacencyView graph, std::span<const double> weights) {
   const auto n = static_cast<std::uint32_t>(graph.vertex_count());
   factor_entries_ = 0;
   if (n == 0) return kMinusInfinity;
@@ -117,6 +118,8 @@ double TreeCounter::log_count(AdjacencyView graph) {
   // still factor with a tiny pivot.
   if (!order_vertices(graph)) return kMinusInfinity;
 
+  if (!weights.empty() && weights.size() != graph.entry_count())
+    throw std::invalid_argument("TreeCounter: not one weight per adjacency entry");
   // Reduced Laplacian: drop the vertex ordered last (the Cuthill-McKee root), keep the rest in
   // their order. Column j of the strict upper triangle holds the earlier neighbours of order_[j].
   const std::uint32_t m = n - 1;
@@ -124,13 +127,26 @@ double TreeCounter::log_count(AdjacencyView graph) {
   for (std::uint32_t k = 0; k < n; ++k) position_[order_[k]] = k;
   upper_start_.resize(m + 1);
   upper_row_.resize(graph.entry_count());
+  upper_weight_.resize(graph.entry_count());
+  degree_.resize(m);
+  const bool weighted = !weights.empty();
   std::uint32_t entries = 0;
   for (std::uint32_t j = 0; j < m; ++j) {
     upper_start_[j] = entries;
-    for (const std::uint32_t w : graph.neighbors(order_[j])) {
-      const std::uint32_t i = position_[w];
-      if (i < j) upper_row_[entries++] = i;
+    const std::uint32_t v = order_[j];
+    const auto first = graph.offsets()[v];
+    const std::span<const std::uint32_t> neighbors = graph.neighbors(v);
+    double degree = 0.0;
+    for (std::size_t t = 0; t < neighbors.size(); ++t) {
+      const double w = weighted ? weights[first + t] : 1.0;
+      degree += w;
+      const std::uint32_t i = position_[neighbors[t]];
+      if (i < j) {
+        upper_weight_[entries] = w;
+        upper_row_[entries++] = i;
+      }
     }
+    degree_[j] = degree;
   }
   upper_start_[m] = entries;
 
@@ -187,10 +203,9 @@ double TreeCounter::log_count(AdjacencyView graph) {
   work_.assign(m, 0.0);
   double log_det = 0.0;
   for (std::uint32_t k = 0; k < m; ++k) {
-    const std::uint32_t v = order_[k];
-    double d = static_cast<double>(graph.degree(v));
+    double d = degree_[k];
     for (std::uint32_t p = upper_start_[k]; p < upper_start_[k + 1]; ++p)
-      work_[upper_row_[p]] -= 1.0;
+      work_[upper_row_[p]] -= upper_weight_[p];
     for (std::uint32_t t = row_start_[k]; t < row_start_[k + 1]; ++t) {
       const std::uint32_t i = row_pattern_[t];
       const double l_ki = work_[i] / l_value_[column_start_[i]];

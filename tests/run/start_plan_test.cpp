@@ -37,14 +37,14 @@ int run(int ranks, const fs::path& job, const fs::path& out, const fs::path& log
 // The job's [sampler] body replaced, districts.start pointing at `plan` and districts.starts set
 // to `starts` (left out when empty).
 void rewrite_job(const fs::path& job, const std::string& sampler, const fs::path& plan,
-                 const std::string& starts = "given") {
+                 const std::string& starts = "given", const std::string& more_districts = "") {
   std::string text = read_text(job);
   text = text.substr(0, text.find("[sampler]"));
   const std::string count_line = "count = 4\n";
   const auto at = text.find(count_line);
   ASSERT_NE(at, std::string::npos);
   text = text.substr(0, at + count_line.size()) + "start = \"" + plan.string() + "\"\n" +
-         (starts.empty() ? "" : "starts = \"" + starts + "\"\n") + text.substr(text.find("[rules]"));
+         (starts.empty() ? "" : "starts = \"" + starts + "\"\n") + more_districts + text.substr(text.find("[rules]"));
   std::ofstream(job, std::ios::trunc) << text << "[sampler]\n" << sampler << "\n";
 }
 
@@ -149,6 +149,40 @@ TEST_F(StartPlan, DiagnoseCautionsWhenEveryChainStartedFromOnePlan) {
   rewrite_job(job_, "kernel = \"recombination\"\nchains = 2\nsteps = 20\nseed = 4\n", plan_, "mixed");
   ASSERT_EQ(run(1, job_, dir_ / "mixed", dir_ / "mixed.log"), 0) << read_text(dir_ / "mixed.log");
   EXPECT_EQ(diagnose(dir_ / "mixed").find(caution), std::string::npos);
+}
+
+// districts.frozen: the frozen district's units keep their district in every recorded plan of
+// every chain, while the other districts do change; without starts = "given" the job is refused.
+TEST_F(StartPlan, FrozenDistrictsNeverChangeInAnyRecordedPlan) {
+  const std::vector<DistrictIndex> given = labels_in_file(plan_, job_.parent_path() / "units.csv");
+  ASSERT_EQ(given.size(), 200U);
+  for (const std::string kernel : {"recombination", "merge-split", "flip"}) {
+    SCOPED_TRACE(kernel);
+    rewrite_job(job_, "kernel = \"" + kernel + "\"\nchains = 2\nsteps = 300\nseed = 5\n", plan_, "given",
+                "frozen = [2]\n");
+    const fs::path out = dir_ / ("frozen-" + kernel), log = dir_ / ("frozen-" + kernel + ".log");
+    ASSERT_EQ(run(2, job_, out, log), 0) << read_text(log);
+    RunReader reader(out.string());
+    std::size_t plans = 0, moved = 0, broken = 0;
+    for (std::uint64_t chain = 0; chain < 2; ++chain)
+      reader.for_each_plan(chain, 0, reader.record_count(chain) - 1,
+                           [&](std::uint64_t, std::span<const DistrictIndex> labels) {
+                             ++plans;
+                             bool changed = false;
+                             for (std::size_t u = 0; u < labels.size(); ++u) {
+                               if ((given[u] == 1) != (labels[u] == 1)) ++broken;
+                               changed = changed || labels[u] != given[u];
+                             }
+                             moved += changed;
+                           });
+    EXPECT_EQ(plans, 600U);
+    EXPECT_EQ(broken, 0U) << "units entered or left the frozen district";
+    EXPECT_GT(moved, 0U) << "the other districts never moved: the test would prove nothing";
+  }
+  rewrite_job(job_, "kernel = \"flip\"\nchains = 2\nsteps = 10\n", plan_, "mixed", "frozen = [2]\n");
+  const fs::path log = dir_ / "frozen-mixed.log";
+  EXPECT_EQ(shell(std::string(PLANMILL_BINARY) + " check " + job_.string() + " >" + log.string() + " 2>&1"), 2);
+  EXPECT_NE(read_text(log).find("districts.frozen"), std::string::npos) << read_text(log);
 }
 
 }  // namespace

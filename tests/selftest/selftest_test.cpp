@@ -79,6 +79,32 @@ TEST(SelftestTargets, TwoHalvesOfTheFourByFourGrid) {
   EXPECT_NEAR(expectation(run_selftest(uniform), uniform.graph, 2), 264.0 / 35.0, 1e-9);
 }
 
+TEST(SelftestTargets, WeightedTreeLawOnDominoTilingsMatchesAHandWorkedValue) {
+  // Hand-worked: the 2x3 grid into three districts of 2 is a domino tiling: three vertical
+  // dominoes, or one vertical and two horizontal stacked on the left or the right. With the two
+  // rows as counties and county tree weight 2, a horizontal domino has tau_w = 2, a vertical one
+  // tau_w = 1, so under gamma = 1 the weights are 1, 4, 4 and P(three vertical) = 1/9.
+  SelftestCase c;
+  test::GraphExtras rows;
+  rows.county = {0, 0, 0, 1, 1, 1};
+  c.graph = std::make_shared<const UnitGraph>(test::grid(2, 3, rows));
+  c.districts = 3;
+  c.rules.population_tolerance = 0.0;
+  c.kernel.kind = KernelKind::merge_split;
+  c.kernel.gamma = 1.0;
+  c.kernel.beta = 0.0;
+  c.kernel.county_tree_weight = 2.0;
+  c.samples = 20000;
+  const auto r = run_selftest(c);
+  ASSERT_EQ(r.valid_plans, 3u);
+  for (const auto& p : r.plans) {
+    if (p.plan == "abcabc") EXPECT_NEAR(p.exact, 1.0 / 9.0, 1e-12);
+    else if (p.plan == "abbacc" || p.plan == "aabccb") EXPECT_NEAR(p.exact, 4.0 / 9.0, 1e-12);
+    else ADD_FAILURE() << "unexpected plan " << p.plan;
+  }
+  EXPECT_TRUE(r.passed) << "TV " << r.total_variation << " p " << r.p_value;
+}
+
 class BuiltinCase : public ::testing::TestWithParam<std::size_t> {};
 
 TEST_P(BuiltinCase, PassesAgainstExactEnumeration) {
@@ -100,6 +126,23 @@ TEST(SelftestPower, MergeSplitWithoutTheCutRatioFails) {
   c.kernel.drop_hastings_factor = true;
   const auto r = run_selftest(c);
   EXPECT_FALSE(r.passed) << "TV " << r.total_variation << " p " << r.p_value;
+}
+
+// Four 2x2 counties on the 4x4 grid, county tree weight 5, uniform target: the weighted-tree
+// factor |E(A',B')| w(E(A,B)) / (|E(A,B)| w(E(A',B'))) left out must be seen.
+TEST(SelftestPower, WeightedMergeSplitWithoutTheTreeWeightFactorFails) {
+  auto c = grid_case(4, 0.0, KernelKind::merge_split, 0.0, 0.0);
+  test::GraphExtras x;
+  x.county = test::block_codes(4, 4, 2, 2);
+  c.graph = std::make_shared<const UnitGraph>(test::grid(4, 4, x));
+  c.kernel.county_tree_weight = 5.0;
+  const auto right = run_selftest(c);
+  EXPECT_TRUE(right.passed) << "TV " << right.total_variation << " p " << right.p_value;
+  c.kernel.drop_tree_weight_factor = true;
+  const auto wrong = run_selftest(c);
+  EXPECT_FALSE(wrong.passed) << "TV " << wrong.total_variation << " p " << wrong.p_value;
+  RecordProperty("tv_with_factor", std::to_string(right.total_variation));
+  RecordProperty("tv_without_factor", std::to_string(wrong.total_variation));
 }
 
 TEST(SelftestPower, FlipWithoutTheMoveCountRatioFails) {

@@ -92,6 +92,33 @@ TEST(NoAllocation, TreeCountsAfterWarmUpOnTheLargestRegion) {
   EXPECT_TRUE(std::isfinite(sum));  // every region was connected and counted
 }
 
+TEST(NoAllocation, WeightedTreesAndCountsAfterWarmUp) {
+  // County-weighted regions (four 6x6 counties on a 12x12 grid): build, draw, count, repeatedly.
+  GraphExtras x;
+  x.county = block_codes(12, 12, 6, 6);
+  const GraphHandle g_handle = share_graph(grid(12, 12, x));
+  std::vector<DistrictIndex> d(144);
+  for (std::size_t u = 0; u < 144; ++u) d[u] = static_cast<DistrictIndex>(2 * (u / 72) + (u % 12) / 6);
+  const Plan plan(g_handle, 4, d);
+  Region region;
+  region.set_weights({5.0, 1.0});
+  SpanningTreeSampler sampler;
+  TreeCounter counter;
+  Rng rng = make_stream(83, 0);
+  region.build(plan, 0, 1);
+  sampler.sample(region, rng);
+  double sum = counter.log_count(region);
+  const std::size_t before = planmill::test::allocations();
+  for (int i = 0; i < 100; ++i) {
+    region.build(plan, static_cast<DistrictIndex>(2 * (i % 2)), static_cast<DistrictIndex>(2 * (i % 2) + 1));
+    sampler.sample(region, rng);
+    sum += counter.log_count(region);
+  }
+  EXPECT_EQ(planmill::test::allocations() - before, 0U);
+  EXPECT_FALSE(region.weights().empty());  // the weighted paths ran
+  EXPECT_TRUE(std::isfinite(sum));
+}
+
 TEST(NoAllocation, CounterSeesAllocations) {
   // The counter itself works (otherwise the test above proves nothing).
   const std::size_t before = planmill::test::allocations();

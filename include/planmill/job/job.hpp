@@ -37,6 +37,9 @@ struct SamplerSpec {
   double gamma = 0.0;  // merge-split target exponent on spanning-tree counts
   double beta = 1.0;   // inverse temperature on the energy
   std::size_t balanced_cut_bound = 0;  // merge-split M; 0 = |U| - 1 (always exact)
+  // Weight of a spanning-tree edge inside one county / one municipality (1 = none; tree kernels).
+  double tree_weight_county = 1.0;
+  double tree_weight_municipality = 1.0;
 };
 
 // [tempering] (docs/tempering.md): each chain of the run becomes a ladder of replicas at inverse
@@ -94,6 +97,7 @@ struct JobSpec {
   std::size_t districts = 0;
   std::string start = "random";  // or a resolved plan CSV path
   ChainStarts starts = ChainStarts::mixed;  // with a start plan; without one, every chain is random
+  std::vector<std::size_t> frozen;  // districts.frozen: start-plan districts (1..k) kept as given
   RulesSpec rules;
   SamplerSpec sampler;
   TemperingSpec tempering;

@@ -11,6 +11,12 @@ namespace planmill {
   settings.gamma = job.sampler.gamma;
   settings.beta = job.sampler.beta;
   settings.balanced_cut_bound = job.sampler.balanced_cut_bound;
+  settings.county_tree_weight = job.sampler.tree_weight_county;
+  settings.municipality_tree_weight = job.sampler.tree_weight_municipality;
+  if (!job.frozen.empty()) {
+    settings.frozen.assign(job.districts, 0);
+    for (const std::size_t d : job.frozen) settings.frozen[d - 1] = 1;
+  }
   return settings;
 }
 

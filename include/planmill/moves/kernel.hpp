@@ -7,10 +7,13 @@
 //                  stationary law has no known closed form and is not the spanning-tree law.
 //   merge-split    the same proposal with a Metropolis-Hastings correction, so that the chain
 //                  targets pi(P) ~ prod_i tau(P_i)^gamma * exp(-beta * E(P)) over valid plans.
+//                  With county (municipality) tree weights both draw weighted trees, and tau is
+//                  the weighted tree count tau_w.
 //   flip           move one boundary unit to a neighbouring district, Metropolis-Hastings
 //                  corrected for the varying number of possible moves; targets exp(-beta E(P)).
 #include <cstdint>
 #include <memory>
+#include <vector>
 
 #include "planmill/base/random.hpp"
 #include "planmill/moves/kernel_kind.hpp"
@@ -43,9 +46,20 @@ struct KernelSettings {
   // Merge-split: M, the bound on balanced edges of a tree. 0 = |U| - 1, always exact. A tree with
   // more balanced edges than M is an error, never silently capped.
   std::size_t balanced_cut_bound = 0;
+  // Recombination and merge-split: the weight a spanning tree gives an edge inside one county
+  // (one municipality), planmill/tree/tree_weights.hpp; 1 = no preference. Merge-split then
+  // targets prod tau_w(P_i)^gamma * exp(-beta E(P)) with the weighted tree counts tau_w.
+  double county_tree_weight = 1.0;
+  double municipality_tree_weight = 1.0;
   // For tests only: leave out the Hastings factor (merge-split: cut(P)/cut(P'); flip: the ratio of
   // move counts), so that tests can show the self-test turns red on a wrong acceptance ratio.
   bool drop_hastings_factor = false;
+  // Frozen districts (docs/kernels.md, "Frozen districts"): frozen[d] != 0 keeps district d as
+  // it is; a proposal that would change it is a no_cut. Empty: none frozen.
+  std::vector<std::uint8_t> frozen;
+  // For tests only: leave out merge-split's weighted-tree factor alone (docs/kernels.md, "County
+  // weights"), to show the self-test sees it.
+  bool drop_tree_weight_factor = false;
 };
 
 // The county-split limit, the one hard rule a tree cut or flip can break besides contiguity.
@@ -65,6 +79,10 @@ class Kernel {
   // rungs). Allocates nothing; recombination ignores beta.
   virtual void set_beta(double beta) noexcept = 0;
 };
+
+[[nodiscard]] inline bool is_frozen(const KernelSettings& settings, DistrictIndex d) noexcept {
+  return d < settings.frozen.size() && settings.frozen[d] != 0;
+}
 
 [[nodiscard]] std::unique_ptr<Kernel> make_kernel(const KernelSettings& settings, const UnitGraph& graph,
                                                   std::size_t district_count);

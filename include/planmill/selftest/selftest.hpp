@@ -2,6 +2,8 @@
 // The exact self-test: run a kernel on a small map, and compare the empirical law of the visited
 // plans with the exact target computed by enumerating every valid plan.
 //   merge-split: pi(P) ~ prod tau(P_i)^gamma * exp(-beta E(P));  flip: pi(P) ~ exp(-beta E(P)).
+//   With frozen districts: the same laws restricted to the plans whose frozen districts are
+//   those of the case's start plan.
 //   recombination: no closed-form law, so: every visited plan is valid and every valid plan is
 //   reached.
 #include <memory>
@@ -23,6 +25,9 @@ struct SelftestCase {
   // proposals are accepted between records (recorded plans then nearly independent).
   std::uint64_t thin = 0;
   std::uint64_t seed = 1;
+  // Start plan (a label per unit), or empty for a random seed plan. Needed when the kernel has
+  // frozen districts: the exact law is then over the plans that keep those districts as here.
+  std::vector<DistrictIndex> start;
 };
 
 struct PlanFrequency {

@@ -12,6 +12,7 @@
 #include "planmill/graph/adjacency.hpp"
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/plan/plan.hpp"
+#include "planmill/tree/tree_weights.hpp"
 
 namespace planmill {
 
@@ -55,6 +56,13 @@ class Region {
     return population_[local];
   }
   [[nodiscard]] std::span<const std::int64_t> populations() const noexcept { return population_; }
+
+  // Edge weights for the builds that follow (trees drawn and counted on the region use them).
+  // With trivial weights (the default) weights() is empty and every edge weighs 1.
+  void set_weights(const TreeWeights& weights) noexcept { tree_weights_ = weights; }
+  [[nodiscard]] const TreeWeights& tree_weights() const noexcept { return tree_weights_; }
+  // One weight per entry of adjacency().targets(), or empty when every edge weighs 1.
+  [[nodiscard]] std::span<const double> weights() const noexcept { return weight_; }
   [[nodiscard]] std::int64_t total_population() const noexcept { return total_population_; }
 
   // Bytes reserved by the buffers (for tests that check nothing grows).
@@ -70,6 +78,8 @@ class Region {
   std::vector<AdjacencyView::Offset> offsets_;
   std::vector<std::uint32_t> adjacency_;
   std::vector<std::int64_t> population_;
+  std::vector<double> weight_;
+  TreeWeights tree_weights_;
   std::int64_t total_population_ = 0;
 };
 

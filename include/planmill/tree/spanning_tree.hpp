@@ -1,12 +1,15 @@
 #pragma once
-// SpanningTreeSampler: exactly uniform spanning trees of a Region by Wilson's algorithm
-// (loop-erased random walks into the growing tree; Wilson, STOC 1996), plus what a
+// SpanningTreeSampler: exactly uniform (or weighted) spanning trees of a Region by Wilson's
+// algorithm (loop-erased random walks into the growing tree; Wilson, STOC 1996), plus what a
 // recombination step needs from the tree: subtree populations, the balanced cut edges, and
 // the vertex set on one side of a cut.
 //
 // Promises: the tree is uniform over all spanning trees of the region for the root drawn
 // uniformly by sample(region, rng) and for any fixed root given to sample(region, rng, root)
-// (the law of the tree does not depend on the root). The region must be connected (merged
+// (the law of the tree does not depend on the root). A region with edge weights (Region::weights(),
+// tree_weights.hpp) is walked with steps in proportion to the weights, which draws a tree T with
+// probability prod_{e in T} w(e) / tau_w (Wilson 1996; Propp and Wilson 1998), again for any root.
+// The region must be connected (merged
 // districts are); otherwise sample() throws std::invalid_argument. Once the buffers have grown to
 // the largest region seen, nothing here allocates.
 #include <cstdint>
@@ -26,9 +29,10 @@ class SpanningTreeSampler {
 
   void sample(const Region& region, Rng& rng);  // root uniform over the region's vertices
   void sample(const Region& region, Rng& rng, std::uint32_t root);
-  // The same on any graph: its adjacency and a population per vertex.
+  // The same on any graph: its adjacency, a population per vertex, and a weight per adjacency
+  // entry (both directions of an edge the same; empty: every edge weighs 1).
   void sample(AdjacencyView graph, std::span<const std::int64_t> population, Rng& rng,
-              std::uint32_t root);
+              std::uint32_t root, std::span<const double> weights = {});
 
   [[nodiscard]] std::uint32_t size() const noexcept {
     return static_cast<std::uint32_t>(parent_.size());
