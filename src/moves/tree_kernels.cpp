@@ -54,7 +54,7 @@ StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
   const auto cuts = proposal_.balanced_cuts(state.rules);
   if (cuts.empty()) return StepResult::no_cut;
   proposal_.apply(state, cuts[uniform_below(rng, static_cast<std::uint32_t>(cuts.size()))], rng);
-  if (!within_county_limit(state.rules)) {
+  if (!state.rules.limits_ok(state.plan)) {
     proposal_.revert(state);
     return StepResult::invalid;
   }
@@ -105,7 +105,7 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   const std::uint32_t pick = uniform_below(rng, static_cast<std::uint32_t>(bound));
   if (pick >= cuts.size()) return StepResult::no_cut;
   proposal_.apply(state, cuts[pick], rng);
-  if (!within_county_limit(state.rules)) {
+  if (!state.rules.limits_ok(state.plan)) {
     proposal_.revert(state);
     return StepResult::invalid;
   }
