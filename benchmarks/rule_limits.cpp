@@ -9,7 +9,6 @@
 // BM_FlipStep/<v>: whole flip steps with (1) and without (0) the range rule.
 //   build/benchmarks/bench_rule_limits --benchmark_min_time=2
 #include <benchmark/benchmark.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <filesystem>
@@ -17,34 +16,15 @@
 #include <vector>
 
 #include "planmill/chain/chain.hpp"
-#include "planmill/graph/load.hpp"
-#include "planmill/job/job.hpp"
-#include "planmill/seed/seed_plan.hpp"
-#include "planmill/synth/synth.hpp"
+#include "synth_state.hpp"
 
 namespace {
 
 using namespace planmill;
 
-struct State {
-  GraphHandle graph;
-  std::vector<DistrictIndex> start;
-};
-
-const State& benchmark_state() {
-  static const std::unique_ptr<State> state = [] {
-    const auto dir = std::filesystem::temp_directory_path() / ("planmill_bench_limits_" + std::to_string(getpid()));
-    (void)write_synthetic_state({10000, 100, 7, dir.string()});
-    JobSpec job = load_job((dir / "job.toml").string());
-    GraphHandle graph = share_graph(load_unit_graph(job.map));
-    std::filesystem::remove_all(dir);
-    RuleSet rules;
-    rules.population_tolerance = 0.05;
-    Rng rng = make_stream(7, 99);
-    const Plan start = random_seed_plan(graph, 100, rules, rng);
-    return std::make_unique<State>(State{graph, {start.assignment().begin(), start.assignment().end()}});
-  }();
-  return *state;
+const bench::SynthState& benchmark_state() {
+  static const bench::SynthState state = bench::make_synth_state("limits");
+  return state;
 }
 
 RuleSet limits(int variant) {
@@ -60,9 +40,9 @@ RuleSet limits(int variant) {
 }
 
 void BM_MoveAndCheck(benchmark::State& bench) {
-  const State& s = benchmark_state();
+  const auto& s = benchmark_state();
   const int variant = static_cast<int>(bench.range(0));
-  Plan plan(s.graph, 100, s.start);
+  Plan plan = s.start;
   RuleTracker tracker(plan, limits(variant == 2 ? 0 : variant));
   Rng rng = make_stream(7, 5);
   const auto n = static_cast<std::uint32_t>(plan.unit_count());
@@ -92,13 +72,13 @@ void BM_MoveAndCheck(benchmark::State& bench) {
 }
 
 void BM_FlipStep(benchmark::State& bench) {
-  const State& s = benchmark_state();
+  const auto& s = benchmark_state();
   ChainSetup setup;
   setup.graph = s.graph;
   setup.rules = limits(static_cast<int>(bench.range(0)));
   setup.rules.cut_edges_weight = 0.5;
   setup.kernel.kind = KernelKind::flip;
-  Chain chain(setup, Plan(s.graph, 100, s.start));
+  Chain chain(setup, s.start);
   for (int i = 0; i < 2000; ++i) chain.step();
   for (auto _ : bench) benchmark::DoNotOptimize(chain.step());
 }

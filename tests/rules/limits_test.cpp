@@ -14,6 +14,7 @@
 #include "planmill/enumerate/enumerate.hpp"
 #include "planmill/plan/plan.hpp"
 #include "planmill/rules/rules.hpp"
+#include "limits_map.hpp"
 #include "small_graphs.hpp"
 
 namespace planmill {
@@ -66,16 +67,7 @@ std::int64_t naive_spread(const Plan& plan) {
   return *hi - *lo;
 }
 
-// A 3x4 grid of unequal populations, two counties of 3x2, three towns (two units in none), a group.
-GraphHandle small_map() {
-  test::GraphExtras x;
-  x.population = {2, 1, 3, 1, 1, 2, 2, 3, 3, 1, 1, 4};
-  x.county = test::block_codes(3, 4, 3, 2);
-  x.municipality = {0, 0, 1, 1, 0, 0, 1, 1, UnitCodes::kNone, 2, 2, UnitCodes::kNone};
-  x.counts = {{"grp", {2, 0, 0, 1, 1, 2, 0, 0, 3, 1, 0, 0}}};
-  x.groups = {0};
-  return share_graph(test::grid(3, 4, x));
-}
+GraphHandle small_map() { return test::limits_map(); }
 
 std::string key_of(std::span<const DistrictIndex> labels, std::size_t k) {
   std::vector<DistrictIndex> map(k, kNoDistrict);
@@ -230,6 +222,28 @@ TEST(RuleLimits, BreachesNameTheKeyAndTheAmount) {
   EXPECT_NE(breaches[2].text.find("m0 meets 2"), std::string::npos) << breaches[2].text;
   const std::string all = t.describe_violations(plan);
   for (const auto& b : breaches) EXPECT_NE(all.find(b.text), std::string::npos);
+}
+
+}  // namespace
+}  // namespace planmill
+
+namespace planmill {
+namespace {
+
+// A hard floor on districts at a group share reads the group column as surely as a weight does,
+// so the manifest's rules_read_group_columns (run/observables.cpp) must say so for both.
+TEST(RuleLimits, HardGroupTermsCountAsReadingGroupColumns) {
+  RuleSet rules;
+  EXPECT_FALSE(rules.reads_group_columns());
+  rules.county_pieces_max = 3;
+  rules.population_range_max = 0.1;
+  EXPECT_FALSE(rules.reads_group_columns());
+  EXPECT_FALSE(rules.has_soft_terms());
+  rules.group_share = {{0, 0.5, 0.0, 1, std::nullopt}};
+  EXPECT_TRUE(rules.reads_group_columns());
+  EXPECT_FALSE(rules.has_soft_terms());
+  rules.group_share[0].weight = 0.3;
+  EXPECT_TRUE(rules.has_soft_terms());
 }
 
 }  // namespace

@@ -5,21 +5,13 @@
 #include <gtest/gtest.h>
 
 #include "planmill/selftest/selftest.hpp"
+#include "limits_map.hpp"
 #include "small_graphs.hpp"
 
 namespace planmill {
 namespace {
 
-// A 3x4 grid of unequal populations, two counties of 3x2, three towns (two units in none), a group.
-GraphHandle small_map() {
-  test::GraphExtras x;
-  x.population = {2, 1, 3, 1, 1, 2, 2, 3, 3, 1, 1, 4};
-  x.county = test::block_codes(3, 4, 3, 2);
-  x.municipality = {0, 0, 1, 1, 0, 0, 1, 1, UnitCodes::kNone, 2, 2, UnitCodes::kNone};
-  x.counts = {{"grp", {2, 0, 0, 1, 1, 2, 0, 0, 3, 1, 0, 0}}};
-  x.groups = {0};
-  return share_graph(test::grid(3, 4, x));
-}
+GraphHandle small_map() { return test::limits_map(); }
 
 SelftestCase limited(KernelKind kind, double gamma, double beta) {
   SelftestCase c;
