@@ -27,32 +27,17 @@
 #include "planmill/synth/synth.hpp"
 #include "planmill/tree/region.hpp"
 #include "planmill/tree/tree_count.hpp"
+#include "synth_state.hpp"
 
 namespace {
 
 using namespace planmill;
 
-struct State {
-  GraphHandle graph;
-  Plan start;
-};
+using State = bench::SynthState;
 
 const State& benchmark_state() {
-  static const std::unique_ptr<State> state = [] {
-    const auto dir = std::filesystem::temp_directory_path() / ("planmill_bench_kernels_" + std::to_string(getpid()));
-    (void)write_synthetic_state({10000, 100, 7, dir.string()});
-    JobSpec job = load_job((dir / "job.toml").string());
-    GraphHandle graph = share_graph(load_unit_graph(job.map));
-    std::filesystem::remove_all(dir);
-    RuleSet rules;
-    rules.population_tolerance = 0.05;
-    Rng rng = make_stream(7, 99);
-    Plan start = random_seed_plan(graph, 100, rules, rng);
-    auto s = std::make_unique<State>(State{std::move(graph), start});
-    s->start = Plan(s->graph, 100, std::vector<DistrictIndex>(start.assignment().begin(), start.assignment().end()));
-    return s;
-  }();
-  return *state;
+  static const State state = bench::make_synth_state("kernels");
+  return state;
 }
 
 void run_kernel(benchmark::State& bench, KernelKind kind, double gamma, double cut_weight) {

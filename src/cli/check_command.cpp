@@ -4,7 +4,9 @@
 #include <string>
 
 #include "cli/commands.hpp"
+#include "planmill/job/job_rules.hpp"
 #include "planmill/job/loaded_job.hpp"
+#include "planmill/rules/rules.hpp"
 
 namespace planmill::cli {
 
@@ -28,6 +30,17 @@ int run_check(const std::string& job_path) {
     std::printf("zero-pop     %zu units\n", loaded.report.zero_population_units);
   std::printf("count cols   %zu (%zu groups, %zu elections)\n", g.count_column_count(), g.group_columns().size(),
               g.elections().size());
+  const RuleSet rules = make_rule_set(loaded.job.rules, g, loaded.job.path);
+  for (const std::string& limit : describe_limits(rules, g)) std::printf("rule         %s\n", limit.c_str());
+  if (rules.reads_group_columns()) {
+    std::string columns;
+    for (const GroupShareTerm& t : rules.group_share)
+      if (columns.find("'" + g.count_column_name(t.column) + "'") == std::string::npos)
+        columns += (columns.empty() ? "'" : ", '") + g.count_column_name(t.column) + "'";
+    std::printf("group-blind  no: rules.group_share reads the group column%s %s, so the ensemble depends on "
+                "group data and is no race-blind baseline (the manifest records this)\n",
+                columns.find(',') == std::string::npos ? "" : "s", columns.c_str());
+  }
   std::printf("start        %s\n", loaded.start ? loaded.job.start.c_str() : "random seed plans");
   std::printf("kernel       %s, %zu chains x %llu steps\n", kernel_name(loaded.job.sampler.kernel),
               loaded.job.sampler.chains, static_cast<unsigned long long>(loaded.job.sampler.steps));

@@ -124,8 +124,26 @@ const std::string& caution() {
   return text;
 }
 
+std::string band_note(double plan_deviation, double plan_range, double tolerance, double range_allowed) {
+  const bool deviation_loose = tolerance > 0.0 && 2.0 * plan_deviation <= tolerance;
+  const bool range_loose = range_allowed > 0.0 && 2.0 * plan_range <= range_allowed;
+  if (!deviation_loose && !range_loose) return "";
+  const auto pct = [](double x) { return number_text(100.0 * x, 3) + "%"; };
+  const double factor = deviation_loose ? tolerance / std::max(plan_deviation, 1e-12)
+                                        : range_allowed / std::max(plan_range, 1e-12);
+  return "The ensemble's population band is much looser than the plan's: the run allows every district within "
+         "+/-" + pct(tolerance) + " of the ideal and an overall range up to " + pct(range_allowed) +
+         ", but the plan's largest deviation is " + pct(plan_deviation) + " and its overall range " + pct(plan_range) +
+         " (" + (factor >= 1e6 ? std::string("over a million") : number_text(factor, 3)) +
+         " times looser). Measures that move with population balance are compared with plans its drafters "
+         "could not have drawn; for a like-for-like baseline run with rules.population_tolerance near " +
+         number_text(std::max(plan_deviation, 1e-6), 3) + " (or rules.population_range_max near " +
+         number_text(std::max(plan_range, 1e-6), 3) + ").";
+}
+
 std::vector<std::string> summary(const CompareReport& r) {
   std::vector<std::string> lines;
+  if (!r.population_band.empty()) lines.push_back(r.population_band);
   if (r.declared.empty()) {
     lines.push_back(
         "The job declares no measures in advance ([compare] declared), so the summary gives only the "

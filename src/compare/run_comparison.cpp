@@ -131,6 +131,18 @@ CompareReport compare_plan_with_run(const DiagnosedRun& run, const CompareOption
     r.warnings.push_back(std::string("the plan breaks a hard rule of the run, so the ensemble holds no plan like it: ") +
                          e.what());
   }
+  {
+    const double ideal = plan.ideal_population();
+    std::int64_t low = plan.population(0), high = low;
+    for (DistrictIndex district = 1; district < plan.district_count(); ++district) {
+      low = std::min(low, plan.population(district));
+      high = std::max(high, plan.population(district));
+    }
+    const double allowed = std::min(2.0 * rules.population_tolerance, rules.population_range_max.value_or(2.0));
+    r.population_band = band_note(plan.max_population_deviation(), static_cast<double>(high - low) / ideal,
+                                  rules.population_tolerance, allowed);
+    if (!r.population_band.empty()) r.warnings.push_back(r.population_band);
+  }
   const MeasureSpec measure_spec = make_measure_spec(job.measures, *graph);
   const PlanValues values = measure_plan(plan, graph, rules, measure_spec);
   r.outlier = outlier_test(reader, job, plan, problems, declared,

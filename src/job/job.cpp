@@ -85,6 +85,7 @@ JobSpec parse_job_text(std::string_view text, const std::string& source) {
 
   read_rules(top, job);
   read_sampler(top, job);
+  job_file::check_weights_honoured(top, job);
   read_measures(top, job);
 
   if (const toml::table* out = top.table("output")) {

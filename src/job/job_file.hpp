@@ -166,5 +166,6 @@ void read_rules(Section& top, JobSpec& job);
 void read_measures(Section& top, JobSpec& job);  // after read_map: names are checked against [map]
 void read_sampler(Section& top, JobSpec& job);
 void read_tempering(Section& top, JobSpec& job);  // after read_sampler
+void check_weights_honoured(Section& top, const JobSpec& job);  // after read_rules and read_sampler
 
 }  // namespace planmill::job_file

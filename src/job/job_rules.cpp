@@ -1,6 +1,7 @@
 #include "planmill/job/job_rules.hpp"
 
 #include <optional>
+#include <utility>
 
 #include "planmill/base/error.hpp"
 
@@ -12,14 +13,31 @@ RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::
     throw InputError({job_file, 0, "rules.population_tolerance"}, "must lie in [0, 1)",
                      "give the allowed deviation as a fraction, e.g. 0.05 for 5%");
   rules.population_tolerance = spec.population_tolerance;
-  if (spec.county_splits_max >= 0)
-    rules.county_splits_max = static_cast<std::size_t>(spec.county_splits_max);
+  const auto limit = [](std::int64_t value) {
+    return value >= 0 ? std::optional<std::size_t>(static_cast<std::size_t>(value)) : std::nullopt;
+  };
+  if (spec.population_range_max >= 0.0) rules.population_range_max = spec.population_range_max;
+  rules.county_splits_max = limit(spec.county_splits_max);
+  rules.county_pieces_max = limit(spec.county_pieces_max);
+  rules.county_districts_max = limit(spec.county_districts_max);
+  rules.municipality_splits_max = limit(spec.municipality_splits_max);
+  rules.municipality_pieces_max = limit(spec.municipality_pieces_max);
+  rules.municipality_districts_max = limit(spec.municipality_districts_max);
   rules.cut_edges_weight = spec.cut_edges_weight;
   rules.county_splits_weight = spec.county_splits_weight;
   const char* remedy = "name the county column as map.county, or drop the county rules";
-  if (rules.county_splits_max && !graph.has_counties())
-    throw InputError({job_file, 0, "rules.county_splits_max"},
-                     "a county-split limit needs county codes, but the map has none", remedy);
+  for (const auto& [key, set] : {std::pair{"rules.county_splits_max", rules.county_splits_max.has_value()},
+                                 std::pair{"rules.county_pieces_max", rules.county_pieces_max.has_value()},
+                                 std::pair{"rules.county_districts_max", rules.county_districts_max.has_value()}})
+    if (set && !graph.has_counties())
+      throw InputError({job_file, 0, key}, "a county limit needs county codes, but the map has none", remedy);
+  for (const auto& [key, set] :
+       {std::pair{"rules.municipality_splits_max", rules.municipality_splits_max.has_value()},
+        std::pair{"rules.municipality_pieces_max", rules.municipality_pieces_max.has_value()},
+        std::pair{"rules.municipality_districts_max", rules.municipality_districts_max.has_value()}})
+    if (set && !graph.has_municipalities())
+      throw InputError({job_file, 0, key}, "a municipality limit needs municipality codes, but the map has none",
+                       "name the municipality column as map.municipality, or drop the municipality rules");
   if (rules.county_splits_weight != 0.0 && !graph.has_counties())
     throw InputError({job_file, 0, "rules.weights.county_splits"},
                      "a county-split weight needs county codes, but the map has none", remedy);
@@ -33,7 +51,10 @@ RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::
       throw InputError({job_file, 0, "rules.group_share"},
                        "threshold of group '" + g.group + "' is outside [0, 1]",
                        "give the share as a fraction, e.g. 0.5");
-    rules.group_share.push_back({*column, g.threshold, g.weight});
+    GroupShareTerm term{*column, g.threshold, g.weight};
+    term.at_least = limit(g.at_least);
+    term.at_most = limit(g.at_most);
+    rules.group_share.push_back(term);
   }
   return rules;
 }

@@ -18,7 +18,25 @@ void read_rules(Section& top, JobSpec& job) {
     rules.fail("population_deviation", "is now called population_tolerance",
                "rename the key; a plan's measured deviation is the observable population_deviation");
   r.population_tolerance = rules.number("population_tolerance", r.population_tolerance, 0.0, 1.0);
+  if (rules.has("population_range_max"))
+    r.population_range_max = rules.number("population_range_max", -1.0, 0.0, 2.0);
   r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
+  r.county_pieces_max = rules.integer("county_pieces_max", -1, 0, 1'000'000);
+  r.county_districts_max = rules.integer("county_districts_max", -1, 1, 65'534);
+  r.municipality_splits_max = rules.integer("municipality_splits_max", -1, 0, 1'000'000);
+  r.municipality_pieces_max = rules.integer("municipality_pieces_max", -1, 0, 1'000'000);
+  r.municipality_districts_max = rules.integer("municipality_districts_max", -1, 1, 65'534);
+  const auto needs = [&](const std::string& column, const char* kind) {
+    for (const char* suffix : {"_splits_max", "_pieces_max", "_districts_max"}) {
+      const std::string key = std::string(kind) + suffix;
+      if (rules.has(key) && column.empty())
+        rules.fail(key, std::string("a ") + kind + " limit needs " + kind + " codes, but [map] names no " + kind +
+                            " column",
+                   std::string("set map.") + kind + ", or remove the key");
+    }
+  };
+  needs(job.map.county_column, "county");
+  needs(job.map.municipality_column, "municipality");
   if (const toml::table* w = rules.table("weights")) {
     Section weights(*w, "rules.weights", job.path);
     r.cut_edges_weight = weights.number("cut_edges", 0.0, -1e6, 1e6);
@@ -34,7 +52,17 @@ void read_rules(Section& top, JobSpec& job) {
       GroupShareSpec spec;
       spec.group = g.string("group", "", true);
       spec.threshold = g.number("threshold", 0.5, 0.0, 1.0);
-      spec.weight = g.number("weight", 0.0, -1e6, 1e6, true);
+      spec.weight = g.number("weight", 0.0, -1e6, 1e6);
+      spec.at_least = g.integer("at_least", -1, 0, 65'534);
+      spec.at_most = g.integer("at_most", -1, 0, 65'534);
+      if (spec.weight == 0.0 && spec.at_least < 0 && spec.at_most < 0)
+        g.fail("group", "the term for '" + spec.group + "' has no weight, at_least or at_most, so it does nothing",
+               "give a weight (soft), or at_least / at_most (hard), or remove the section");
+      if (spec.at_least >= 0 && spec.at_most >= 0 && spec.at_least > spec.at_most)
+        g.fail("at_least", "is above at_most, so no plan can meet the term", "lower at_least or raise at_most");
+      if (spec.at_least > static_cast<std::int64_t>(job.districts))
+        g.fail("at_least", "asks for more districts than the plan has (" + std::to_string(job.districts) + ")",
+               "lower at_least");
       bool listed = false;
       for (const auto& name : job.map.group_columns) listed |= name == spec.group;
       if (!listed) g.fail("group", "'" + spec.group + "' is not listed in map.groups", "add it there or fix the name");
@@ -43,6 +71,32 @@ void read_rules(Section& top, JobSpec& job) {
     }
   }
   rules.reject_unknown();
+}
+
+// A weight changes the target law exp(-beta J), so a kernel without a
+// target (recombination) would drop it silently; refuse it and name the kernels that honour it.
+void check_weights_honoured(Section& top, const JobSpec& job) {
+  if (job.sampler.kernel != KernelKind::recombination) return;
+  const toml::table* table = top.table("rules");
+  if (!table) return;
+  Section rules(*table, "rules", job.path);
+  const std::string problem =
+      "a soft weight, but sampler.kernel recombination has no target law and cannot honour it";
+  const std::string remedy =
+      "set sampler.kernel to \"merge-split\" or \"flip\" (they weigh plans by exp(-beta * energy)), or remove the weight";
+  if (const toml::table* w = rules.table("weights")) {
+    Section weights(*w, "rules.weights", job.path);
+    if (job.rules.cut_edges_weight != 0.0) weights.fail("cut_edges", problem, remedy);
+    if (job.rules.county_splits_weight != 0.0)
+      weights.fail("county_splits", problem, remedy);
+  }
+  if (const toml::node* node = rules.get("group_share"))
+    for (const toml::node& item : *node->as_array()) {
+      Section g(*item.as_table(), "rules.group_share", job.path);
+      const toml::node* weight = item.as_table()->get("weight");
+      if (weight && weight->value_or(0.0) != 0.0)
+        g.fail("weight", problem + " (a hard at_least / at_most is kept by every kernel)", remedy);
+    }
 }
 
 // [measures]: names are checked against [map] here, where the line of each key is known.

@@ -252,7 +252,8 @@ MeasureEvaluator::MeasureEvaluator(GraphHandle graph, std::size_t district_count
     vector_names_.push_back("group." + group.name + ".sorted_shares");
   }
   scalar_names_.insert(scalar_names_.end(), {"compactness.cut_edges", "compactness.polsby_popper_min",
-                                             "compactness.polsby_popper_mean"});
+                                             "compactness.polsby_popper_mean", "population.max_deviation",
+                                             "population.overall_range"});
   if (spec_.county_splits) {
     if (!g.has_counties()) throw std::invalid_argument("measures: county splits asked for, the map has no counties");
     scalar_names_.insert(scalar_names_.end(), {"splits.counties_split", "splits.county_pieces"});
@@ -328,6 +329,15 @@ void MeasureEvaluator::evaluate(const Plan& plan, SplitSources splits) noexcept 
   }
   *out++ = pp_min;
   *out++ = pp_mean;
+  // Both over the ideal total / k: max |pop - ideal| and (largest - smallest).
+  std::int64_t low = plan.population(0), high = low;
+  for (DistrictIndex d = 1; d < k; ++d) {
+    low = std::min(low, plan.population(d));
+    high = std::max(high, plan.population(d));
+  }
+  const double ideal = plan.ideal_population();
+  *out++ = plan.max_population_deviation();
+  *out++ = ideal > 0 ? static_cast<double>(high - low) / ideal : kNaN;
   const auto put_splits = [&out, &plan](const SplitTally* given, SplitTally& own) {
     const SplitTally* tally = given;
     if (tally == nullptr || !tally->tracking()) {

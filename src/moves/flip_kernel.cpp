@@ -77,7 +77,7 @@ StepResult FlipKernel::step(ChainState& state, Rng& rng) {
   const double energy_before = state.rules.energy(plan);
   move(state, v, to);
   // The chain's plans are valid, so `from` was connected with v: the check may start next to v.
-  if (!plan.is_connected_without(from, v) || !within_county_limit(state.rules)) {
+  if (!plan.is_connected_without(from, v) || !state.rules.limits_ok(plan)) {
     move(state, v, from);
     return StepResult::invalid;
   }

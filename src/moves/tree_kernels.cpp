@@ -85,7 +85,7 @@ StepResult RecombinationKernel::step(ChainState& state, Rng& rng) {
   const auto cuts = proposal_.balanced_cuts(state.rules);
   if (cuts.empty()) return StepResult::no_cut;
   proposal_.apply(state, cuts[uniform_below(rng, static_cast<std::uint32_t>(cuts.size()))], rng);
-  if (!within_county_limit(state.rules)) {
+  if (!state.rules.limits_ok(state.plan)) {
     proposal_.revert(state);
     return StepResult::invalid;
   }
@@ -140,7 +140,7 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   double edges_before = 0, weight_before = 0;
   if (proposal_.weighted()) proposal_.pair_boundary(state.plan, edges_before, weight_before);
   proposal_.apply(state, cuts[pick], rng);
-  if (!within_county_limit(state.rules)) {
+  if (!state.rules.limits_ok(state.plan)) {
     proposal_.revert(state);
     return StepResult::invalid;
   }

@@ -27,15 +27,22 @@ void SplitTally::reset(const Plan& plan) {
   if (code_ == nullptr) return;
   units_.assign(districts_met_.size() * k_, 0);
   std::fill(districts_met_.begin(), districts_met_.end(), 0U);
-  split_ = pieces_ = 0;
+  split_ = pieces_ = over_ = 0;
   for (UnitIndex u = 0; u < plan.unit_count(); ++u) {
     const std::uint32_t c = code_[u];
     if (c == UnitCodes::kNone) continue;
     if (units_[c * k_ + plan.district_of(u)]++ == 0) {
       ++pieces_;
       if (++districts_met_[c] == 2) ++split_;
+      if (districts_met_[c] == over_at_) ++over_;
     }
   }
+}
+
+void SplitTally::set_district_limit(std::size_t districts) noexcept {
+  over_at_ = std::uint64_t{districts} + 1;
+  over_ = 0;
+  for (const std::uint32_t met : districts_met_) over_ += met >= over_at_ ? 1 : 0;
 }
 
 }  // namespace planmill

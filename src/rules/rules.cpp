@@ -54,6 +54,18 @@ PopulationBounds population_bounds(std::int64_t total_population, std::size_t di
   return {static_cast<std::int64_t>(std::ceil(low)), static_cast<std::int64_t>(std::floor(high))};
 }
 
+std::int64_t population_spread_max(std::int64_t total_population, std::size_t district_count, double range) {
+  const long double ideal =
+      static_cast<long double>(total_population) / static_cast<long double>(district_count);
+  return static_cast<std::int64_t>(std::floor(snap(static_cast<long double>(range) * ideal)));
+}
+
+bool RuleSet::has_soft_terms() const noexcept {
+  bool any = cut_edges_weight != 0.0 || county_splits_weight != 0.0;
+  for (const GroupShareTerm& t : group_share) any |= t.weight != 0.0;
+  return any;
+}
+
 RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
     : rules_(rules), k_(plan.district_count()) {
   const UnitGraph& g = plan.graph();
@@ -64,13 +76,26 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
       throw std::invalid_argument("group-share term names count column " +
                                   std::to_string(t.column) +
                                   ", the map has " + std::to_string(g.count_column_count()));
-  const bool county_rules = rules_.county_splits_max.has_value() || rules_.county_splits_weight != 0.0;
+  const bool county_rules = rules_.county_splits_max || rules_.county_pieces_max || rules_.county_districts_max ||
+                            rules_.county_splits_weight != 0.0;
   if (county_rules && !g.has_counties())
     throw std::invalid_argument("county rules need county codes, the map has none");
+  const bool town_rules =
+      rules_.municipality_splits_max || rules_.municipality_pieces_max || rules_.municipality_districts_max;
+  if (town_rules && !g.has_municipalities())
+    throw std::invalid_argument("municipality rules need municipality codes, the map has none");
+  if (rules_.county_districts_max == std::size_t{0} || rules_.municipality_districts_max == std::size_t{0})
+    throw std::invalid_argument("an area meets at least one district: the districts-per-area limit must be >= 1");
+  if (rules_.population_range_max && !(*rules_.population_range_max >= 0.0))
+    throw std::invalid_argument("the overall population range must be >= 0");
   // Split counts are cheap, an observable and a measure, so keep them whenever the map has codes.
   if (g.has_counties()) counties_ = SplitTally(plan, g.counties());
   if (g.has_municipalities()) municipalities_ = SplitTally(plan, g.municipalities());
+  if (rules_.county_districts_max) counties_.set_district_limit(*rules_.county_districts_max);
+  if (rules_.municipality_districts_max) municipalities_.set_district_limit(*rules_.municipality_districts_max);
   bounds_ = population_bounds(g.total_population(), k_, rules_.population_tolerance);
+  if (rules_.population_range_max)
+    spread_max_ = population_spread_max(g.total_population(), k_, *rules_.population_range_max);
   reset(plan);
 }
 
@@ -80,6 +105,33 @@ void RuleTracker::reset(const Plan& plan) {
   group_met_.assign(rules_.group_share.size() * k_, 0);
   group_met_count_.assign(rules_.group_share.size(), 0);
   for (DistrictIndex d = 0; d < k_; ++d) update_group_terms(plan, d);
+  spread_stale_ = true;
+}
+
+std::int64_t RuleTracker::population_spread(const Plan& plan) const noexcept {
+  if (spread_stale_ || !rules_.population_range_max) {
+    low_d_ = high_d_ = 0;
+    for (DistrictIndex d = 1; d < k_; ++d) {
+      if (plan.population(d) < plan.population(low_d_)) low_d_ = d;
+      if (plan.population(d) > plan.population(high_d_)) high_d_ = d;
+    }
+    low_ = plan.population(low_d_);
+    high_ = plan.population(high_d_);
+    spread_stale_ = false;
+  }
+  return high_ - low_;
+}
+
+void RuleTracker::update_spread(const Plan& plan, DistrictIndex from, DistrictIndex to) noexcept {
+  if (spread_stale_) return;
+  // `from` lost people and `to` gained them: the extremes stay known unless the largest district
+  // shrank or the smallest grew.
+  if (from == high_d_ || to == low_d_) {
+    spread_stale_ = true;
+    return;
+  }
+  if (plan.population(from) < low_) low_ = plan.population(low_d_ = from);
+  if (plan.population(to) > high_) high_ = plan.population(high_d_ = to);
 }
 
 bool RuleTracker::meets(const Plan& plan, const GroupShareTerm& term, DistrictIndex d) noexcept {
@@ -107,6 +159,7 @@ void RuleTracker::move(Plan& plan, UnitIndex u, DistrictIndex to) noexcept {
   municipalities_.move(u, from, to);
   update_group_terms(plan, from);
   update_group_terms(plan, to);
+  if (rules_.population_range_max) update_spread(plan, from, to);
 }
 
 void RuleTracker::assign(Plan& plan, std::span<const UnitIndex> units,
@@ -123,10 +176,28 @@ double RuleTracker::energy(const Plan& plan) const noexcept {
   return j;
 }
 
+bool RuleTracker::limits_ok(const Plan& plan) const noexcept {
+  const auto within = [](const std::optional<std::size_t>& limit, std::size_t value) {
+    return !limit || value <= *limit;
+  };
+  if (!within(rules_.county_splits_max, counties_.split()) || !within(rules_.county_pieces_max, counties_.pieces()) ||
+      counties_.over_limit() > 0)
+    return false;
+  if (!within(rules_.municipality_splits_max, municipalities_.split()) ||
+      !within(rules_.municipality_pieces_max, municipalities_.pieces()) || municipalities_.over_limit() > 0)
+    return false;
+  for (std::size_t t = 0; t < rules_.group_share.size(); ++t) {
+    const GroupShareTerm& term = rules_.group_share[t];
+    if ((term.at_least && group_met_count_[t] < *term.at_least) || !within(term.at_most, group_met_count_[t]))
+      return false;
+  }
+  return !rules_.population_range_max || population_spread(plan) <= spread_max_;
+}
+
 bool RuleTracker::hard_rules_ok(const Plan& plan) const noexcept {
   for (DistrictIndex d = 0; d < k_; ++d)
     if (!population_ok(plan, d)) return false;
-  return !rules_.county_splits_max || counties_.split() <= *rules_.county_splits_max;
+  return limits_ok(plan);
 }
 
 std::vector<PopulationBreach> population_breaches(const Plan& plan, PopulationBounds bounds) {
@@ -149,6 +220,103 @@ std::string describe_population_breach(const PopulationBreach& breach, Populatio
                             : "above the upper bound " + with_commas(bounds.max));
 }
 
+namespace {
+
+std::string over(std::size_t value, std::size_t limit) {
+  return " (" + std::to_string(value - limit) + " over)";
+}
+
+// Breaches of the split, piece and per-area caps on one kind of area.
+void split_breaches(const SplitTally& tally, const UnitCodes* codes, const std::string& kind, const std::string& plural,
+                    const std::optional<std::size_t>& splits, const std::optional<std::size_t>& pieces,
+                    const std::optional<std::size_t>& districts, std::vector<RuleTracker::Breach>& out) {
+  if (splits && tally.split() > *splits)
+    out.push_back({"rules." + kind + "_splits_max", std::to_string(tally.split()) + " " + plural +
+                                                        " are split, the limit is " + std::to_string(*splits) +
+                                                        over(tally.split(), *splits)});
+  if (pieces && tally.pieces() > *pieces)
+    out.push_back({"rules." + kind + "_pieces_max", std::to_string(tally.pieces()) + " " + kind +
+                                                        " pieces, the limit is " + std::to_string(*pieces) +
+                                                        over(tally.pieces(), *pieces)});
+  if (districts && tally.over_limit() > 0) {
+    std::string named;
+    std::size_t listed = 0;
+    for (std::uint32_t c = 0; c < tally.code_count(); ++c) {
+      if (tally.districts_meeting(c) <= *districts) continue;
+      if (++listed > 5) {
+        named += ", ...";
+        break;
+      }
+      const std::string name = codes && c < codes->names.size() ? codes->names[c] : std::to_string(c);
+      named += (listed > 1 ? ", " : "") + name + " meets " + std::to_string(tally.districts_meeting(c));
+    }
+    out.push_back({"rules." + kind + "_districts_max",
+                   std::to_string(tally.over_limit()) + " " + plural + " meet more than " + std::to_string(*districts) +
+                       " districts (" + named + ")"});
+  }
+}
+
+}  // namespace
+
+std::vector<std::string> describe_limits(const RuleSet& rules, const UnitGraph& graph) {
+  std::vector<std::string> out;
+  if (rules.population_range_max)
+    out.push_back("overall population range at most " + percent(*rules.population_range_max).substr(1) +
+                  " of the ideal");
+  const auto caps = [&out](const char* kind, const char* plural, const std::optional<std::size_t>& splits,
+                           const std::optional<std::size_t>& pieces, const std::optional<std::size_t>& districts) {
+    if (splits) out.push_back("at most " + std::to_string(*splits) + " " + plural + " split");
+    if (pieces) out.push_back("at most " + std::to_string(*pieces) + " " + kind + " pieces");
+    if (districts) out.push_back("no " + std::string(kind) + " in more than " + std::to_string(*districts) + " districts");
+  };
+  caps("county", "counties", rules.county_splits_max, rules.county_pieces_max, rules.county_districts_max);
+  caps("municipality", "municipalities", rules.municipality_splits_max, rules.municipality_pieces_max,
+       rules.municipality_districts_max);
+  for (const GroupShareTerm& t : rules.group_share) {
+    if (!t.at_least && !t.at_most) continue;
+    char share[32];
+    std::snprintf(share, sizeof share, "%g", t.threshold);
+    std::string bound = t.at_least && t.at_most ? std::to_string(*t.at_least) + " to " + std::to_string(*t.at_most)
+                        : t.at_least           ? "at least " + std::to_string(*t.at_least)
+                                               : "at most " + std::to_string(*t.at_most);
+    out.push_back(bound + " districts with a " + graph.count_column_name(t.column) + " share of at least " + share);
+  }
+  return out;
+}
+
+std::vector<RuleTracker::Breach> RuleTracker::limit_breaches(const Plan& plan) const {
+  std::vector<Breach> out;
+  const UnitGraph& g = plan.graph();
+  if (rules_.population_range_max && population_spread(plan) > spread_max_) {
+    const double ideal = plan.ideal_population();
+    out.push_back({"rules.population_range_max",
+                   "overall population range " + with_commas(population_spread(plan)) + " (" +
+                       percent(static_cast<double>(population_spread(plan)) / ideal).substr(1) +
+                       " of ideal) between the largest and the smallest district, the limit is " +
+                       with_commas(spread_max_) + " (" + percent(*rules_.population_range_max).substr(1) + ")"});
+  }
+  split_breaches(counties_, g.has_counties() ? &g.counties() : nullptr, "county", "counties", rules_.county_splits_max,
+                 rules_.county_pieces_max, rules_.county_districts_max, out);
+  split_breaches(municipalities_, g.has_municipalities() ? &g.municipalities() : nullptr, "municipality",
+                 "municipalities", rules_.municipality_splits_max, rules_.municipality_pieces_max,
+                 rules_.municipality_districts_max, out);
+  for (std::size_t t = 0; t < rules_.group_share.size(); ++t) {
+    const GroupShareTerm& term = rules_.group_share[t];
+    const std::size_t met = group_met_count_[t];
+    char share[32];
+    std::snprintf(share, sizeof share, "%g", term.threshold);
+    const std::string what = std::to_string(met) + " districts have a " + g.count_column_name(term.column) +
+                             " share of at least " + share;
+    if (term.at_least && met < *term.at_least)
+      out.push_back({"rules.group_share.at_least", what + ", at least " + std::to_string(*term.at_least) +
+                                                       " must (" + std::to_string(*term.at_least - met) + " short)"});
+    if (term.at_most && met > *term.at_most)
+      out.push_back({"rules.group_share.at_most",
+                     what + ", at most " + std::to_string(*term.at_most) + " may" + over(met, *term.at_most)});
+  }
+  return out;
+}
+
 std::string RuleTracker::describe_violations(const Plan& plan) const {
   std::string text;
   auto add = [&text](const std::string& item) { text += (text.empty() ? "" : "; ") + item; };
@@ -159,9 +327,7 @@ std::string RuleTracker::describe_violations(const Plan& plan) const {
         " leaves no whole number between them; allow a larger deviation");
   for (const PopulationBreach& breach : population_breaches(plan, bounds_))
     add(describe_population_breach(breach, bounds_, ideal));
-  if (rules_.county_splits_max && counties_.split() > *rules_.county_splits_max)
-    add(std::to_string(counties_.split()) + " counties are split, the limit is " +
-        std::to_string(*rules_.county_splits_max));
+  for (const Breach& breach : limit_breaches(plan)) add(breach.text);
   return text;
 }
 

@@ -62,9 +62,8 @@ std::string measures_json(const UnitGraph& graph, const RuleSet& rules,
   j["municipality_splits"] = spec.municipality_splits;
   j["scalars"] = measures.scalar_names();
   j["sorted"] = measures.vector_names();
-  j["rules_read_group_columns"] = !rules.group_share.empty();
-  j["reads_group_or_vote_columns"] =
-      !rules.group_share.empty() || !spec.elections.empty() || !spec.groups.empty();
+  j["rules_read_group_columns"] = rules.reads_group_columns();
+  j["reads_group_or_vote_columns"] = rules.reads_group_columns() || !spec.elections.empty() || !spec.groups.empty();
   return j.dump();
 }
 

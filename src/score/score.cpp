@@ -58,6 +58,7 @@ ScoreReport score_plan(const LoadedJob& job, const std::string& plan_file, const
   s.ideal = static_cast<double>(graph.total_population()) / static_cast<double>(k);
   s.bounds = population_bounds(graph.total_population(), k, rules.population_tolerance);
   s.county_splits_max = rules.county_splits_max;
+  s.limit_rules = describe_limits(rules, graph);
 
   std::size_t held = k;
   for (DistrictIndex d : s.reading.district) held = std::max<std::size_t>(held, d + std::size_t{1});
@@ -83,6 +84,13 @@ ScoreReport score_plan(const LoadedJob& job, const std::string& plan_file, const
     const SplitTally counties(plan, graph.counties());
     s.counties_split = counties.split();
     s.county_cap_broken = rules.county_splits_max && s.counties_split > *rules.county_splits_max;
+  }
+  if (held == k) {
+    s.limits = RuleTracker(plan, rules).limit_breaches(plan);
+  } else if (s.county_cap_broken) {  // the tracker needs the job's k districts; say what can be said
+    s.limits.push_back({"rules.county_splits_max", std::to_string(s.counties_split) +
+                                                       " counties are split, the limit is " +
+                                                       std::to_string(*rules.county_splits_max)});
   }
   if (held == k && s.empty_districts.empty())
     s.values = measure_plan(plan, job.graph, rules, job.measures);

@@ -44,10 +44,7 @@ std::vector<std::string> broken_rules(const ScoreReport& r) {
                   " districts: " + std::to_string(o.units) + " units, " + std::to_string(o.population) + " people");
   out.insert(out.end(), r.population_text.begin(), r.population_text.end());
   for (const NotContiguous& n : r.not_contiguous) out.push_back(describe_pieces(n));
-  if (r.county_cap_broken)
-    out.push_back(std::to_string(r.counties_split) + " counties are split, the limit is " +
-                  std::to_string(*r.county_splits_max) + " (" +
-                  std::to_string(r.counties_split - *r.county_splits_max) + " over)");
+  for (const RuleTracker::Breach& b : r.limits) out.push_back(b.text + " [" + b.key + "]");
   return out;
 }
 
@@ -75,7 +72,7 @@ void print_score(const ScoreReport& r, std::ostream& out) {
     }
   out << "rules: every district's population within " << number(100.0 * r.tolerance) << "% of the ideal "
       << number(r.ideal) << " (" << r.bounds.min << " to " << r.bounds.max << " people); every district contiguous";
-  if (r.county_splits_max) out << "; at most " << *r.county_splits_max << " counties split";
+  for (const std::string& limit : r.limit_rules) out << "; " << limit;
   out << "\n";
   const std::vector<std::string> broken = broken_rules(r);
   if (broken.empty()) out << "hard rules: the plan meets every one\n";
@@ -125,7 +122,8 @@ nlohmann::json score_json(const ScoreReport& r) {
                 {"ideal_population", json_number(r.ideal)},
                 {"population_min", r.bounds.min},
                 {"population_max", r.bounds.max},
-                {"county_splits_max", r.county_splits_max ? nlohmann::json(*r.county_splits_max) : nlohmann::json()}};
+                {"county_splits_max", r.county_splits_max ? nlohmann::json(*r.county_splits_max) : nlohmann::json()},
+                {"limits", r.limit_rules}};
   nlohmann::json broken;
   broken["meets_every_rule"] = r.meets_every_rule();
   broken["text"] = broken_rules(r);
@@ -147,6 +145,8 @@ nlohmann::json score_json(const ScoreReport& r) {
   }
   broken["counties_split"] = r.counties_split;
   broken["county_cap_broken"] = r.county_cap_broken;
+  broken["limits"] = nlohmann::json::array();
+  for (const RuleTracker::Breach& b : r.limits) broken["limits"].push_back({{"key", b.key}, {"text", b.text}});
   j["hard_rules"] = broken;
   if (r.values) {
     nlohmann::json scalars = nlohmann::json::array();

@@ -266,3 +266,55 @@ TEST_F(Cli, RunOnAFolderSaysItIsAFolder) {
   EXPECT_NE(empty.err.find("is a folder, not a job file"), std::string::npos) << empty.err;
   EXPECT_EQ(empty.err.find("the job file is empty"), std::string::npos) << empty.err;
 }
+
+namespace {
+
+// Issue 16: a soft weight that recombination cannot honour stops check and run (exit 2, one line
+// naming the key and the kernels that can), before anything is written.
+TEST_F(Cli, SoftWeightWithRecombinationIsRefusedByCheckAndRun) {
+  write_small_map("recombination", 3, 0.3);
+  for (const std::string command : {"check " + path("job.toml"),
+                                    "run " + path("job.toml") + " --quiet --output " + path("runs")}) {
+    const auto o = run_within(60, command);
+    EXPECT_EQ(o.status, 2) << command << "\n" << o.err;
+    EXPECT_NE(o.err.find("'rules.weights.cut_edges': a soft weight, but sampler.kernel recombination has no target law"),
+              std::string::npos)
+        << o.err;
+    EXPECT_NE(o.err.find("\"merge-split\" or \"flip\""), std::string::npos) << o.err;
+    EXPECT_EQ(std::count(o.err.begin(), o.err.end(), '\n'), 1) << o.err;
+  }
+  EXPECT_FALSE(fs::exists(dir_ / "runs"));
+}
+
+// The hard limits as check lists them, the group-blind flag, and score naming each broken limit by
+// its key (exit 6).
+TEST_F(Cli, CheckListsTheLimitsAndScoreNamesEveryBrokenOne) {
+  write("units.csv", "id,people,cty,town,grp\na,3,x,p,3\nb,2,x,p,0\nc,2,y,q,0\nd,1,x,p,1\ne,3,x,,0\nf,2,y,q,0\n"
+                     "g,2,x,,2\nh,1,y,q,0\ni,2,y,,0\n");
+  write("adj.csv", "from,to\na,b\nb,c\nd,e\ne,f\ng,h\nh,i\na,d\nd,g\nb,e\ne,h\nc,f\nf,i\n");
+  write("job.toml", "[map]\nunits = \"units.csv\"\nadjacency = \"adj.csv\"\nid = \"id\"\npopulation = \"people\"\n"
+                    "county = \"cty\"\nmunicipality = \"town\"\ngroups = [\"grp\"]\n[districts]\ncount = 3\n"
+                    "[rules]\npopulation_tolerance = 0.5\npopulation_range_max = 0.5\ncounty_pieces_max = 3\n"
+                    "municipality_districts_max = 1\n[[rules.group_share]]\ngroup = \"grp\"\nthreshold = 0.5\n"
+                    "at_least = 2\n[sampler]\nkernel = \"recombination\"\n");
+  const auto c = run("check " + path("job.toml"));
+  EXPECT_EQ(c.status, 0) << c.err;
+  for (const char* line : {"rule         overall population range at most 50.00% of the ideal",
+                           "rule         at most 3 county pieces", "rule         no municipality in more than 1 districts",
+                           "rule         at least 2 districts with a grp share of at least 0.5",
+                           "group-blind  no: rules.group_share reads the group column 'grp'"})
+    EXPECT_NE(c.out.find(line), std::string::npos) << line << "\n" << c.out;
+  // Rows as districts: populations 7, 6, 5 (ideal 6, range 2/6 = 33%: within 50%); counties x
+  // {a,b,d,e,g} and y {c,f,h,i} meet 3 and 3 districts (6 pieces); town p {a,b,d} meets 2;
+  // grp shares 3/7, 1/6, 2/5: none at 0.5.
+  write("rows.csv", "unit,district\na,1\nb,1\nc,1\nd,2\ne,2\nf,2\ng,3\nh,3\ni,3\n");
+  const auto s = run("score " + path("job.toml") + " " + path("rows.csv"));
+  EXPECT_EQ(s.status, 6) << s.out << s.err;
+  for (const char* key : {"[rules.county_pieces_max]", "[rules.municipality_districts_max]",
+                          "[rules.group_share.at_least]"})
+    EXPECT_NE(s.out.find(key), std::string::npos) << key << "\n" << s.out;
+  EXPECT_EQ(s.out.find("[rules.population_range_max]"), std::string::npos) << s.out;
+  EXPECT_NE(s.out.find("6 county pieces, the limit is 3 (3 over)"), std::string::npos) << s.out;
+}
+
+}  // namespace

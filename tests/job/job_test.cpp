@@ -157,13 +157,65 @@ INSTANTIATE_TEST_SUITE_P(
                "[[measures.groups]]\ngroup = \"grp\"\n[[measures.groups]]\ngroup = \"grp\"\n[verdict]",
                "'measures.groups.group': 'grp' is measured twice"},
         BadJob{"judge not a list", "min_records = 300", "min_records = 300\njudge = \"energy\"",
-               "'verdict.judge': must be a list of strings"}),
+               "'verdict.judge': must be a list of strings"},
+        // Issue 16: a weight recombination cannot honour is refused, naming the key and the kernels that can.
+        BadJob{"cut weight with recombination", "\"merge-split\"", "\"recombination\"",
+               "'rules.weights.cut_edges': a soft weight, but sampler.kernel recombination has no target law"},
+        BadJob{"town limit without codes", "county_splits_max = 5", "municipality_pieces_max = 5",
+               "'rules.municipality_pieces_max': a municipality limit needs municipality codes"},
+        BadJob{"county districts 0", "county_splits_max = 5", "county_districts_max = 0",
+               "'rules.county_districts_max': is 0, outside 1..65534"},
+        BadJob{"range negative", "county_splits_max = 5", "population_range_max = -0.1",
+               "'rules.population_range_max'"},
+        BadJob{"group term doing nothing", "weight = 1.5", "",
+               "'rules.group_share.group': the term for 'grp' has no weight, at_least or at_most"},
+        BadJob{"at_least above at_most", "weight = 1.5", "at_least = 3\nat_most = 2",
+               "'rules.group_share.at_least': is above at_most"},
+        BadJob{"at_least above k", "weight = 1.5", "at_least = 21",
+               "'rules.group_share.at_least': asks for more districts than the plan has (20)"}),
     [](const auto& info) {
       std::string name = info.param.name;
       for (char& ch : name)
         if (!std::isalnum(static_cast<unsigned char>(ch))) ch = '_';
       return name;
     });
+
+// Issue 16: every soft weight is refused with recombination, by key and line, naming the kernels
+// that honour it; hard limits are read and kept with every kernel.
+TEST(JobFile, SoftWeightsNeedAKernelWithATargetAndLimitsAreRead) {
+  const auto refused = [](std::string text, const std::string& key) {
+    text.replace(text.find("\"merge-split\""), 13, "\"recombination\"");
+    try {
+      (void)parse_job_text(text, "w.toml");
+      ADD_FAILURE() << "accepted a weight on " << key;
+    } catch (const InputError& e) {
+      EXPECT_EQ(e.where().column, key) << e.what();
+      EXPECT_GT(e.where().line, 0u);
+      EXPECT_NE(std::string(e.what()).find("set sampler.kernel to \"merge-split\" or \"flip\""), std::string::npos)
+          << e.what();
+    }
+  };
+  std::string text = kGood;
+  refused(text, "rules.weights.cut_edges");
+  text.replace(text.find("cut_edges = 0.5"), 15, "county_splits = 2");
+  refused(text, "rules.weights.county_splits");
+  text.replace(text.find("county_splits = 2"), 17, "cut_edges = 0");
+  refused(text, "rules.group_share.weight");
+  // Without the group weight, a hard at_least stays and recombination is fine.
+  text.replace(text.find("weight = 1.5"), 12, "at_least = 2\nat_most = 4");
+  text.replace(text.find("county_splits_max = 5"), 21,
+               "county_splits_max = 5\ncounty_pieces_max = 30\ncounty_districts_max = 2\npopulation_range_max = 0.1");
+  text.replace(text.find("\"merge-split\""), 13, "\"recombination\"");
+  const JobSpec job = parse_job_text(text, "ok.toml");
+  EXPECT_EQ(job.rules.county_pieces_max, 30);
+  EXPECT_EQ(job.rules.county_districts_max, 2);
+  EXPECT_EQ(job.rules.municipality_splits_max, -1);
+  EXPECT_DOUBLE_EQ(job.rules.population_range_max, 0.1);
+  ASSERT_EQ(job.rules.group_share.size(), 1u);
+  EXPECT_EQ(job.rules.group_share[0].at_least, 2);
+  EXPECT_EQ(job.rules.group_share[0].at_most, 4);
+  EXPECT_EQ(job.rules.group_share[0].weight, 0.0);
+}
 
 // [measures] and verdict.judge as written; left out, the lists stay unset (the defaults of
 // job_measures.hpp, every observable judged).

@@ -107,8 +107,9 @@ std::string python_check(const Written& w) {
 
 TEST(MeasuresNumpy, EveryMeasureOfEveryPlanMatchesAnIndependentRecomputation) {
   const Written w = write_plans_and_measures(300);
-  // 22 scalars (2 elections x 7, 1 group threshold, 3 compactness, 4 splits) and 3 x 6 shares.
-  EXPECT_EQ(w.columns, 22U + 18U);
+  // 24 scalars (2 elections x 7, 1 group threshold, 3 compactness, 2 population balance, 4 splits)
+  // and 3 x 6 shares.
+  EXPECT_EQ(w.columns, 24U + 18U);
   const std::string result = python_check(w);
   ASSERT_EQ(result.substr(0, result.find('\n') + 1), "checked 300 " + std::to_string(w.columns) + "\n") << result;
   const std::size_t distinct = std::stoul(result.substr(result.find("distinct ") + 9));

@@ -428,7 +428,8 @@ TEST(MeasureEvaluator, NamesInOrderAndSpecsThatDoNotFit) {
                                       "election.gov.declination", "election.gov.competitive_districts",
                                       "group.a.districts_above_0.5", "group.a.districts_above_0.375",
                                       "compactness.cut_edges", "compactness.polsby_popper_min",
-                                      "compactness.polsby_popper_mean"}));
+                                      "compactness.polsby_popper_mean", "population.max_deviation",
+                                      "population.overall_range"}));
   MeasureSpec bad = spec;
   bad.elections[0].votes_b = 2;
   EXPECT_THROW(MeasureEvaluator(g, 2, bad), std::invalid_argument);

@@ -200,7 +200,11 @@ RandomMap random_map(Rng& rng) {
   m.rules.county_splits_max = 4;
   m.rules.cut_edges_weight = 0.37;
   m.rules.county_splits_weight = 1.3;
-  m.rules.group_share = {{0, 0.5, 2.1}, {1, 0.3, 0.7}, {0, 0.45, 1.1}};
+  m.rules.group_share = {{0, 0.5, 2.1}, {1, 0.3, 0.7}, {0, 0.45, 1.1, 1, 3}};
+  // The other hard limits too, so that the allocation test covers their bookkeeping.
+  m.rules.population_range_max = 0.5;
+  m.rules.county_pieces_max = 10;
+  m.rules.county_districts_max = 3;
   return m;
 }
 

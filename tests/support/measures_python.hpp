@@ -111,6 +111,9 @@ for p, d in enumerate(plans):
     pp = 4 * math.pi * tally(area) / perimeter ** 2  # Polsby and Popper (1991)
     check(p, "compactness.polsby_popper_min", pp.min(), LOOSE)
     check(p, "compactness.polsby_popper_mean", pp.mean(), LOOSE)
+    ideal = pop.sum() / k  # overall range and max deviation over the ideal, by their definitions
+    check(p, "population.max_deviation", np.max(np.abs(tally(pop) - ideal)) / ideal, CLOSE)
+    check(p, "population.overall_range", (tally(pop).max() - tally(pop).min()) / ideal, CLOSE)
     split, count = pieces(county, d)
     check(p, "splits.counties_split", split, EXACT)
     check(p, "splits.county_pieces", count, EXACT)

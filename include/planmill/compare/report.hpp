@@ -28,6 +28,9 @@ struct CompareReport {
   bool verdict_pass = false;
   std::string verdict_line;            // the verdict as `planmill diagnose` words it
   std::vector<std::string> warnings;
+  // Said when the run's population band is much looser than the plan's own balance
+  // (band_note), also among the warnings and first in the summary; empty otherwise.
+  std::string population_band;
   std::vector<std::string> not_stored;  // the plan's measures that the run has not recorded
   std::vector<std::string> declared;    // [compare] declared, in the job's order
   std::vector<ScalarComparison> scalars;
@@ -40,6 +43,10 @@ struct CompareReport {
 // One sentence per declared measure (or why it cannot be given), then one per vector's overall
 // statistic.
 [[nodiscard]] std::vector<std::string> summary(const CompareReport& report);
+// When the plan's largest population deviation is at most half the run's tolerance (or its
+// overall range at most half the range the run allows), a sentence saying so plainly; else "".
+[[nodiscard]] std::string band_note(double plan_deviation, double plan_range, double tolerance,
+                                    double range_allowed);
 
 void print_report(const CompareReport& report, std::ostream& out);
 

@@ -17,11 +17,15 @@ struct GroupShareSpec {
   std::string group;       // a name listed in map.groups
   double threshold = 0.5;  // share of district population
   double weight = 0.0;     // energy falls by weight for each district at or above threshold
+  std::int64_t at_least = -1, at_most = -1;  // hard: districts at or above threshold; -1 = none
 };
 
 struct RulesSpec {
   double population_tolerance = 0.05;
-  std::int64_t county_splits_max = -1;  // -1 = no limit
+  double population_range_max = -1.0;   // overall range over the ideal; -1 = no limit
+  std::int64_t county_splits_max = -1;  // -1 = no limit (every count limit below too)
+  std::int64_t county_pieces_max = -1, county_districts_max = -1;
+  std::int64_t municipality_splits_max = -1, municipality_pieces_max = -1, municipality_districts_max = -1;
   double cut_edges_weight = 0.0;
   double county_splits_weight = 0.0;
   std::vector<GroupShareSpec> group_share;

@@ -35,7 +35,7 @@ enum class StepResult : std::uint8_t {
   accepted,   // the plan changed
   rejected,   // Metropolis-Hastings rejection (the plan stays)
   no_cut,     // the spanning tree had no balanced edge, or the merge-split coin said "no cut"
-  invalid,    // the proposal broke a hard rule (contiguity, population, county limit)
+  invalid,    // the proposal broke a hard rule (contiguity, population, RuleTracker::limits_ok)
 };
 inline constexpr std::size_t kStepResultCount = 4;
 
@@ -61,12 +61,6 @@ struct KernelSettings {
   // weights"), to show the self-test sees it.
   bool drop_tree_weight_factor = false;
 };
-
-// The county-split limit, the one hard rule a tree cut or flip can break besides contiguity.
-[[nodiscard]] inline bool within_county_limit(const RuleTracker& rules) noexcept {
-  const auto& limit = rules.rules().county_splits_max;
-  return !limit || rules.county_splits() <= *limit;
-}
 
 class Kernel {
  public:

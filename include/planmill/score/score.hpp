@@ -15,6 +15,7 @@
 #include "planmill/graph/unit_graph.hpp"
 #include "planmill/job/loaded_job.hpp"
 #include "planmill/plan/plan.hpp"
+#include "planmill/rules/rules.hpp"
 #include "planmill/score/crosswalk.hpp"
 #include "planmill/score/plan_values.hpp"
 
@@ -55,6 +56,7 @@ struct ScoreReport {
   double ideal = 0;
   PopulationBounds bounds{};
   std::optional<std::size_t> county_splits_max;
+  std::vector<std::string> limit_rules;  // describe_limits: the hard rules beyond the tolerance
   // What the plan breaks.
   std::vector<std::size_t> empty_districts;  // 1-based
   std::vector<OutOfRange> out_of_range;
@@ -63,13 +65,16 @@ struct ScoreReport {
   std::vector<NotContiguous> not_contiguous;
   std::size_t counties_split = 0;
   bool county_cap_broken = false;
+  // Every broken rule the rule tracker keeps (overall range, county and municipality caps,
+  // group-share counts), with its job key; the county cap is among them.
+  std::vector<RuleTracker::Breach> limits;
   // The plan's values; not computed (with the reason) when the plan does not have k districts.
   std::optional<PlanValues> values;
   std::string values_missing;
 
   [[nodiscard]] bool meets_every_rule() const noexcept {
     return empty_districts.empty() && out_of_range.empty() && population.empty() && not_contiguous.empty() &&
-           !county_cap_broken;
+           !county_cap_broken && limits.empty();
   }
 };
 
