@@ -17,12 +17,16 @@ struct Candidate {
   bool child_is_district;  // else the side away from the child becomes the district
 };
 
-// Attempt a's tree weights: the first attempt draws uniform trees (so a job whose first plan came
-// that way before still gets it); later ones favour edges inside counties and municipalities more
-// and more, so that districts are cut along their lines and county and town caps can be met.
-TreeWeights attempt_weights(const UnitGraph& graph, std::size_t attempt) {
+// Attempt a's tree weights: uniform trees unless the rules cap counties or municipalities (so a
+// job without such caps draws the first plan it always drew); under caps, the first attempt is
+// uniform and later ones favour edges inside counties and municipalities more and more, so that
+// districts are cut along their lines and the caps can be met.
+TreeWeights attempt_weights(const UnitGraph& graph, const RuleSet& rules, std::size_t attempt) {
   static constexpr double kFactor[] = {1.0, 4.0, 30.0, 300.0};
-  const double f = kFactor[attempt % 4];
+  const bool county_caps = rules.county_splits_max || rules.county_pieces_max || rules.county_districts_max;
+  const bool town_caps =
+      rules.municipality_splits_max || rules.municipality_pieces_max || rules.municipality_districts_max;
+  const double f = county_caps || town_caps ? kFactor[attempt % 4] : 1.0;
   return {graph.has_counties() ? f : 1.0, graph.has_municipalities() ? f : 1.0};
 }
 
@@ -83,7 +87,7 @@ Plan random_seed_plan(const GraphHandle& handle, std::size_t districts, const Ru
   for (std::size_t attempt = 0; attempt < effort.restarts; ++attempt) {
     remaining.resize(n);  // a failed attempt may have left it holding only the unsplit rest
     std::iota(remaining.begin(), remaining.end(), UnitIndex{0});
-    const TreeWeights weights = attempt_weights(graph, attempt);
+    const TreeWeights weights = attempt_weights(graph, rules, attempt);
     region.set_weights(weights);
     bool failed = false;
     for (std::size_t m = districts; m >= 2 && !failed; --m) {

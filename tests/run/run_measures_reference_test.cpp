@@ -97,8 +97,9 @@ TEST(RunMeasuresNumpy, EveryStoredMeasureOfThousandsOfRecordsMatchesAnIndependen
   const std::size_t plans = write_plans(job, run, dir / "plans.txt");
   ASSERT_EQ(plans, 4U * 750);
   const std::string result = python(dir, kReadRun, run);
-  // Names: population_deviation, energy, 22 measure scalars, 3 sorted vectors of 4.
-  ASSERT_EQ(result.substr(0, result.find('\n') + 1), "checked 3000 " + std::to_string(2 + 22 + 3 * 4) + "\n")
+  // Names: population_deviation, energy, 24 measure scalars (population.max_deviation and
+  // population.overall_range among them), 3 sorted vectors of 4.
+  ASSERT_EQ(result.substr(0, result.find('\n') + 1), "checked 3000 " + std::to_string(2 + 24 + 3 * 4) + "\n")
       << result;
   EXPECT_GT(std::stoul(result.substr(result.find("distinct ") + 9)), 1000U) << result;
   std::cout << result;
