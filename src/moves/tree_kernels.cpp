@@ -5,6 +5,7 @@
 #include <string>
 
 #include "planmill/base/error.hpp"
+#include "planmill/moves/cut_bound.hpp"
 #include "planmill/tree/tree_weights.hpp"
 
 namespace planmill {
@@ -19,6 +20,7 @@ TreeWeights tree_weights(const KernelSettings& settings) {
 
 TreeProposal::TreeProposal(const KernelSettings& settings, const UnitGraph& graph)
     : side_(graph.unit_count()), before_(graph.unit_count()) {
+  bound_scratch_.reserve(graph.unit_count());
   frozen_.frozen = settings.frozen;
   region_.set_weights(tree_weights(settings));
 }
@@ -55,6 +57,11 @@ bool TreeProposal::draw(const Plan& plan, Rng& rng) {
 
 std::span<const std::uint32_t> TreeProposal::balanced_cuts(const RuleTracker& rules) {
   return sampler_.balanced_cuts(rules.population_min(), rules.population_max());
+}
+
+std::size_t TreeProposal::balanced_edge_bound(const RuleTracker& rules) {
+  return planmill::balanced_edge_bound(region_.populations(), rules.population_min(), rules.population_max(),
+                                       bound_scratch_);
 }
 
 void TreeProposal::apply(ChainState& state, std::uint32_t child, Rng& rng) {
@@ -126,8 +133,9 @@ StepResult MergeSplitKernel::step(ChainState& state, Rng& rng) {
   const double energy_before = state.rules.energy(state.plan);
   if (!proposal_.draw(state.plan, rng)) return StepResult::no_cut;
   const auto cuts = proposal_.balanced_cuts(state.rules);
+  // M may depend on the merged region U alone: the move and its reverse share U, so M cancels.
   const std::size_t bound =
-      settings_.balanced_cut_bound > 0 ? settings_.balanced_cut_bound : proposal_.region_size() - 1;
+      settings_.balanced_cut_bound > 0 ? settings_.balanced_cut_bound : proposal_.balanced_edge_bound(state.rules);
   // A setting the map outgrew, not a fault: the chain's state is as before the draw.
   if (cuts.size() > bound)
     throw InputError({"", 0, "sampler.balanced_cut_bound"},

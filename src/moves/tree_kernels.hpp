@@ -20,6 +20,9 @@ class TreeProposal {
   // leaves the kernel's law on the plans with the frozen districts fixed as stated.
   bool draw(const Plan& plan, Rng& rng);
   [[nodiscard]] std::span<const std::uint32_t> balanced_cuts(const RuleTracker& rules);
+  // At least the balanced edges any spanning tree of the merged region can have under the rules'
+  // population bounds: a function of the region alone (planmill/moves/cut_bound.hpp).
+  [[nodiscard]] std::size_t balanced_edge_bound(const RuleTracker& rules);
   // Relabels the merged region: the subtree below `child` gets one of the two labels (by a fair
   // coin, so the proposal is symmetric in the labels), the rest the other.
   void apply(ChainState& state, std::uint32_t child, Rng& rng);
@@ -40,6 +43,7 @@ class TreeProposal {
   SpanningTreeSampler sampler_;
   std::vector<std::uint8_t> side_;
   std::vector<DistrictIndex> before_;  // label of each local vertex before apply()
+  std::vector<std::int64_t> bound_scratch_;
   DistrictIndex a_ = 0, b_ = 0;
 };
 

@@ -1,3 +1,4 @@
+#include <algorithm>
 #include <string>
 
 #include "planmill/selftest/selftest.hpp"
@@ -5,9 +6,11 @@
 namespace planmill {
 namespace {
 
-std::shared_ptr<const UnitGraph> grid(std::size_t width, std::size_t height) {
+// Units of population 1, except those listed in `empty` (population 0).
+std::shared_ptr<const UnitGraph> grid(std::size_t width, std::size_t height, std::vector<std::size_t> empty = {}) {
   UnitGraphBuilder b;
-  for (std::size_t i = 0; i < width * height; ++i) (void)b.add_unit("g" + std::to_string(i), 1);
+  for (std::size_t i = 0; i < width * height; ++i)
+    (void)b.add_unit("g" + std::to_string(i), std::find(empty.begin(), empty.end(), i) == empty.end() ? 1 : 0);
   for (std::size_t r = 0; r < height; ++r)
     for (std::size_t c = 0; c < width; ++c) {
       const auto u = static_cast<UnitIndex>(r * width + c);
@@ -66,6 +69,14 @@ std::vector<SelftestCase> builtin_selftest_cases(bool quick) {
   auto halves = make("4x4 grid into 2, uniform", g4, 2, 0.0, KernelKind::merge_split, 0.0, 0.0, 0);
   halves.kernel.balanced_cut_bound = 1;
   cases.push_back(halves);
+  // Zero-population units, with the default M of docs/kernels.md ("The default bound M"): into 2
+  // at [4, 5] (P = 9 < 3 lo, M = 1 + z + g = 5 where |U| - 1 = 11); into 3 at [2, 4], where merged
+  // pairs of population 4 or 5 use the bound and pairs of 6 (3 lo = P, the fallback condition)
+  // or more fall back to |U| - 1.
+  const auto holes = grid(3, 4, {1, 6, 10});
+  cases.push_back(make("3x4 grid with 3 empty units into 2, uniform", holes, 2, 0.12, KernelKind::merge_split, 0.0, 0.0, 0));
+  cases.push_back(make("3x4 grid with 3 empty units into 3, spanning-tree law", holes, 3, 0.34,
+                       KernelKind::merge_split, 1.0, 0.0, 0));
   auto weighted = make("irregular into 3, gamma 0.5, cut edges", odd, 3, 0.35, KernelKind::merge_split, 0.5, 0.4, 0);
   weighted.rules.cut_edges_weight = 1.0;
   cases.push_back(weighted);

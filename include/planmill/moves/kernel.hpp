@@ -43,8 +43,9 @@ struct KernelSettings {
   KernelKind kind = KernelKind::recombination;
   double gamma = 0.0;  // merge-split only
   double beta = 1.0;   // multiplies the energy in merge-split and flip
-  // Merge-split: M, the bound on balanced edges of a tree. 0 = |U| - 1, always exact. A tree with
-  // more balanced edges than M is an error, never silently capped.
+  // Merge-split: M, the bound on balanced edges of a tree. 0 = a proven bound computed from the
+  // merged region's populations (planmill/moves/cut_bound.hpp), always exact; a positive value
+  // overrides it. A tree with more balanced edges than M is an error, never silently capped.
   std::size_t balanced_cut_bound = 0;
   // Recombination and merge-split: the weight a spanning tree gives an edge inside one county
   // (one municipality), planmill/tree/tree_weights.hpp; 1 = no preference. Merge-split then
