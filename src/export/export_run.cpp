@@ -12,6 +12,7 @@
 #include <unistd.h>
 
 #include "export/gis_export.hpp"
+#include "planmill/io/number_text.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/export/export.hpp"
 #include "planmill/export/district_tallies.hpp"
@@ -147,9 +148,7 @@ void leave_out(ExportResult& result, std::set<std::uint64_t>& bad, std::uint64_t
 std::string csv_number(double value) {
   if (std::isnan(value)) return "NA";
   if (std::isinf(value)) return value > 0 ? "Inf" : "-Inf";
-  char buffer[32];
-  const auto [end, ec] = std::to_chars(buffer, buffer + sizeof buffer, value);
-  return {buffer, end};
+  return number_text(value);
 }
 
 namespace {

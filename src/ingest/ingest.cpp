@@ -11,6 +11,7 @@
 #include <numeric>
 
 #include "ingest/layer.hpp"
+#include "planmill/io/number_text.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/io/atomic_file.hpp"
 #include "planmill/io/csv.hpp"
@@ -21,12 +22,6 @@ namespace {
 
 using ingest::Edge;
 using ingest::Layer;
-
-std::string number_text(double value) {
-  char buffer[64];
-  const auto result = std::to_chars(buffer, buffer + sizeof buffer, value);
-  return std::string(buffer, result.ptr);
-}
 
 // The connected parts of the map, largest first (ties: the part holding the lowest unit).
 std::vector<std::vector<std::size_t>> parts_of(std::size_t n, const std::vector<Edge>& edges) {

@@ -9,6 +9,7 @@
 #include <toml++/toml.h>
 #include <vector>
 
+#include "planmill/io/number_text.hpp"
 #include "planmill/base/error.hpp"
 #include "planmill/job/job.hpp"
 
@@ -88,9 +89,8 @@ class Section {
     else if (node->is_integer()) value = static_cast<double>(**node->as_integer());
     else fail(key, "must be a number", "write it without quotes");
     if (!std::isfinite(value) || value < lo || value > hi) {
-      std::ostringstream range;
-      range << "is " << value << ", outside [" << lo << ", " << hi << "]";
-      fail(key, range.str(), "choose a value in that range");
+      fail(key, "is " + number_text(value) + ", outside [" + number_text(lo) + ", " + number_text(hi) + "]",
+           "choose a value in that range");
     }
     return value;
   }

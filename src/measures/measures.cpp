@@ -11,6 +11,8 @@
 #include <stdexcept>
 #include <utility>
 
+#include "planmill/io/number_text.hpp"
+
 namespace planmill {
 namespace {
 
@@ -78,13 +80,6 @@ void update_sorted(std::span<double> sorted, std::span<double> last, std::span<c
     }
   }
   std::copy(fresh.begin(), fresh.end(), last.begin());
-}
-
-// 0.5 -> "0.5", 0.375 -> "0.375": the shortest text that reads back as the same double.
-std::string number_text(double x) {
-  char buf[32];
-  const auto result = std::to_chars(buf, buf + sizeof buf, x);
-  return {buf, result.ptr};
 }
 
 }  // namespace
