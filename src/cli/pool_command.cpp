@@ -16,6 +16,7 @@ namespace {
 struct PoolArgs {
   std::string pool_dir;
   std::vector<std::string> pieces, drops, reasons;
+  bool allow_other_builds = false;
 };
 
 int run_pool_command(const PoolArgs& a) {
@@ -25,7 +26,7 @@ int run_pool_command(const PoolArgs& a) {
                          std::to_string(a.drops.size()) + " --drop",
                      "follow each --drop PIECE with its --reason TEXT");
   }
-  PoolRequest request{a.pool_dir, a.pieces, {}};
+  PoolRequest request{a.pool_dir, a.pieces, {}, a.allow_other_builds};
   for (std::size_t i = 0; i < a.drops.size(); ++i) request.drops.push_back({a.drops[i], a.reasons[i]});
   const PoolSummary s = make_pool(request);
   std::cout << "pooled " << s.pieces << " runs into " << a.pool_dir << ": " << s.chains << " chains, "
@@ -48,6 +49,9 @@ void add_pool_command(CLI::App& app, Action& action) {
   sub->add_option("--drop", args->drops, "leave this piece out (needs --reason)")->allow_extra_args(false);
   sub->add_option("--reason", args->reasons, "why the --drop before it is left out (kept in pool.json)")
       ->allow_extra_args(false);
+  sub->add_flag("--allow-other-builds", args->allow_other_builds,
+                "pool pieces drawn by builds that differ (each piece's build stays in run-state.json; "
+                "pool.json records mixed_builds = true)");
   sub->footer("Exit status: 0 pooled, 2 refused (the message names the piece and the difference).");
   sub->callback([&action, args] { action = [args] { return run_pool_command(*args); }; });
 }

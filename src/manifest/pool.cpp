@@ -15,6 +15,7 @@
 #include "planmill/io/file_hash.hpp"
 #include "planmill/run/run_reader.hpp"
 #include "planmill/version.hpp"
+#include "planmill/io/number_text.hpp"
 
 namespace planmill {
 namespace {
@@ -46,6 +47,11 @@ void flatten(const toml::node& node, const std::string& path, std::map<std::stri
       flatten(*array->get(i), path + "[" + std::to_string(i) + "]", out);
     if (array->empty()) out[path] = "[]";
   } else {
+    // Floats as their shortest round-trip text, so two values that differ never print alike.
+    if (const auto* x = node.as_floating_point()) {
+      out[path] = number_text(x->get());
+      return;
+    }
     std::ostringstream text;
     node.visit([&](const auto& v) { text << v; });
     out[path] = text.str();
@@ -137,6 +143,21 @@ void check_same(const Piece& first, const Piece& p) {
   }
 }
 
+// Another build may draw other plans from the same seed (run/build_info.hpp), so that a piece could
+// not be drawn again as it was: refuse it, naming the first difference, unless the user says so.
+void check_same_build(const Piece& first, const Piece& p) {
+  if (first.state.builds.empty()) return;
+  for (const BuildInfo& b : p.state.builds) {
+    const std::vector<std::string> d = build_differences(first.state.builds.front(), b);
+    if (!d.empty())
+      throw InputError({(p.dir / "run-state.json").string(), 0, "builds"},
+                       "was drawn by another build than " + first.given + ": " + d.front() +
+                           " (\"here\" is this piece, \"in the run\" the first piece)",
+                       "pool pieces drawn by one build, or give --allow-other-builds to pool them anyway "
+                       "(pool.json then records mixed_builds = true)");
+  }
+}
+
 std::string relative_to(const fs::path& file, const fs::path& base) {
   return file.lexically_normal().lexically_relative(base).generic_string();
 }
@@ -191,6 +212,7 @@ PoolSummary make_pool(const PoolRequest& request) {
     check_piece(p);
     p.job = job_keys(p.dir);
     if (!kept.empty()) check_same(kept.front(), p);
+    if (!kept.empty() && !request.allow_other_builds) check_same_build(kept.front(), p);
     for (const auto& other : kept) {
       if (other.state.seed == p.state.seed)
         throw InputError({(p.dir / "job.toml").string(), 0, "sampler.seed"},
@@ -257,7 +279,8 @@ PoolSummary make_pool(const PoolRequest& request) {
                  {"run_id", pooled.run_id},
                  {"job_from", relative_to(kept.front().dir, root)},
                  {"pieces", pieces},
-                 {"dropped", dropped}};
+                 {"dropped", dropped},
+                 {"mixed_builds", pooled.builds.size() > 1}};
   fs::create_directories(root);
   const RunLayout layout{root};
   write_file_atomically(layout.job_copy().string(), read_text(kept.front().dir / "job.toml"));

@@ -21,6 +21,9 @@ struct PoolRequest {
   std::string pool_dir;             // new, or an empty folder
   std::vector<std::string> pieces;  // every piece, run folders, in pool order
   std::vector<PoolDrop> drops;
+  // Pieces drawn by builds that differ (compiler, flags, instruction set, HDF5, MPI) are refused
+  // unless this is set; pool.json then records mixed_builds = true.
+  bool allow_other_builds = false;
 };
 
 struct PoolSummary {
