@@ -30,8 +30,12 @@ int run_check(const std::string& job_path) {
     std::printf("zero-pop     %zu units\n", loaded.report.zero_population_units);
   std::printf("count cols   %zu (%zu groups, %zu elections)\n", g.count_column_count(), g.group_columns().size(),
               g.elections().size());
-  const RuleSet rules = make_rule_set(loaded.job.rules, g, loaded.job.path);
-  for (const std::string& limit : describe_limits(rules, g)) std::printf("rule         %s\n", limit.c_str());
+  const RuleSet& rules = loaded.rules;
+  for (const std::string& limit : describe_limits(rules, g)) {
+    if (loaded.fewest && limit == "at most " + std::to_string(loaded.fewest->found) + " counties split") continue;
+    std::printf("rule         %s\n", limit.c_str());
+  }
+  if (loaded.fewest) std::printf("rule         %s\n", describe_fewest(*loaded.fewest).c_str());
   if (rules.reads_group_columns()) {
     std::string columns;
     for (const GroupShareTerm& t : rules.group_share)

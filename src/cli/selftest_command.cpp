@@ -30,7 +30,7 @@ std::vector<SelftestCase> cases_from_job(const SelftestOptions& options) {
   SelftestCase c;
   c.name = options.job;
   c.districts = loaded->job.districts;
-  c.rules = make_rule_set(loaded->job.rules, *loaded->graph, loaded->job.path);
+  c.rules = loaded->rules;
   c.kernel = make_kernel_settings(loaded->job);
   c.seed = options.seed;
   c.thin = c.kernel.kind == KernelKind::flip ? 40 : 10;

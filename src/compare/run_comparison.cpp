@@ -124,7 +124,7 @@ CompareReport compare_plan_with_run(const DiagnosedRun& run, const CompareOption
   const Plan plan = score::read_plan(o.plan_file, o.crosswalk_file, graph, reader.district_count(), &reading);
   if (reading.carried) r.plan_reading = reading.describe(*graph);
   r.warnings.insert(r.warnings.end(), reading.warnings.begin(), reading.warnings.end());
-  const RuleSet rules = make_rule_set(job.rules, *graph, job.path);
+  const RuleSet rules = resolve_rules(job, graph);
   try {
     check_seed_plan(plan, rules, o.plan_file);
   } catch (const std::exception& e) {

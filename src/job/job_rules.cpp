@@ -4,6 +4,7 @@
 #include <utility>
 
 #include "planmill/base/error.hpp"
+#include "planmill/base/random.hpp"
 
 namespace planmill {
 
@@ -57,6 +58,36 @@ RuleSet make_rule_set(const RulesSpec& spec, const UnitGraph& graph, const std::
     rules.group_share.push_back(term);
   }
   return rules;
+}
+
+RuleSet resolve_rules(const JobSpec& job, const GraphHandle& graph, FewestSplits* fewest) {
+  RuleSet rules = make_rule_set(job.rules, *graph, job.path);
+  if (!job.rules.county_splits_fewest) return rules;
+  if (!graph->has_counties())
+    throw InputError({job.path, 0, "rules.county_splits_max"}, "\"fewest\" needs county codes, but the map has none",
+                     "name the county column as map.county, or drop the key");
+  constexpr std::uint64_t kFewestSplitsStream = 5ULL << 60;
+  Rng rng = make_stream(job.sampler.seed, kFewestSplitsStream);
+  FewestSplits found;
+  try {
+    found = fewest_county_splits(graph, job.districts, rules, rng,
+                                 static_cast<std::size_t>(job.rules.fewest_splits_attempts));
+  } catch (const InfeasibleError& e) {
+    throw InfeasibleError(std::string("rules.county_splits_max = \"fewest\": the search for the fewest county splits ") +
+                          "found no plan meeting the other rules: " + e.what());
+  }
+  rules.county_splits_max = found.found;
+  if (fewest) *fewest = std::move(found);
+  return rules;
+}
+
+std::string describe_fewest(const FewestSplits& f) {
+  std::string s = "at most " + std::to_string(f.found) + " counties split: split only as needed, the fewest found in " +
+                  std::to_string(f.attempts) + " attempts (" + std::to_string(f.valid_plans) + " valid plans); " +
+                  std::to_string(f.lower_bound) + (f.lower_bound == 1 ? " county holds" : " counties hold") +
+                  " more people than a district may, so no plan splits fewer";
+  s += f.proven() ? ": the fewest possible" : ": the fewest possible lies between the two";
+  return s;
 }
 
 }  // namespace planmill

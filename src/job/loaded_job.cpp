@@ -10,10 +10,10 @@
 namespace planmill {
 
 LoadedJob load_and_check_job(const std::string& job_path) {
-  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt, {}};
+  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt, {}, {}, std::nullopt};
   loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
   check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_tolerance, job_path);
-  const RuleSet rules = make_rule_set(loaded.job.rules, *loaded.graph, job_path);
+  (void)make_rule_set(loaded.job.rules, *loaded.graph, job_path);  // the data the rules need, before any search
   if (loaded.job.sampler.tree_weight_county != 1.0 && !loaded.graph->has_counties())
     throw InputError({job_path, 0, "sampler.tree_weight_county"},
                      "county tree weights need county codes, but the map has none",
@@ -28,9 +28,12 @@ LoadedJob load_and_check_job(const std::string& job_path) {
   } catch (const std::invalid_argument& e) {
     throw InputError({job_path, 0, "measures"}, e.what(), "fix the [measures] section (docs/jobs.md)");
   }
+  FewestSplits fewest;
+  loaded.rules = resolve_rules(loaded.job, loaded.graph, &fewest);
+  if (loaded.job.rules.county_splits_fewest) loaded.fewest = std::move(fewest);
   if (loaded.job.start != "random") {
     loaded.start.emplace(read_plan_csv(loaded.job.start, loaded.graph, loaded.job.districts));
-    check_seed_plan(*loaded.start, rules, loaded.job.start);
+    check_seed_plan(*loaded.start, loaded.rules, loaded.job.start);
   }
   return loaded;
 }

@@ -20,7 +20,18 @@ void read_rules(Section& top, JobSpec& job) {
   r.population_tolerance = rules.number("population_tolerance", r.population_tolerance, 0.0, 1.0);
   if (rules.has("population_range_max"))
     r.population_range_max = rules.number("population_range_max", -1.0, 0.0, 2.0);
-  r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
+  if (const toml::node* cap = rules.get("county_splits_max"); cap && cap->is_string()) {
+    if (cap->value_or(std::string{}) != "fewest")
+      rules.fail("county_splits_max", "must be a whole number or \"fewest\"",
+                 "write a cap such as 12, or \"fewest\" to split counties only as needed");
+    r.county_splits_fewest = true;
+  } else {
+    r.county_splits_max = rules.integer("county_splits_max", -1, 0, 1'000'000);
+  }
+  r.fewest_splits_attempts = rules.integer("fewest_splits_attempts", r.fewest_splits_attempts, 1, 100'000);
+  if (rules.has("fewest_splits_attempts") && !r.county_splits_fewest)
+    rules.fail("fewest_splits_attempts", "only counts with county_splits_max = \"fewest\"",
+               "set county_splits_max = \"fewest\", or remove the key");
   r.county_pieces_max = rules.integer("county_pieces_max", -1, 0, 1'000'000);
   r.county_districts_max = rules.integer("county_districts_max", -1, 1, 65'534);
   r.municipality_splits_max = rules.integer("municipality_splits_max", -1, 0, 1'000'000);

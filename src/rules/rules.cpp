@@ -76,13 +76,9 @@ RuleTracker::RuleTracker(const Plan& plan, const RuleSet& rules)
       throw std::invalid_argument("group-share term names count column " +
                                   std::to_string(t.column) +
                                   ", the map has " + std::to_string(g.count_column_count()));
-  const bool county_rules = rules_.county_splits_max || rules_.county_pieces_max || rules_.county_districts_max ||
-                            rules_.county_splits_weight != 0.0;
-  if (county_rules && !g.has_counties())
+  if ((rules_.caps_counties() || rules_.county_splits_weight != 0.0) && !g.has_counties())
     throw std::invalid_argument("county rules need county codes, the map has none");
-  const bool town_rules =
-      rules_.municipality_splits_max || rules_.municipality_pieces_max || rules_.municipality_districts_max;
-  if (town_rules && !g.has_municipalities())
+  if (rules_.caps_municipalities() && !g.has_municipalities())
     throw std::invalid_argument("municipality rules need municipality codes, the map has none");
   if (rules_.county_districts_max == std::size_t{0} || rules_.municipality_districts_max == std::size_t{0})
     throw std::invalid_argument("an area meets at least one district: the districts-per-area limit must be >= 1");

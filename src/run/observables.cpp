@@ -40,8 +40,8 @@ void compute_observables(const ChainState& state, MeasureEvaluator& measures, st
   }
 }
 
-std::string measures_json(const UnitGraph& graph, const RuleSet& rules,
-                          const MeasureEvaluator& measures) {
+std::string measures_json(const UnitGraph& graph, const RuleSet& rules, const MeasureEvaluator& measures,
+                          const FewestSplits* fewest) {
   using json = nlohmann::ordered_json;
   const MeasureSpec& spec = measures.spec();
   json elections = json::array(), groups = json::array();
@@ -64,6 +64,10 @@ std::string measures_json(const UnitGraph& graph, const RuleSet& rules,
   j["sorted"] = measures.vector_names();
   j["rules_read_group_columns"] = rules.reads_group_columns();
   j["reads_group_or_vote_columns"] = rules.reads_group_columns() || !spec.elections.empty() || !spec.groups.empty();
+  if (fewest)
+    j["county_splits_fewest"] = {{"cap", fewest->found}, {"lower_bound", fewest->lower_bound},
+                                 {"proven", fewest->proven()}, {"attempts", fewest->attempts},
+                                 {"valid_plans", fewest->valid_plans}, {"start_plans", fewest->plans.size()}};
   return j.dump();
 }
 

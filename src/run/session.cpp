@@ -65,12 +65,12 @@ void remove_unlisted_plan_files(const RunLayout& layout, const RunState& state) 
 void ChainRunner::prepare() {
   everywhere_then_agree([&] {
     loaded_ = std::make_unique<LoadedJob>(load_and_check_job(options_.job_path));
-    rules_ = make_rule_set(loaded_->job.rules, *loaded_->graph, options_.job_path);
+    rules_ = loaded_->rules;
     measure_spec_ = loaded_->measures;
     const MeasureEvaluator probe(loaded_->graph, loaded_->job.districts, measure_spec_);
     names_ = observable_names(*loaded_->graph, rules_, probe);
     sorted_names_ = probe.vector_names();
-    measures_text_ = measures_json(*loaded_->graph, rules_, probe);
+    measures_text_ = measures_json(*loaded_->graph, rules_, probe, loaded_->fewest ? &*loaded_->fewest : nullptr);
     check_judged_names(loaded_->job, names_);
   });
   const JobSpec& job = loaded_->job;
@@ -345,6 +345,8 @@ Plan ChainRunner::start_plan(std::uint64_t chain_index) {
   const ChainStarts starts = loaded_->job.starts;
   if (loaded_->start && (starts == ChainStarts::given || (starts == ChainStarts::mixed && chain_index == 0)))
     return *loaded_->start;
+  // Split only as needed: chains start from the distinct plans the search found with the fewest splits.
+  if (loaded_->fewest) return loaded_->fewest->plans[chain_index % loaded_->fewest->plans.size()];
   Rng rng = make_stream(state_.seed, kSeedPlanStreamBase + chain_index);
   return random_seed_plan(loaded_->graph, loaded_->job.districts, rules_, rng);
 }

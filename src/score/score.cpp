@@ -53,7 +53,7 @@ ScoreReport score_plan(const LoadedJob& job, const std::string& plan_file, const
   s.reading = read_unit_districts(plan_file, crosswalk_file, graph, kNoDistrict - 1);
   s.reading_text = s.reading.describe(graph);
 
-  const RuleSet rules = make_rule_set(job.job.rules, graph, job.job.path);
+  const RuleSet& rules = job.rules;
   s.tolerance = rules.population_tolerance;
   s.ideal = static_cast<double>(graph.total_population()) / static_cast<double>(k);
   s.bounds = population_bounds(graph.total_population(), k, rules.population_tolerance);

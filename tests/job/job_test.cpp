@@ -172,7 +172,21 @@ INSTANTIATE_TEST_SUITE_P(
         BadJob{"at_least above at_most", "weight = 1.5", "at_least = 3\nat_most = 2",
                "'rules.group_share.at_least': is above at_most"},
         BadJob{"at_least above k", "weight = 1.5", "at_least = 21",
-               "'rules.group_share.at_least': asks for more districts than the plan has (20)"}),
+               "'rules.group_share.at_least': asks for more districts than the plan has (20)"},
+        // Tree weights: at least 1, a number, and only for kernels that draw trees.
+        BadJob{"tree weight below 1", "beta = 2.0", "beta = 2.0\ntree_weight_county = 0.5",
+               "'sampler.tree_weight_county': is 0.5"},
+        BadJob{"tree weight not a number", "beta = 2.0", "beta = 2.0\ntree_weight_municipality = \"high\"",
+               "'sampler.tree_weight_municipality': must be a number"},
+        BadJob{"tree weight with flip", "\"merge-split\"", "\"flip\"\ntree_weight_county = 3.0",
+               "'sampler.tree_weight_county': the flip kernel draws no spanning trees"},
+        // Split only as needed.
+        BadJob{"county splits word", "county_splits_max = 5", "county_splits_max = \"least\"",
+               "'rules.county_splits_max': must be a whole number or \"fewest\""},
+        BadJob{"fewest attempts without fewest", "county_splits_max = 5", "county_splits_max = 5\nfewest_splits_attempts = 9",
+               "'rules.fewest_splits_attempts': only counts with county_splits_max = \"fewest\""},
+        BadJob{"fewest attempts 0", "county_splits_max = 5", "county_splits_max = \"fewest\"\nfewest_splits_attempts = 0",
+               "'rules.fewest_splits_attempts': is 0, outside 1..100000"}),
     [](const auto& info) {
       std::string name = info.param.name;
       for (char& ch : name)

@@ -24,6 +24,9 @@ struct RulesSpec {
   double population_tolerance = 0.05;
   double population_range_max = -1.0;   // overall range over the ideal; -1 = no limit
   std::int64_t county_splits_max = -1;  // -1 = no limit (every count limit below too)
+  // county_splits_max = "fewest": split only as needed, the fewest splits a search finds first
+  bool county_splits_fewest = false;
+  std::int64_t fewest_splits_attempts = 100;
   std::int64_t county_pieces_max = -1, county_districts_max = -1;
   std::int64_t municipality_splits_max = -1, municipality_pieces_max = -1, municipality_districts_max = -1;
   double cut_edges_weight = 0.0;

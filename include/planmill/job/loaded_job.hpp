@@ -8,6 +8,8 @@
 #include "planmill/job/job.hpp"
 #include "planmill/measures/measures.hpp"
 #include "planmill/plan/plan.hpp"
+#include "planmill/rules/rules.hpp"
+#include "planmill/seed/seed_plan.hpp"
 
 namespace planmill {
 
@@ -17,6 +19,8 @@ struct LoadedJob {
   LoadReport report;
   std::optional<Plan> start;  // set when districts.start names a plan file
   MeasureSpec measures;       // the job's [measures] for this map (job_measures.hpp)
+  RuleSet rules;              // the job's [rules] for this map, resolved (job_rules.hpp)
+  std::optional<FewestSplits> fewest;  // set when county splits are "fewest": the search's result
 };
 
 // Throws InputError / InfeasibleError with the file, line and key of the first problem.

@@ -47,6 +47,13 @@ struct RuleSet {
   [[nodiscard]] bool reads_group_columns() const noexcept { return !group_share.empty(); }
   // Some term of the energy has a nonzero weight.
   [[nodiscard]] bool has_soft_terms() const noexcept;
+  // Some hard limit caps county (municipality) splits, pieces or districts per area.
+  [[nodiscard]] bool caps_counties() const noexcept {
+    return county_splits_max || county_pieces_max || county_districts_max;
+  }
+  [[nodiscard]] bool caps_municipalities() const noexcept {
+    return municipality_splits_max || municipality_pieces_max || municipality_districts_max;
+  }
 };
 
 // The hard rules beyond the population tolerance, in words ("overall range at most 10%",

@@ -12,6 +12,7 @@
 
 #include "planmill/measures/measures.hpp"
 #include "planmill/moves/kernel.hpp"
+#include "planmill/seed/seed_plan.hpp"
 
 namespace planmill {
 
@@ -27,8 +28,9 @@ void compute_observables(const ChainState& state, MeasureEvaluator& measures, st
 // What `measures` measures, as a JSON object (text): elections with their parties, groups with
 // denominator and thresholds, the competitive band, the splits, the output names, and
 // "reads_group_or_vote_columns" (true when `rules` or the measures read group or vote columns:
-// the ensemble is then no race-blind or party-blind baseline).
+// the ensemble is then no race-blind or party-blind baseline), and with `fewest` (county splits
+// "fewest") "county_splits_fewest": the cap found, its lower bound and the search's effort.
 [[nodiscard]] std::string measures_json(const UnitGraph& graph, const RuleSet& rules,
-                                        const MeasureEvaluator& measures);
+                                        const MeasureEvaluator& measures, const FewestSplits* fewest = nullptr);
 
 }  // namespace planmill
