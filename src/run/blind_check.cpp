@@ -125,7 +125,7 @@ BlindStretch draw_stretch(const LoadedJob& loaded, const GraphHandle& graph, con
       out.units_differing = 0;
     }
   }
-  if (out.result.empty()) out.result = "identical";
+  if (out.result.empty()) out.result = out.records_compared || out.final_state_compared ? "identical" : "nothing compared";
   return out;
 }
 
@@ -255,6 +255,9 @@ BlindCheck check_blindness(const RunReader& reader, const BlindCheckOptions& opt
       unreproduced = unreproduced || stretch.result == "not reproduced";
       check.stretches.push_back(std::move(stretch));
     }
+    const bool compared = std::any_of(check.stretches.begin(), check.stretches.end(),
+                                      [](const BlindStretch& s) { return s.result != "nothing compared"; });
+    if (!compared) return not_checked("the chains drawn hold no records or snapshot to compare yet");
     check.result = differed ? "differed" : unreproduced ? "not reproduced" : "identical";
     if (unreproduced && !differed) {
       check.why = "this build does not draw the stored plans again even on the map as it is" +

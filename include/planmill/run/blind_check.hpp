@@ -45,7 +45,7 @@ struct BlindStretch {
   // Compared records whose plan differs from the plan before it (the first: from the start plan).
   std::uint64_t records_changed = 0;
   bool final_state_compared = false;  // the stretch reached the chain's end: snapshot compared
-  std::string result;                 // "identical", "differed" or "not reproduced"
+  std::string result;  // "identical", "differed", "not reproduced" or "nothing compared" (no records yet)
   // The first difference: the step, the record (none when it was the final state) and the units
   // whose label differs (0 when only the stream or counters of the final state differ).
   std::optional<std::uint64_t> differed_at_step, differed_at_record;
