@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <numeric>
+#include <stdexcept>
 
 namespace planmill {
 
@@ -15,6 +16,43 @@ std::optional<std::size_t> UnitGraph::find_count_column(std::string_view name) c
   for (std::size_t c = 0; c < count_names_.size(); ++c)
     if (count_names_[c] == name) return c;
   return std::nullopt;
+}
+
+UnitGraph UnitGraph::with_counts_permuted(std::span<const std::size_t> columns,
+                                          std::span<const UnitIndex> source) const {
+  const std::size_t n = unit_count();
+  std::vector<bool> seen(n, false);
+  if (source.size() != n) throw std::invalid_argument("the permutation is not of the map's units");
+  for (const UnitIndex u : source) {
+    if (u >= n || seen[u]) throw std::invalid_argument("the permutation is not of the map's units");
+    seen[u] = true;
+  }
+  UnitGraph g;
+  g.ids_ = ids_;
+  g.index_of_ = index_of_;
+  g.population_ = population_;
+  g.total_population_ = total_population_;
+  g.count_names_ = count_names_;
+  g.counts_ = counts_;
+  g.groups_ = groups_;
+  g.elections_ = elections_;
+  g.counties_ = counties_;
+  g.municipalities_ = municipalities_;
+  g.area_ = area_;
+  g.perimeter_ = perimeter_;
+  g.outer_boundary_ = outer_boundary_;
+  g.offsets_ = offsets_;
+  g.adjacency_ = adjacency_;
+  g.incident_ = incident_;
+  g.edge_ends_ = edge_ends_;
+  g.edge_length_ = edge_length_;
+  for (const std::size_t c : columns) {
+    if (c >= count_names_.size()) throw std::invalid_argument("no such count column");
+    const auto from = count_column(c);
+    double* to = g.counts_.data() + c * n;
+    for (std::size_t u = 0; u < n; ++u) to[u] = from[source[u]];
+  }
+  return g;
 }
 
 UnitGraph::Components UnitGraph::components() const {

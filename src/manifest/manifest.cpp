@@ -90,7 +90,7 @@ std::vector<ChainProblem> coalesced(std::vector<ChainProblem> problems) {
 
 json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& problems,
                     const std::vector<ChainProblem>& rung_problems,
-                    const RunDiagnostics& diagnostics) {
+                    const RunDiagnostics& diagnostics, const BlindCheck* blind) {
   const RunState& s = reader.state();
   const RunLayout& layout = reader.layout();
   json m;
@@ -255,6 +255,14 @@ json build_manifest(const RunReader& reader, const std::vector<ChainProblem>& pr
                  {"rung_problems", all_rung_problems.size()},
                  {"inputs_not_matching", inputs_changed}};
   m["diagnostics"] = diagnostics_to_json(diagnostics);
+  if (blind) {
+    m["blind_check"] = blind_check_json(*blind);
+  } else {
+    BlindCheck none;
+    none.result = "not checked";
+    none.why = "this manifest was written by planmill diagnose, which draws no plans; planmill merge checks";
+    m["blind_check"] = blind_check_json(none);
+  }
   // A pool of runs: its pieces, their checksums and what was dropped (docs/manifest.md, "Pools").
   if (s.pooled) m["pool"] = read_pool_record(layout.root.string());
   return m;

@@ -58,6 +58,22 @@ Section cautions_section(const RunFacts& f) {
   } else {
     s.body += paragraph("No rule, soft term or measure of this run read group or vote columns.");
   }
+  // The manifest's blind check (docs/manifest.md, "blind_check"), when it drew chains again.
+  const json* blind = f.manifest && f.manifest->contains("blind_check") ? &(*f.manifest)["blind_check"] : nullptr;
+  if (blind && blind->is_object() && blind->value("applicable", json(false)) == json(true)) {
+    const std::string result = blind->value("result", std::string());
+    const std::string chains = std::to_string(blind->value("stretches", json::array()).size());
+    if (result == "identical") {
+      s.body += paragraph("planmill merge drew " + chains + " chains again from their first state on the map with "
+                          "every group and vote column permuted across units and found the very same plans, "
+                          "record for record (the manifest's blind_check).");
+    } else if (result == "differed") {
+      s.body += paragraph("planmill merge drew chains again on the map with its group and vote columns permuted "
+                          "and found other plans (the manifest's blind_check): something in this build reads "
+                          "those columns when drawing plans.",
+                          "caution");
+    }
+  }
   return s;
 }
 

@@ -2,6 +2,7 @@
 // checked against the inputs, the snapshots and the build), the run folder written, and this
 // rank's chains and ladders built from their snapshots or seed plans.
 #include "run/chain_runner.hpp"
+#include "run/start_plan.hpp"
 
 #include <spdlog/spdlog.h>
 
@@ -19,7 +20,6 @@
 #include "planmill/run/build_info.hpp"
 #include "planmill/run/judged_draws.hpp"
 #include "planmill/run/observables.hpp"
-#include "planmill/seed/seed_plan.hpp"
 #include "planmill/temper/job_ladder.hpp"
 #include "planmill/version.hpp"
 
@@ -27,10 +27,6 @@ namespace planmill::runner {
 namespace {
 
 namespace fs = std::filesystem;
-
-// Seed plans draw from their own streams, apart from the chains' (keyed by the chain index) and
-// the ladders' swap streams (temper/ladder.hpp: 2^62 + ladder index).
-constexpr std::uint64_t kSeedPlanStreamBase = 3ULL << 61;
 
 std::string make_run_id(const std::string& job_text, std::uint64_t seed) {
   const std::string now = utc_now_iso8601();
@@ -342,13 +338,8 @@ void ChainRunner::build_chains() {
 }
 
 Plan ChainRunner::start_plan(std::uint64_t chain_index) {
-  const ChainStarts starts = loaded_->job.starts;
-  if (loaded_->start && (starts == ChainStarts::given || (starts == ChainStarts::mixed && chain_index == 0)))
-    return *loaded_->start;
-  // Split only as needed: chains start from the distinct plans the search found with the fewest splits.
-  if (loaded_->fewest) return loaded_->fewest->plans[chain_index % loaded_->fewest->plans.size()];
-  Rng rng = make_stream(state_.seed, kSeedPlanStreamBase + chain_index);
-  return random_seed_plan(loaded_->graph, loaded_->job.districts, rules_, rng);
+  return chain_start_plan(loaded_->job, loaded_->graph, loaded_->start, rules_, state_.seed, chain_index,
+                          loaded_->fewest ? &*loaded_->fewest : nullptr);
 }
 
 }  // namespace planmill::runner

@@ -125,6 +125,9 @@ TEST_F(PoolCli, PiecesBecomeOneEnsembleWhoseChainsAreThePiecesChains) {
   EXPECT_EQ(manifest["totals"]["chains"], 4);
   EXPECT_EQ(manifest["chains"][2]["index_in_piece"], 0);
   EXPECT_EQ(manifest["pool"]["pieces"][1]["run_state_now"], "matches");
+  // Pieces have seeds of their own: the blind check is each piece's (planmill merge PIECE).
+  EXPECT_EQ(manifest["blind_check"]["result"], "not checked");
+  EXPECT_NE(manifest["blind_check"]["why"].get<std::string>().find("a pool of runs"), std::string::npos);
   ASSERT_EQ(test::shell(kBin + " export " + (dir_ / "b").string() + " --out " + (dir_ / "b-plan").string() +
                         " --plans 0:0 >/dev/null"), 0);
   const fs::path cmp = dir_ / "pool-compare.json";

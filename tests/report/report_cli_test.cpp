@@ -97,6 +97,8 @@ TEST_F(ReportCli, WithAPlanAManifestAndFiguresEveryFigureStandsAlone) {
   EXPECT_NE(h.find("@page { size: letter;"), std::string::npos);
   EXPECT_NE(h.find("Plan files at merge"), std::string::npos);
   EXPECT_EQ(h.find("The manifest is missing"), std::string::npos);
+  // merge's blind check passed (a job with no group rule), and the cautions say so.
+  EXPECT_NE(h.find("found the very same plans, record for record"), std::string::npos);
   EXPECT_NE(h.find("<b>Ordered districts: election.gov.sorted_shares."), std::string::npos);
   EXPECT_NE(h.find("<b>Ordered districts: group.grp.sorted_shares."), std::string::npos);
   EXPECT_NE(h.find("<b>Distribution of compactness.cut_edges."), std::string::npos);

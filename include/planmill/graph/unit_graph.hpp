@@ -90,6 +90,14 @@ class UnitGraph {
   [[nodiscard]] bool has_perimeters() const noexcept { return !perimeter_.empty(); }
   [[nodiscard]] double perimeter(UnitIndex u) const noexcept { return perimeter_[u]; }
 
+  // A copy of this map in which every count column named in `columns` takes, at unit u, the value
+  // unit source[u] has here (source: a permutation of the units); everything else (ids, population,
+  // counties, municipalities, shapes, edges and their ids) is the same, bit for bit. For the
+  // blind check (run/blind_check.hpp). Throws std::invalid_argument unless source is a
+  // permutation of 0..n-1 and every column exists.
+  [[nodiscard]] UnitGraph with_counts_permuted(std::span<const std::size_t> columns,
+                                               std::span<const UnitIndex> source) const;
+
   // Connected components: component index per unit, and their sizes (largest first).
   struct Components {
     std::vector<std::uint32_t> of_unit;
@@ -99,6 +107,7 @@ class UnitGraph {
 
  private:
   friend class UnitGraphBuilder;
+  // with_counts_permuted() copies every member below: a new one belongs there too.
   std::vector<std::string> ids_;
   std::unordered_map<std::string, UnitIndex> index_of_;
   std::vector<std::int64_t> population_;

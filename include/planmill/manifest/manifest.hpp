@@ -8,20 +8,27 @@
 #include <vector>
 
 #include "planmill/manifest/run_diagnostics.hpp"
+#include "planmill/run/blind_check.hpp"
 #include "planmill/run/run_reader.hpp"
 
 namespace planmill {
 
 // 2: the diagnostics section in the one verdict shape (docs/diagnostics.md, "JSON").
-inline constexpr std::int64_t kManifestSchemaVersion = 2;
+// 3: the blind check (`blind_check`, run/blind_check.hpp).
+inline constexpr std::int64_t kManifestSchemaVersion = 3;
 
 // `problems` is reader.verify() (the ensemble), `rung_problems` reader.verify_rungs() (the hotter
 // rungs of ladders that recorded every rung; they never touch the diagnostics); `diagnostics`
-// goes in as the "diagnostics" section.
+// goes in as the "diagnostics" section, `blind` as "blind_check" (none: "not checked", as by
+// `planmill diagnose`, which draws no plans).
 [[nodiscard]] nlohmann::ordered_json build_manifest(const RunReader& reader,
                                                     const std::vector<ChainProblem>& problems,
                                                     const std::vector<ChainProblem>& rung_problems,
-                                                    const RunDiagnostics& diagnostics);
+                                                    const RunDiagnostics& diagnostics,
+                                                    const BlindCheck* blind = nullptr);
+
+// The "blind_check" section (docs/manifest.md).
+[[nodiscard]] nlohmann::ordered_json blind_check_json(const BlindCheck& check);
 
 // Replaces RUNDIR/manifest.json atomically (a reader sees the old or the new file, never half).
 void write_manifest(const RunLayout& layout, const nlohmann::ordered_json& manifest);
