@@ -43,10 +43,11 @@ std::string band_figure(const SweepComparison& c, const std::string& measure) {
   return svg.str();
 }
 
-std::vector<std::string> setting_row(const SettingSummary& s) {
+std::vector<std::string> setting_row(const SweepComparison& c, const SettingSummary& s) {
   std::vector<std::string> row = {std::to_string(s.setting.index)};
-  row.insert(row.end(), s.setting.values.begin(), s.setting.values.end());
-  row.insert(row.end(), {s.status, s.verdict, s.verdict_line});
+  for (std::size_t a = 0; a < c.folder.keys.size(); ++a)
+    if (c.folder.axis_values[a].size() > 1) row.push_back(s.setting.values[a]);
+  row.insert(row.end(), {s.status, s.verdict});
   return row;
 }
 
@@ -59,12 +60,16 @@ std::string comparison_html(const SweepComparison& c) {
 
   Section settings{"settings", "Settings and their verdicts", {}};
   std::vector<std::string> header = {"setting"};
-  header.insert(header.end(), c.folder.keys.begin(), c.folder.keys.end());
-  header.insert(header.end(), {"status", "verdict", "verdict line"});
+  std::string fixed;  // axes of one value: the same in every setting
+  for (std::size_t a = 0; a < c.folder.keys.size(); ++a) {
+    if (c.folder.axis_values[a].size() > 1) header.push_back(c.folder.keys[a]);
+    else fixed += (fixed.empty() ? "" : ", ") + c.folder.keys[a] + " = " + c.folder.axis_values[a][0];
+  }
+  header.insert(header.end(), {"status", "verdict"});
   std::vector<std::vector<std::string>> rows;
   std::size_t failed = 0;
   for (const SettingSummary& s : c.settings) {
-    rows.push_back(setting_row(s));
+    rows.push_back(setting_row(c, s));
     failed += s.verdict != "pass";
   }
   if (failed > 0)
@@ -74,6 +79,9 @@ std::string comparison_html(const SweepComparison& c) {
                                    "not the rules'.",
                                "caution");
   settings.body += table(header, rows, "Each setting is the base job with these values; its run is in its folder.");
+  if (!fixed.empty()) settings.body += paragraph("In every setting: " + fixed + ".", "note");
+  for (const SettingSummary& s : c.settings)
+    if (s.verdict != "pass") settings.body += paragraph("Setting " + std::to_string(s.setting.index) + ": " + s.verdict_line, "note");
   doc.sections.push_back(std::move(settings));
 
   Section figures{"figures", "Measures by setting", {}};
