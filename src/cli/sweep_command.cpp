@@ -35,6 +35,17 @@ int plan_command(const std::string& sweep_file, const std::string& out, bool che
   return 0;
 }
 
+// A check every rank makes alike from the same files: only rank 0 says what it found.
+template <class F>
+auto checked_alike(const MpiSession& mpi, F check) {
+  try {
+    return check();
+  } catch (const InputError&) {
+    if (mpi.rank() != 0) throw RunFailedElsewhere{2};
+    throw;
+  }
+}
+
 // One setting through the runner, as `planmill run SETTING/job.toml` (with --resume when its run
 // folder holds a run), skipped when finished. Collective: every rank decides alike from the files.
 int run_setting(const MpiSession& mpi, const sweep::SweepSetting& s, const RunOptions& base) {
@@ -43,14 +54,17 @@ int run_setting(const MpiSession& mpi, const sweep::SweepSetting& s, const RunOp
   options.output_dir = s.run;
   const std::string name = fs::path(s.folder).filename().string();
   if (fs::exists(fs::path(s.run) / "run-state.json")) {
-    const RunStatus status = run_status(s.run, {.check_files = false});
-    if (status.condition == RunCondition::finished) {
+    const RunCondition condition = checked_alike(mpi, [&] {
+      const RunStatus status = run_status(s.run, {.check_files = false});
+      if (status.condition == RunCondition::damaged)
+        throw InputError({s.run, 0, {}}, "the run of setting " + name + " is damaged: " + status.why,
+                         "see 'planmill status " + s.run + "'; remove the run folder to run the setting anew");
+      return status.condition;
+    });
+    if (condition == RunCondition::finished) {
       if (mpi.rank() == 0) std::cout << "setting " << name << ": finished already, skipped\n";
       return 0;
     }
-    if (status.condition == RunCondition::damaged)
-      throw InputError({s.run, 0, {}}, "the run of setting " + name + " is damaged: " + status.why,
-                       "see 'planmill status " + s.run + "'; remove the run folder to run the setting anew");
     options.resume = true;
   }
   MPI_Barrier(MPI_COMM_WORLD);  // no rank starts the run while another still reads its state
@@ -65,12 +79,15 @@ int run_command(const std::string& dir, const std::optional<std::size_t>& only, 
   MpiSession mpi;
   start_run_logging(mpi, log_level, quiet);
   return guarded_run(mpi, [&] {
-    const sweep::SweepFolder folder = sweep::read_sweep_folder(dir);
-    if (only && *only >= folder.settings.size())
-      throw InputError({"", 0, "--setting"},
-                       "is " + std::to_string(*only) + ", but the sweep has settings 0.." +
-                           std::to_string(folder.settings.size() - 1),
-                       "give a setting listed in " + dir + "/settings.csv");
+    const sweep::SweepFolder folder = checked_alike(mpi, [&] {
+      sweep::SweepFolder f = sweep::read_sweep_folder(dir);
+      if (only && *only >= f.settings.size())
+        throw InputError({"", 0, "--setting"},
+                         "is " + std::to_string(*only) + ", but the sweep has settings 0.." +
+                             std::to_string(f.settings.size() - 1),
+                         "give a setting listed in " + dir + "/settings.csv");
+      return f;
+    });
     for (const sweep::SweepSetting& s : folder.settings) {
       if (only && s.index != *only) continue;
       if (const int status = run_setting(mpi, s, base); status != 0) return status;
