@@ -105,7 +105,23 @@ int compare_command(const std::string& dir, const std::string& csv, const std::s
   if (!csv.empty()) files.emplace_back(csv, sweep::comparison_csv(c));
   if (!json.empty()) files.emplace_back(json, sweep::comparison_json(c).dump(2) + "\n");
   if (!html.empty()) files.emplace_back(html, sweep::comparison_html(c));
-  for (const auto& [path, text] : files) write_file_atomically(path, text);
+  // Staged beside their places, then renamed in: an output that cannot be written leaves none new.
+  std::vector<std::string> staged;
+  try {
+    for (const auto& [path, text] : files) {
+      staged.push_back(path + ".staged");
+      write_file_atomically(staged.back(), text);
+    }
+  } catch (const OutputError&) {
+    std::error_code ec;
+    for (const std::string& f : staged) fs::remove(f, ec);
+    throw;
+  }
+  for (std::size_t i = 0; i < files.size(); ++i) {
+    std::error_code ec;
+    fs::rename(staged[i], files[i].first, ec);
+    if (ec) throw OutputError(files[i].first + ": cannot move the staged file into place: " + ec.message());
+  }
   if (!c.all_finished()) return 7;
   return c.all_passed() ? 0 : 3;
 }

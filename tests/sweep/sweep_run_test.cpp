@@ -105,6 +105,13 @@ TEST(SweepRun, PlanRunCompareAndNumpyAgreeOnEveryBand) {
   }
   EXPECT_EQ(shell(check + " >" + (dir / "numpy.out").string()), 0) << read_text(dir / "numpy.out");
 
+  // An output that cannot be written: exit 5, and the others are not written either.
+  EXPECT_EQ(shell(kBin + " sweep compare " + out + " --csv " + (dir / "new.csv").string() + " --html " +
+                  (dir / "no-such-folder" / "c.html").string() + " >/dev/null 2>&1"),
+            5);
+  EXPECT_FALSE(fs::exists(dir / "new.csv"));
+  EXPECT_FALSE(fs::exists(dir / "new.csv.staged"));
+
   // The JSON says the same per setting; the HTML page holds a figure per shown measure.
   const nlohmann::json j = nlohmann::json::parse(read_text(dir / "c.json"));
   ASSERT_EQ(j.at("settings").size(), 4u);
