@@ -23,6 +23,7 @@ void add_report_command(CLI::App& app, Action& action);
 void add_ingest_command(CLI::App& app, Action& action);
 void add_status_command(CLI::App& app, Action& action);
 void add_pool_command(CLI::App& app, Action& action);
+void add_sweep_command(CLI::App& app, Action& action);
 
 // For subcommands that a later piece of work fills in: "not yet available", exit 2.
 void add_pending_command(CLI::App& app, Action& action, const char* name, const char* summary);

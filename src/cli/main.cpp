@@ -28,6 +28,7 @@ int main(int argc, char** argv) {
   cli::add_ingest_command(app, action);
   cli::add_status_command(app, action);
   cli::add_pool_command(app, action);
+  cli::add_sweep_command(app, action);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,11 +1,9 @@
-#include <mpi.h>
-#include <spdlog/spdlog.h>
-
 #include <cstdio>
 #include <iostream>
 #include <map>
 
 #include "cli/commands.hpp"
+#include "cli/run_session.hpp"
 #include "cli/whole_option.hpp"
 #include "planmill/job/job.hpp"
 #include "planmill/base/error.hpp"
@@ -14,52 +12,10 @@
 namespace planmill::cli {
 namespace {
 
-// MPI for the length of one run: `planmill run` works alone (one rank) and under mpiexec.
-class MpiSession {
- public:
-  MpiSession() {
-    int provided = 0;
-    MPI_Init_thread(nullptr, nullptr, MPI_THREAD_FUNNELED, &provided);
-    MPI_Comm_rank(MPI_COMM_WORLD, &rank_);
-    MPI_Comm_size(MPI_COMM_WORLD, &size_);
-  }
-  ~MpiSession() { MPI_Finalize(); }
-  MpiSession(const MpiSession&) = delete;
-  MpiSession& operator=(const MpiSession&) = delete;
-  [[nodiscard]] int rank() const { return rank_; }
-  [[nodiscard]] int size() const { return size_; }
-  // A failure that the other ranks do not know of: end them all.
-  [[noreturn]] void abort(int status) const {
-    MPI_Abort(MPI_COMM_WORLD, status);
-    std::exit(status);
-  }
-
- private:
-  int rank_ = 0, size_ = 1;
-};
-
-int exit_status(RunEnd end) {
-  switch (end) {
-    case RunEnd::finished:
-    case RunEnd::converged:
-    case RunEnd::nothing_to_do:
-      return 0;
-    case RunEnd::budget_spent:
-      return 3;
-    case RunEnd::stopped_on_signal:
-      return 4;
-  }
-  return 1;
-}
-
 int run_command(const RunOptions& options, const std::string& log_level, bool quiet) {
   MpiSession mpi;
-  const std::string prefix = mpi.size() > 1 ? "planmill[rank " + std::to_string(mpi.rank()) + "]: " : "planmill: ";
-  spdlog::set_pattern("[%Y-%m-%d %H:%M:%S] %v");
-  spdlog::set_level(quiet ? spdlog::level::warn : spdlog::level::from_str(log_level));
-  if (mpi.rank() != 0) spdlog::set_level(spdlog::level::warn);
-  install_run_signal_handlers();
-  try {
+  start_run_logging(mpi, log_level, quiet);
+  return guarded_run(mpi, [&] {
     if (options.until_converged && options.max_steps > 0) {
       // The first block alone runs the job's steps, so a smaller budget could never be kept.
       const JobSpec job = load_job(options.job_path);
@@ -76,22 +32,7 @@ int run_command(const RunOptions& options, const std::string& log_level, bool qu
       std::cout << "plans and run state: " << out.run_dir << "\n";
     }
     return exit_status(out.end);
-  } catch (const RunFailedElsewhere& e) {
-    return e.exit_status;
-  } catch (const InputError& e) {
-    std::cerr << prefix << "error: " << e.what() << "\n";
-    return 2;
-  } catch (const InfeasibleError& e) {
-    std::cerr << prefix << "error: " << e.what() << "\n";
-    return 2;
-  } catch (const OutputError& e) {  // agreed by every rank: each ends cleanly
-    std::cerr << prefix << "error: " << e.what() << "\n";
-    return 5;
-  } catch (const std::exception& e) {
-    std::cerr << prefix << "error: " << e.what() << "\n";
-    if (mpi.size() > 1) mpi.abort(1);
-    return 1;
-  }
+  });
 }
 
 }  // namespace

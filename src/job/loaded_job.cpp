@@ -10,8 +10,15 @@
 namespace planmill {
 
 LoadedJob load_and_check_job(const std::string& job_path) {
-  LoadedJob loaded{load_job(job_path), {}, {}, std::nullopt, {}, {}, std::nullopt};
-  loaded.graph = share_graph(load_unit_graph(loaded.job.map, &loaded.report));
+  JobSpec job = load_job(job_path);
+  LoadReport report;
+  GraphHandle graph = share_graph(load_unit_graph(job.map, &report));
+  return check_job_on_graph(std::move(job), std::move(graph), std::move(report));
+}
+
+LoadedJob check_job_on_graph(JobSpec job, GraphHandle graph, LoadReport report) {
+  const std::string job_path = job.path;
+  LoadedJob loaded{std::move(job), std::move(graph), std::move(report), std::nullopt, {}, {}, std::nullopt};
   check_feasible(*loaded.graph, loaded.job.districts, loaded.job.rules.population_tolerance, job_path);
   (void)make_rule_set(loaded.job.rules, *loaded.graph, job_path);  // the data the rules need, before any search
   if (loaded.job.sampler.tree_weight_county != 1.0 && !loaded.graph->has_counties())

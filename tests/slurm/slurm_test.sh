@@ -6,7 +6,8 @@
 #     finished run's plans and observables equal, record for record, those of the same job run
 #     straight through without Slurm (both exported as CSV and compared byte for byte);
 #  2. tempered-ladder.sbatch under mpiexec: a ladder of 2 rungs over 2 tasks finishes in one round;
-#  3. pooled-array.sbatch, an array of 2 pieces: distinct seeds, each finished, pooled by the last.
+#  3. pooled-array.sbatch, an array of 2 pieces: distinct seeds, each finished, pooled by the last;
+#  4. sweep-array.sbatch, an array of a sweep's 2 settings: each finished, compared by the last.
 # The daemons it started are stopped on every way out (trap).
 # Usage: slurm_test.sh PLANMILL_BINARY JOBS_SLURM_DIR
 set -euo pipefail
@@ -57,6 +58,10 @@ printf '%s\n[sampler]\nkernel = "flip"\nchains = 1\nsteps = 4000\nburn_in = 200\
   "$base" >"$work/state/ladder.toml"
 printf '%s\n[sampler]\nchains = 1\nsteps = 2000\nburn_in = 100\nrecord_every = 20\nseed = 30\n[output]\ncheckpoint_seconds = 600\n' \
   "$base" >"$work/state/pieces.toml"
+printf '%s\n[sampler]\nchains = 1\nsteps = 1000\nburn_in = 100\nrecord_every = 20\nseed = 40\n[output]\ncheckpoint_seconds = 600\n' \
+  "$base" >"$work/state/sweep-base.toml"
+printf 'job = "sweep-base.toml"\n[[axis]]\nkey = "rules.population_tolerance"\nvalues = [0.02, 0.05]\n' \
+  >"$work/state/sweep.toml"
 
 cd "$work"
 common=(--export=ALL,PLANMILL=$bin,PLANMILL_BATCH_STEPS=$templates/batch-steps.sh)
@@ -74,6 +79,10 @@ ladder=$(PLANMILL_JOB=state/ladder.toml PLANMILL_OUT=runs/ladder PLANMILL_LAUNCH
 pieces=$(PLANMILL_JOB=state/pieces.toml PLANMILL_OUT=runs/pieces \
   sbatch --parsable "${common[@]}" --array=0-1 --ntasks=1 --time=5 --output="$work/pieces-%A-%a.out" \
   "$templates/pooled-array.sbatch")
+"$bin" sweep plan state/sweep.toml --out runs/sweep >/dev/null || fail "sweep plan failed"
+sweep=$(PLANMILL_SWEEP=runs/sweep \
+  sbatch --parsable "${common[@]}" --array=0-1 --ntasks=1 --time=5 --output="$work/sweep-%A-%a.out" \
+  "$templates/sweep-array.sbatch")
 
 
 # Every submission has ended once the queue is empty (a resubmission enters before its parent ends).
@@ -115,4 +124,10 @@ seeds=$(python3 -c 'import json,sys; print(" ".join(str(p["seed"]) for p in json
 "$bin" diagnose runs/pieces/pool --json pool-diagnose.json >/dev/null || [ $? -eq 3 ] || fail "diagnose of the pool failed"
 chains=$(python3 -c 'import json,sys; print(len(json.load(open(sys.argv[1]))["chains"]))' pool-diagnose.json)
 [ "$chains" -eq 2 ] || fail "diagnose sees $chains chains in the pool of 2 one-chain pieces"
-echo "slurm test: $sessions submissions for the stopped run; ladder finished; 2 pieces pooled"
+while IFS=, read -r i folder _; do
+  "$bin" status "runs/sweep/$folder/run" >/dev/null || fail "sweep setting $i did not finish: $(cat sweep-*.out)"
+done < <(tail -n +2 runs/sweep/settings.csv)
+[ -f runs/sweep/compare.html ] || fail "the last setting did not compare the sweep: $(cat sweep-*.out)"
+compared=$(python3 -c 'import csv,sys; print(" ".join(sorted({r["index"] for r in csv.DictReader(open(sys.argv[1]))})))' runs/sweep/compare.csv)
+[ "$compared" = "0 1" ] || fail "the sweep comparison holds settings '$compared', not '0 1'"
+echo "slurm test: $sessions submissions for the stopped run; ladder finished; 2 pieces pooled; 2 sweep settings compared"

@@ -25,5 +25,7 @@ struct LoadedJob {
 
 // Throws InputError / InfeasibleError with the file, line and key of the first problem.
 [[nodiscard]] LoadedJob load_and_check_job(const std::string& job_path);
+// The same checks of a job already read on a map already loaded (a sweep's settings share one).
+[[nodiscard]] LoadedJob check_job_on_graph(JobSpec job, GraphHandle graph, LoadReport report = {});
 
 }  // namespace planmill
