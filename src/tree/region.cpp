@@ -1,6 +1,7 @@
 // Region construction: global->local map sized once per graph, only touched entries reset.
 #include "planmill/tree/region.hpp"
 
+#include <algorithm>
 #include <stdexcept>
 
 namespace planmill {
@@ -13,6 +14,7 @@ void Region::prepare_map(const UnitGraph& graph) {
     for (const UnitIndex u : global_) local_[u] = kNotInRegion;
   }
   global_.clear();
+  known_connected_ = false;
 }
 
 void Region::build(const Plan& plan, DistrictIndex a, DistrictIndex b) {
@@ -48,6 +50,10 @@ void Region::build_from_seeds(const Plan& plan, UnitIndex seed_a, UnitIndex seed
     }
   }
   fill_adjacency(graph);
+  // Every unit was reached from a seed, so the region is connected when the seeds (locals 0 and 1)
+  // are one unit or neighbours.
+  const std::span<const std::uint32_t> first = neighbors(0);
+  known_connected_ = seed_b == seed_a || std::find(first.begin(), first.end(), 1U) != first.end();
 }
 
 void Region::build(const UnitGraph& graph, std::span<const UnitIndex> units) {
