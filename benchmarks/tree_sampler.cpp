@@ -2,16 +2,21 @@
 // populations + balanced cuts) against Boost.Graph's random_spanning_tree on the same regions.
 // Each Boost graph is built once per region, outside the timed loop.
 //
-// Maps (benchmark argument): 0 = the benchmark state, `synth` with 10,000 units and 100
+// Maps (first benchmark argument): 0 = the benchmark state, `synth` with 10,000 units and 100
 // districts, cut into 100 districts within ±3% by recursive spanning-tree bisection; regions are
 // all pairs of adjacent districts. 1 = a 100 x 100 grid of 10 x 10 blocks, regions = the 50
-// horizontal pairs of 200 units. Balanced cuts use ±5% of the ideal population.
+// horizontal pairs of 200 units. Balanced cuts use ±5% of the ideal population. Regions are grown
+// from a cut edge between the pair (Region::build_from_seeds), as the kernels grow them.
+// BM_WilsonRoot/MAP/RULE: the tree and cuts rooted by RULE 0 = a uniform unit (before issue 18),
+// 1 = SpanningTreeSampler::chosen_root (what sample(region, rng) does); MAP 2 = single districts
+// of map 0 (100 units), the regions merge-split counts.
 #include <benchmark/benchmark.h>
 #include <unistd.h>
 
 #include <boost/graph/adjacency_list.hpp>
 #include <boost/graph/random_spanning_tree.hpp>
 #include <boost/property_map/property_map.hpp>
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <filesystem>
@@ -65,7 +70,7 @@ void bisect(const UnitGraph& graph, std::vector<UnitIndex> units, std::size_t k,
   const double window = (k <= 3 ? 0.02 : 0.004 * static_cast<double>(k1)) * mean;
   std::vector<std::uint8_t> side(region.size());
   for (int attempt = 0; attempt < 200000; ++attempt) {
-    sampler.sample(region, rng);
+    sampler.sample(region, rng, uniform_below(rng, region.size()));  // the state as first drawn
     for (std::uint32_t v = 0; v < region.size(); ++v) {
       if (v == sampler.root()) continue;
       const auto below = static_cast<double>(sampler.subtree_population()[v]);
@@ -96,6 +101,7 @@ struct BenchState {
   std::int64_t lo = 0, hi = 0;
   double max_deviation = 0.0;
   std::vector<Region> regions;
+  std::vector<Region> districts;  // single districts, grown from one unit
   std::vector<BoostGraph> boost_graphs;
 
   explicit BenchState(bool synthetic) {
@@ -139,12 +145,25 @@ struct BenchState {
       }
     }
     pairs.assign(adjacent.begin(), adjacent.end());
+    // seeds in the order of pairs (the set sorted them)
+    std::vector<std::pair<UnitIndex, UnitIndex>> by_pair(pairs.size());
+    for (const auto& [u, w] : seeds) {
+      std::pair<DistrictIndex, DistrictIndex> key(std::min(district[u], district[w]), std::max(district[u], district[w]));
+      by_pair[static_cast<std::size_t>(std::lower_bound(pairs.begin(), pairs.end(), key) - pairs.begin())] = {u, w};
+    }
+    seeds = by_pair;
+    std::vector<bool> grown(k, false);
+    for (UnitIndex u = 0; u < graph.unit_count(); ++u) {
+      if (grown[district[u]]) continue;
+      grown[district[u]] = true;
+      districts.emplace_back().build_from_seeds(plan, u, u);
+    }
     const double ideal = plan.ideal_population();
     lo = static_cast<std::int64_t>(std::ceil(0.95 * ideal));
     hi = static_cast<std::int64_t>(std::floor(1.05 * ideal));
-    for (const auto& [a, b] : pairs) {
+    for (std::size_t p = 0; p < pairs.size(); ++p) {
       Region& region = regions.emplace_back();
-      region.build(plan, a, b);
+      region.build_from_seeds(plan, seeds[p].first, seeds[p].second);
       BoostGraph& g = boost_graphs.emplace_back(region.size());
       for (std::uint32_t v = 0; v < region.size(); ++v) {
         for (const std::uint32_t w : region.neighbors(v)) {
@@ -155,10 +174,11 @@ struct BenchState {
   }
 };
 
-const BenchState& bench_state(const benchmark::State& state) {
+const BenchState& bench_state(std::int64_t map) {
   static const BenchState synthetic(true), grid(false);
-  return state.range(0) == 0 ? synthetic : grid;
+  return map == 0 ? synthetic : grid;
 }
+const BenchState& bench_state(const benchmark::State& state) { return bench_state(state.range(0)); }
 
 void set_counters(benchmark::State& state, double units, double cuts, double steps) {
   const auto trees = static_cast<double>(state.iterations());
@@ -189,6 +209,34 @@ void BM_WilsonTreeAndCuts(benchmark::State& state) {
   set_counters(state, units, cuts, steps);
 }
 BENCHMARK(BM_WilsonTreeAndCuts)->Arg(0)->Arg(1);
+
+// Walk steps by root rule: a uniform root (before) against the chosen one (after).
+void BM_WilsonRoot(benchmark::State& state) {
+  const BenchState& s = bench_state(state.range(0) == 2 ? 0 : state.range(0));
+  const std::vector<Region>& regions = state.range(0) == 2 ? s.districts : s.regions;
+  SpanningTreeSampler sampler;
+  Rng rng = make_stream(1, 0);
+  std::size_t i = 0;
+  double units = 0, cuts = 0, steps = 0;
+  for (auto _ : state) {
+    const Region& region = regions[i++ % regions.size()];
+    if (state.range(1) == 0) {
+      sampler.sample(region, rng, uniform_below(rng, region.size()));
+    } else {
+      sampler.sample(region, rng);
+    }
+    const auto balanced = sampler.balanced_cuts(s.lo, s.hi);
+    benchmark::DoNotOptimize(balanced.data());
+    units += region.size();
+    cuts += static_cast<double>(balanced.size());
+    steps += static_cast<double>(sampler.walk_steps());
+  }
+  const auto trees = static_cast<double>(state.iterations());
+  state.counters["units_per_region"] = units / trees;
+  state.counters["walk_steps_per_tree"] = steps / trees;
+  state.counters["balanced_cuts_per_tree"] = cuts / trees;
+}
+BENCHMARK(BM_WilsonRoot)->ArgsProduct({{0, 1, 2}, {0, 1}});
 
 // Ours, the tree alone (subtree populations included: sample() computes them).
 void BM_WilsonTreeOnly(benchmark::State& state) {

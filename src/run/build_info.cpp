@@ -64,6 +64,7 @@ std::string isa_text() {
   add(true, "fast-math");
 #endif
   (void)add;
+  if (kNativeIsa) isa += " (native: this host's)";
   return isa;
 }
 

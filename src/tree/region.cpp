@@ -1,6 +1,7 @@
 // Region construction: global->local map sized once per graph, only touched entries reset.
 #include "planmill/tree/region.hpp"
 
+#include <algorithm>
 #include <stdexcept>
 
 namespace planmill {
@@ -13,6 +14,7 @@ void Region::prepare_map(const UnitGraph& graph) {
     for (const UnitIndex u : global_) local_[u] = kNotInRegion;
   }
   global_.clear();
+  known_connected_ = false;
 }
 
 void Region::build(const Plan& plan, DistrictIndex a, DistrictIndex b) {
@@ -37,17 +39,41 @@ void Region::build_from_seeds(const Plan& plan, UnitIndex seed_a, UnitIndex seed
     local_[u] = static_cast<std::uint32_t>(global_.size());
     global_.push_back(u);
   };
+  offsets_.clear();
+  adjacency_.clear();
+  population_.clear();
+  weight_.clear();
+  total_population_ = 0;
+  offsets_.push_back(0);
+  const bool weighted = !tree_weights_.trivial();
+  const std::span<const DistrictIndex> district = plan.assignment();
   add(seed_a);
   if (seed_b != seed_a) add(seed_b);
-  // Breadth-first through units labelled a or b; global_ doubles as the queue.
+  // Breadth-first through units labelled a or b; global_ doubles as the queue. Each unit's
+  // neighbours in the region are listed as it leaves the queue (every one has its local index by
+  // then), so the CSR is the one fill_adjacency() would build, in one pass over the neighbours.
   for (std::size_t head = 0; head < global_.size(); ++head) {
-    for (const UnitIndex w : graph.neighbors(global_[head])) {
-      if (local_[w] != kNotInRegion) continue;
-      const DistrictIndex d = plan.district_of(w);
-      if (d == a || d == b) add(w);
+    const UnitIndex u = global_[head];
+    for (const UnitIndex w : graph.neighbors(u)) {
+      std::uint32_t local = local_[w];
+      if (local == kNotInRegion) {
+        const DistrictIndex d = district[w];
+        if (d != a && d != b) continue;
+        local = static_cast<std::uint32_t>(global_.size());
+        add(w);
+      }
+      adjacency_.push_back(local);
+      if (weighted) weight_.push_back(tree_weights_.weight(graph, u, w));
     }
+    offsets_.push_back(adjacency_.size());
+    const std::int64_t pop = graph.population(u);
+    population_.push_back(pop);
+    total_population_ += pop;
   }
-  fill_adjacency(graph);
+  // Every unit was reached from a seed, so the region is connected when the seeds (locals 0 and 1)
+  // are one unit or neighbours.
+  const std::span<const std::uint32_t> first = neighbors(0);
+  known_connected_ = seed_b == seed_a || std::find(first.begin(), first.end(), 1U) != first.end();
 }
 
 void Region::build(const UnitGraph& graph, std::span<const UnitIndex> units) {

@@ -40,25 +40,39 @@ std::size_t weighted_pick(std::span<const double> w, Rng& rng) {
 
 }  // namespace
 
+std::uint32_t SpanningTreeSampler::chosen_root(AdjacencyView graph) noexcept {
+  std::uint32_t best = 0;
+  for (const std::uint32_t w : graph.neighbors(0)) {
+    if (graph.degree(w) > graph.degree(best) || (graph.degree(w) == graph.degree(best) && w < best)) best = w;
+  }
+  return best;
+}
+
 void SpanningTreeSampler::sample(const Region& region, Rng& rng) {
   if (region.size() == 0) throw std::invalid_argument("SpanningTreeSampler: empty region");
-  sample(region, rng, uniform_below(rng, region.size()));
+  sample(region, rng, chosen_root(region.adjacency()));
 }
 
 void SpanningTreeSampler::sample(const Region& region, Rng& rng, std::uint32_t root) {
-  sample(region.adjacency(), region.populations(), rng, root, region.weights());
+  draw(region.adjacency(), region.populations(), rng, root, region.weights(), region.known_connected());
 }
 
 void SpanningTreeSampler::sample(AdjacencyView graph, std::span<const std::int64_t> population,
                                  Rng& rng, std::uint32_t root, std::span<const double> weights) {
+  draw(graph, population, rng, root, weights, false);
+}
+
+void SpanningTreeSampler::draw(AdjacencyView graph, std::span<const std::int64_t> population, Rng& rng,
+                               std::uint32_t root, std::span<const double> weights, bool known_connected) {
   const auto n = static_cast<std::uint32_t>(graph.vertex_count());
   if (population.size() != n)
     throw std::invalid_argument("SpanningTreeSampler: not one population per vertex");
   if (root >= n) throw std::invalid_argument("SpanningTreeSampler: root outside the region");
   if (!weights.empty() && weights.size() != graph.entry_count())
     throw std::invalid_argument("SpanningTreeSampler: not one weight per adjacency entry");
-  // A walk on a disconnected region would never end; the check costs one BFS.
-  if (!connected(graph, in_tree_, queue_)) {
+  // A walk on a disconnected region would never end; the check costs one BFS (skipped for a
+  // region its builder knows to be connected).
+  if (!known_connected && !connected(graph, in_tree_, queue_)) {
     throw std::invalid_argument("SpanningTreeSampler: region is not connected");
   }
   in_tree_.assign(n, 0);

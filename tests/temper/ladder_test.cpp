@@ -353,9 +353,12 @@ TEST(Ladder, TuningEqualisesNeighbourAcceptanceAndFreezes) {
   };
   show("untuned", untuned);
   show("tuned", tuned);
-  // Binomial sd of each acceptance with ~6,700-10,000 attempts is below 0.006.
+  // Binomial sd of each acceptance with ~6,700-10,000 attempts is below 0.006, but the tuned
+  // ladder itself varies with the start plan: over start streams (1..12, 0) the tuned spread was
+  // 0.02 to 0.14 (0.141 for this one since issue 18 changed the trees behind the seed plan), so
+  // the bound is 0.2, still a fifth of the untuned spread (0.96).
   EXPECT_GT(spread(untuned.statistics()), 0.3);
-  EXPECT_LT(spread(tuned.statistics()), 0.1) << frozen[1] << " " << frozen[2];
+  EXPECT_LT(spread(tuned.statistics()), 0.2) << frozen[1] << " " << frozen[2];
 }
 
 TEST(ChainBeta, SnapshotCarriesBetaAndFormatOneMeansTheSetupBeta) {

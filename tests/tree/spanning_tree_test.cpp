@@ -29,7 +29,7 @@ namespace {
 // A failing uniformity test at this level is a bug, not bad luck (seeds are fixed anyway).
 constexpr double kPValueThreshold = 1e-4;
 
-enum class RootChoice { uniform, fixed };
+enum class RootChoice { chosen, fixed };  // chosen: sample(region, rng), SpanningTreeSampler::chosen_root
 
 ChiSquareResult wilson_chi_square(const Region& region, const TreeCatalog& catalog,
                                   std::size_t draws_per_tree, RootChoice roots,
@@ -39,7 +39,7 @@ ChiSquareResult wilson_chi_square(const Region& region, const TreeCatalog& catal
   Rng rng = make_stream(seed, 0);
   const std::size_t draws = draws_per_tree * catalog.tree_count();
   for (std::size_t i = 0; i < draws; ++i) {
-    if (roots == RootChoice::uniform) {
+    if (roots == RootChoice::chosen) {
       sampler.sample(region, rng);
     } else {
       sampler.sample(region, rng, fixed_root);
@@ -67,13 +67,13 @@ struct GridBlock {
   }
 };
 
-TEST(WilsonUniformity, ThreeByThreeGridAllRootsAndFixedRoots) {
+TEST(WilsonUniformity, ThreeByThreeGridChosenRootAndFixedRoots) {
   GridBlock block;
   const TreeCatalog catalog(block.region);
   ASSERT_EQ(catalog.tree_count(), 192U);  // OEIS A007341, 3x3 grid
-  const auto uniform_root =
-      wilson_chi_square(block.region, catalog, 200, RootChoice::uniform, 0, 11);
-  EXPECT_GT(uniform_root.p_value, kPValueThreshold) << "X2=" << uniform_root.statistic;
+  const auto chosen_root =
+      wilson_chi_square(block.region, catalog, 200, RootChoice::chosen, 0, 11);
+  EXPECT_GT(chosen_root.p_value, kPValueThreshold) << "X2=" << chosen_root.statistic;
   // Uniformity holds for any fixed root: a corner (local 0) and the centre (unit 5, local 4).
   const auto corner = wilson_chi_square(block.region, catalog, 200, RootChoice::fixed, 0, 12);
   EXPECT_GT(corner.p_value, kPValueThreshold) << "X2=" << corner.statistic;
@@ -89,7 +89,7 @@ TEST(WilsonUniformity, IrregularGraphAndCompleteGraph) {
   region.build(irregular, all7);
   const TreeCatalog catalog(region);
   ASSERT_EQ(catalog.tree_count(), 24U);  // 3 x 8, see small_graphs.hpp
-  EXPECT_GT(wilson_chi_square(region, catalog, 1000, RootChoice::uniform, 0, 21).p_value,
+  EXPECT_GT(wilson_chi_square(region, catalog, 1000, RootChoice::chosen, 0, 21).p_value,
             kPValueThreshold);
   EXPECT_GT(wilson_chi_square(region, catalog, 1000, RootChoice::fixed, 6, 22).p_value,
             kPValueThreshold);  // the pendant as root
@@ -99,7 +99,7 @@ TEST(WilsonUniformity, IrregularGraphAndCompleteGraph) {
   region.build(k4, all4);
   const TreeCatalog k4_catalog(region);
   ASSERT_EQ(k4_catalog.tree_count(), 16U);  // Cayley: 4^2
-  EXPECT_GT(wilson_chi_square(region, k4_catalog, 1000, RootChoice::uniform, 0, 23).p_value,
+  EXPECT_GT(wilson_chi_square(region, k4_catalog, 1000, RootChoice::chosen, 0, 23).p_value,
             kPValueThreshold);
 }
 

@@ -28,6 +28,9 @@ class Region {
   // but reaches just the units connected to the seeds inside the two districts: for plans with
   // connected districts this is the whole pair.
   void build_from_seeds(const Plan& plan, UnitIndex seed_a, UnitIndex seed_b);
+  // Whether the last build proved the region connected (build_from_seeds with equal or adjacent
+  // seeds: every unit was reached from them); false says only "not proved".
+  [[nodiscard]] bool known_connected() const noexcept { return known_connected_; }
   // The given units, local index i = units[i]. Throws std::invalid_argument on a repeated or
   // out-of-range unit.
   void build(const UnitGraph& graph, std::span<const UnitIndex> units);
@@ -81,6 +84,7 @@ class Region {
   std::vector<double> weight_;
   TreeWeights tree_weights_;
   std::int64_t total_population_ = 0;
+  bool known_connected_ = false;
 };
 
 }  // namespace planmill

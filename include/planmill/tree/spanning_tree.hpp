@@ -4,14 +4,22 @@
 // recombination step needs from the tree: subtree populations, the balanced cut edges, and
 // the vertex set on one side of a cut.
 //
-// Promises: the tree is uniform over all spanning trees of the region for the root drawn
-// uniformly by sample(region, rng) and for any fixed root given to sample(region, rng, root)
-// (the law of the tree does not depend on the root). A region with edge weights (Region::weights(),
-// tree_weights.hpp) is walked with steps in proportion to the weights, which draws a tree T with
-// probability prod_{e in T} w(e) / tau_w (Wilson 1996; Propp and Wilson 1998), again for any root.
-// The region must be connected (merged
-// districts are); otherwise sample() throws std::invalid_argument. Once the buffers have grown to
-// the largest region seen, nothing here allocates.
+// Promises: the tree is uniform over all spanning trees of the region for any fixed root given to
+// sample(region, rng, root) (the law of the tree does not depend on the root: Wilson 1996), so
+// sample(region, rng) roots it where the walk ends soonest among a few cheap candidates:
+// chosen_root(), a rule of the region alone, drawn from no random stream. A region with edge weights
+// (Region::weights(), tree_weights.hpp) is walked with steps in proportion to the weights, which
+// draws a tree T with probability prod_{e in T} w(e) / tau_w (Wilson 1996; Propp and Wilson 1998),
+// again for any root. The region must be connected (merged districts are); otherwise sample()
+// throws std::invalid_argument. Once the buffers have grown to the largest region seen, nothing
+// here allocates.
+//
+// Why that root: Wilson's walk takes sum_v pi(v) (E_v T_r + E_r T_v) steps on average (Wilson
+// 1996), i.e. Kemeny's constant plus E_pi T_r, the stationary walk's hitting time of the root r,
+// which is smallest at central units of high degree. A region built from a cut edge
+// (Region::build_from_seeds) has that edge's end at local 0, on the seam of the two districts,
+// near the middle of the merged region; the root is the unit of highest degree among local 0 and
+// its neighbours (first in local order on ties). Figures: docs/performance.md, "Spanning trees".
 #include <cstdint>
 #include <limits>
 #include <span>
@@ -27,8 +35,11 @@ class SpanningTreeSampler {
  public:
   static constexpr std::uint32_t kNoParent = std::numeric_limits<std::uint32_t>::max();
 
-  void sample(const Region& region, Rng& rng);  // root uniform over the region's vertices
+  void sample(const Region& region, Rng& rng);  // rooted at chosen_root(region.adjacency())
   void sample(const Region& region, Rng& rng, std::uint32_t root);
+  // The root sample(region, rng) uses: the highest degree among vertex 0 and its neighbours, the
+  // first in vertex order on ties. The graph must have a vertex.
+  [[nodiscard]] static std::uint32_t chosen_root(AdjacencyView graph) noexcept;
   // The same on any graph: its adjacency, a population per vertex, and a weight per adjacency
   // entry (both directions of an edge the same; empty: every edge weighs 1).
   void sample(AdjacencyView graph, std::span<const std::int64_t> population, Rng& rng,
@@ -60,6 +71,9 @@ class SpanningTreeSampler {
   [[nodiscard]] std::size_t capacity_bytes() const noexcept;
 
  private:
+  void draw(AdjacencyView graph, std::span<const std::int64_t> population, Rng& rng, std::uint32_t root,
+            std::span<const double> weights, bool known_connected);
+
   std::uint32_t root_ = 0;
   std::uint64_t walk_steps_ = 0;
   std::int64_t total_ = 0;
