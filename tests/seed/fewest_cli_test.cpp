@@ -79,16 +79,7 @@ TEST(FewestCli, CheckStatesTheCapAndRunHoldsItInEveryPlan) {
   ASSERT_EQ(shell(bin + " export " + (dir / "run").string() + " --out " + (dir / "csv").string() + " --every 1 >/dev/null 2>&1"), 0);
   std::size_t plans = 0;
   for (const auto& entry : fs::directory_iterator(dir / "csv" / "plans")) {
-    std::map<std::string, std::set<std::string>> districts_of;
-    std::istringstream plan(read_text(entry.path()));
-    std::getline(plan, line);
-    while (std::getline(plan, line)) {
-      const auto cells = test::split_csv_line(line);
-      districts_of[county_of.at(cells.at(0))].insert(cells.at(1));
-    }
-    std::size_t split = 0;
-    for (const auto& [county, districts] : districts_of) split += districts.size() > 1;
-    EXPECT_LE(split, cap) << entry.path();
+    EXPECT_LE(test::areas_split(entry.path(), county_of), cap) << entry.path();
     ++plans;
   }
   EXPECT_EQ(plans, 2U * 40U);  // both chains, a record after each of the 40 steps

@@ -53,25 +53,11 @@ TEST(SeedCli, ACountyCapBelowTheDistrictCountFindsAFirstPlan) {
   ASSERT_EQ(shell(std::string(PLANMILL_BINARY) + " export " + (dir / "run").string() + " --out " +
                   (dir / "csv").string() + " --plans 0:0 >/dev/null 2>&1"),
             0);
-  std::map<std::string, std::string> county_of;
-  std::istringstream units(read_text(dir / "state" / "units.csv"));
-  std::string line;
-  std::getline(units, line);
-  while (std::getline(units, line)) {
-    const auto cells = test::split_csv_line(line);
-    county_of[cells.at(0)] = cells.at(1);
-  }
-  std::map<std::string, std::set<std::string>> districts_of;
-  std::istringstream plan(read_text(dir / "csv" / "plans" / "chain-0-record-0.csv"));
-  std::getline(plan, line);
-  while (std::getline(plan, line)) {
-    const auto cells = test::split_csv_line(line);
-    districts_of[county_of.at(cells.at(0))].insert(cells.at(1));
-  }
-  std::size_t split = 0;
-  for (const auto& [county, districts] : districts_of) split += districts.size() > 1;
-  EXPECT_EQ(districts_of.size(), 20U);
-  EXPECT_LE(split, 20U);
+  const auto county_of = test::unit_column(dir / "state" / "units.csv", 1);
+  std::set<std::string> counties;
+  for (const auto& [unit, county] : county_of) counties.insert(county);
+  EXPECT_EQ(counties.size(), 20U);
+  EXPECT_LE(test::areas_split(dir / "csv" / "plans" / "chain-0-record-0.csv", county_of), 20U);
 }
 
 TEST(SeedCli, AnImpossibleCountyCapNamesTheRuleAndHowCloseItCame) {

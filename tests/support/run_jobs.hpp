@@ -7,6 +7,8 @@
 #include <filesystem>
 #include <fstream>
 #include <iterator>
+#include <map>
+#include <set>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -66,6 +68,35 @@ inline std::filesystem::path run_and_export(const std::filesystem::path& dir, co
                   " >/dev/null 2>&1"),
             0);
   return job;
+}
+
+// Unit id -> the value in column `column` of a unit table (CSV without quoted fields).
+inline std::map<std::string, std::string> unit_column(const std::filesystem::path& units, std::size_t column) {
+  std::map<std::string, std::string> out;
+  std::istringstream in(read_text(units));
+  std::string line;
+  std::getline(in, line);
+  while (std::getline(in, line)) {
+    const auto cells = split_csv_line(line);
+    out[cells.at(0)] = cells.at(column);
+  }
+  return out;
+}
+
+// Areas (values of `area_of`, e.g. counties) that an exported plan (unit,district CSV) splits:
+// those meeting two or more districts, counted from the labels alone.
+inline std::size_t areas_split(const std::filesystem::path& plan, const std::map<std::string, std::string>& area_of) {
+  std::map<std::string, std::set<std::string>> districts_of;
+  std::istringstream in(read_text(plan));
+  std::string line;
+  std::getline(in, line);
+  while (std::getline(in, line)) {
+    const auto cells = split_csv_line(line);
+    districts_of[area_of.at(cells.at(0))].insert(cells.at(1));
+  }
+  std::size_t split = 0;
+  for (const auto& [area, districts] : districts_of) split += districts.size() > 1 ? 1 : 0;
+  return split;
 }
 
 }  // namespace planmill::test
