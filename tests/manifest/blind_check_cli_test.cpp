@@ -66,7 +66,9 @@ TEST(BlindCheckCli, ABlindRunDrawsTheSamePlansWithGroupAndVoteColumnsPermuted) {
     // Burn-in, then ten records two steps apart: the 10th record is at step 30.
     EXPECT_EQ(s["steps"], 30);
     EXPECT_EQ(s["records_compared"], 10);
-    EXPECT_GE(s["records_changed"].get<int>(), 5) << "the plans compared must move";
+    // About half of recombination's proposals are taken, so a record two steps on differs from the
+    // one before with probability about 3/4; fewer than 3 changes in 10 has a chance below 1e-3.
+    EXPECT_GE(s["records_changed"].get<int>(), 3) << "the plans compared must move";
     EXPECT_EQ(s["final_state_compared"], false);
     steps += s["steps"].get<std::uint64_t>();
   }

@@ -156,13 +156,15 @@ TEST_F(ReportCli, BadInputIsRefusedAndWritesNothing) {
   EXPECT_FALSE(fs::exists(html));
 }
 
-// A run that passes its (deliberately lax) verdict on two judged observables: the pass is put as
+// A run that passes its (deliberately lax) verdict on two judged observables (2,000 records: cut
+// edges' bulk ESS is about 5 per 100 records here, so 400 records sat at the bound of 20 and
+// failed for some seeds; seeds 4, 5 and 6 all pass at 2,000): the pass is put as
 // no sign of poor mixing on those, with what that cannot show, and only they get traces.
 TEST(ReportCliPass, APassingVerdictIsWordedWithoutClaimingMore) {
   const fs::path dir = test::scratch_dir("planmill-report-cli-pass", std::to_string(::getpid()));
   const fs::path job = test::write_synth_job(
       dir,
-      "chains = 2\nsteps = 420\nburn_in = 20\nseed = 4\n[verdict]\nrhat_max = 1.2\ness_min = 20\n"
+      "chains = 2\nsteps = 2020\nburn_in = 20\nseed = 4\n[verdict]\nrhat_max = 1.2\ness_min = 20\n"
       "min_records = 100\njudge = [\"compactness.cut_edges\", \"population_deviation\"]\n");
   const std::string bin = PLANMILL_BINARY;
   ASSERT_EQ(test::shell(bin + " run " + job.string() + " --output " + (dir / "run").string() + " --quiet >/dev/null 2>&1"), 0);
@@ -172,7 +174,7 @@ TEST(ReportCliPass, APassingVerdictIsWordedWithoutClaimingMore) {
             0)
       << test::read_text(dir / "out");
   const std::string h = test::read_text(html);
-  EXPECT_NE(h.find("No sign of poor mixing on the judged measures: with 400 records per chain, every judged "
+  EXPECT_NE(h.find("No sign of poor mixing on the judged measures: with 2000 records per chain, every judged "
                    "observable has R-hat below 1.2 and bulk and tail ESS above 20"),
             std::string::npos);
   EXPECT_NE(h.find("This cannot show that the chains visited every region of plans"), std::string::npos);
