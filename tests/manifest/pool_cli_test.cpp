@@ -3,6 +3,7 @@
 // chain's plans those of its piece; refused, naming the difference and writing nothing, when a
 // seed, a rule or the map differs; a piece left out only with --drop and --reason, recorded.
 #include <gtest/gtest.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <filesystem>
@@ -37,7 +38,7 @@ void run_job(const fs::path& job, const fs::path& out) {
 
 // Exit status of `planmill pool ARGS`, its stderr in *err.
 int pool(const std::string& args, std::string* err = nullptr) {
-  const std::string log = (fs::temp_directory_path() / "planmill-pool-stderr.txt").string();
+  const std::string log = (fs::temp_directory_path() / ("planmill-pool-stderr-" + std::to_string(::getpid()) + ".txt")).string();
   const int status = test::shell(kBin + " pool " + args + " >/dev/null 2>" + log);
   if (err != nullptr) *err = test::read_text(log);
   return status;
@@ -61,13 +62,16 @@ std::vector<std::string> lines_of(const fs::path& file) {
 class PoolCli : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
-    dir_ = test::scratch_dir("planmill-pool", "pieces");
+    // One folder per process: ctest runs each test of the suite as its own process, two at a time,
+    // and a shared folder made them fail in their set-up (which gtest reports as skipped).
+    dir_ = test::scratch_dir("planmill-pool", "pieces-" + std::to_string(::getpid()));
     job_ = test::write_synth_job(dir_, "chains = 2\nsteps = 400\nburn_in = 20\nrecord_every = 5\nseed = 3");
     run_job(job_, dir_ / "a");
     run_job(variant(job_, "seed4", "seed = 3", "seed = 4"), dir_ / "b");
     run_job(variant(job_, "seed3", "seed = 3", "seed = 3\n# the same seed"), dir_ / "c");
     run_job(variant(job_, "tighter", "population_tolerance = 0.05", "population_tolerance = 0.04"), dir_ / "d");
   }
+  static void TearDownTestSuite() { fs::remove_all(dir_); }
   static fs::path dir_, job_;
 };
 fs::path PoolCli::dir_, PoolCli::job_;
