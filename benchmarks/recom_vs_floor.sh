@@ -5,7 +5,7 @@
 # 10,000 units, 100 districts, seed 7), from the same seed plan, at the same tolerance (±5%), one
 # chain / one run each, on one core.
 #   benchmarks/recom_vs_floor.sh PLANMILL [STEPS] [FLOOR.cpp] [RUNS]
-# STEPS defaults to 200000, FLOOR.cpp to /work/shared/bench/recom_floor.cpp, RUNS (alternating
+# STEPS defaults to 200000, FLOOR.cpp to ../shared/bench/recom_floor.cpp beside the checkout, RUNS (alternating
 # pairs) to 3. Each rate is taken over the steps alone, in CPU time (user + sys, so a shared
 # machine slows both alike): the CPU seconds of a run of STEPS minus those of a run of STEPS/10
 # (same input otherwise), so map loading and start-up cancel. Prints one row per run and the
@@ -13,8 +13,9 @@
 set -euo pipefail
 bin=$(realpath "$1")
 steps=${2:-200000}
-floor_src=${3:-/work/shared/bench/recom_floor.cpp}
+floor_src=${3:-"$(dirname "$0")/../../shared/bench/recom_floor.cpp"}
 runs=${4:-3}
+floor_src=$(realpath -m "$floor_src")
 if [ ! -f "$floor_src" ]; then
   echo "recom_vs_floor: no floor source at $floor_src; nothing to compare (optional benchmark)" >&2
   exit 0
